@@ -1,0 +1,64 @@
+# Front door for the CMake build. Everything real happens in CMakeLists.txt;
+# these targets only fix the build directories and the usual flags.
+#
+#   make            same as make build
+#   make deps       install missing Debian packages (.ci/install-deps)
+#   make build      configure (once) and build into $(BUILD)
+#   make demo       build, then open the terminal explorer
+#   make test       build, then run the whole test suite with ctest
+#   make bench      build, then build and run the benchmarks
+#   make asan       test suite under AddressSanitizer/UBSan in $(ASAN_BUILD)
+#   make install    install from $(BUILD) (PREFIX=..., DESTDIR=... honoured)
+#   make clean      remove both build directories
+#
+# Extra configure flags: make build CMAKE_FLAGS='-DNILSTEP_WERROR=OFF'
+# (they only take effect when the directory is configured the first time;
+# run make clean or cmake -B $(BUILD) -D... to change an existing one).
+
+BUILD ?= build
+ASAN_BUILD ?= build-asan
+JOBS ?= 2
+CMAKE ?= cmake
+CTEST ?= ctest
+CMAKE_FLAGS ?=
+PREFIX ?=
+
+# Keep make's "Entering directory" chatter out of CMake's build output.
+MAKEFLAGS += --no-print-directory
+
+.PHONY: all deps build demo test bench asan install clean
+
+all: build
+
+deps:
+	@bash .ci/install-deps
+
+build: deps
+	@test -f $(BUILD)/CMakeCache.txt || \
+	    $(CMAKE) -S . -B $(BUILD) -DCMAKE_BUILD_TYPE=RelWithDebInfo $(CMAKE_FLAGS)
+	$(CMAKE) --build $(BUILD) -j $(JOBS)
+
+demo: build
+	./$(BUILD)/nilstep
+
+test: build
+	cd $(BUILD) && $(CTEST) --output-on-failure -j $(JOBS)
+
+bench: build
+	$(CMAKE) --build $(BUILD) --target bench
+
+asan: deps
+	@test -f $(ASAN_BUILD)/CMakeCache.txt || \
+	    $(CMAKE) -S . -B $(ASAN_BUILD) -DNILSTEP_SANITIZE=ON \
+	        -DCMAKE_BUILD_TYPE=Debug $(CMAKE_FLAGS)
+	$(CMAKE) --build $(ASAN_BUILD) -j $(JOBS)
+	cd $(ASAN_BUILD) && \
+	    ASAN_OPTIONS=detect_leaks=1 \
+	    UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1 \
+	    $(CTEST) --output-on-failure -j $(JOBS)
+
+install: build
+	$(CMAKE) --install $(BUILD) $(if $(PREFIX),--prefix $(PREFIX))
+
+clean:
+	rm -rf $(BUILD) $(ASAN_BUILD)

@@ -1,0 +1,60 @@
+/* elim.h — incremental integer row echelon form on sparse rows.
+ *
+ * The relation lattices of the nilpotent quotient algorithm are sparse,
+ * have many more rows than columns and mostly unit pivots; FLINT 2.9's
+ * dense Hermite forms are slow on them (see ALGORITHMS.md §4).  Rows are
+ * inserted one at a time and reduced against the stored pivot rows; a
+ * non-divisible pivot is combined by the extended gcd, as in the
+ * classical Hermite algorithm (C. Hermite 1851; see H. Cohen, A Course in
+ * Computational Algebraic Number Theory, 1993, §2.4).  The echelon pivots
+ * equal those of the Hermite normal form up to sign, so the quotient
+ * Z^ncols / L can be read off: a column with pivot 1 is eliminated, a
+ * pivot d > 1 gives an element of order d modulo later columns, and a
+ * column without pivot stays free. */
+#ifndef NILSTEP_ELIM_H
+#define NILSTEP_ELIM_H
+
+#include <flint/flint.h>
+#include <flint/fmpz.h>
+#include <flint/fmpz_vec.h>
+
+typedef struct {
+    slong len, alloc;
+    slong *col; /* increasing */
+    fmpz *val;  /* nonzero */
+} elim_row_struct;
+
+typedef struct {
+    slong ncols;
+    elim_row_struct *piv; /* ncols rows; piv[c].len == 0: no pivot at c */
+    elim_row_struct tmp[3];
+} elim_struct;
+typedef elim_struct elim_t[1];
+
+void elim_init(elim_t E, slong ncols);
+void elim_clear(elim_t E);
+
+/* Adds the row (dense, ncols entries) to the lattice. */
+void elim_add_dense(elim_t E, const fmpz *row);
+
+/* The pivot at column c (0 when there is none); positive. */
+const fmpz *elim_pivot(const elim_t E, slong c);
+
+/* The quotient Z^ncols / L.  Survivors are the columns whose pivot is not 1,
+ * in increasing order.  Owned by the caller; elim_quotient_clear frees. */
+typedef struct {
+    slong ncols, nsurv;
+    slong *surv;   /* nsurv column indices */
+    fmpz *order;   /* nsurv: pivot d > 1 (torsion modulo later survivors) or 0 */
+    fmpz *rel;     /* nsurv x nsurv, row s: for a torsion survivor the relation
+                      d t_s + sum_{s' > s} rel[s][s'] t_s' = 0 in survivor
+                      coordinates (rel[s][s] = d); zero rows for free ones */
+    fmpz *expr;    /* ncols x nsurv: column c equals sum_s expr[c][s] t_s */
+} elim_quotient_struct;
+typedef elim_quotient_struct elim_quotient_t[1];
+
+void elim_quotient_init(elim_quotient_t Q);
+void elim_quotient_clear(elim_quotient_t Q);
+void elim_get_quotient(elim_quotient_t Q, const elim_t E);
+
+#endif

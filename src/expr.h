@@ -1,0 +1,177 @@
+/* expr.h — words of the input language as expression trees.
+ *
+ * A word is kept as a tree (products, powers with fmpz exponents,
+ * left-normed commutators, conjugates) rather than expanded into letters,
+ * so that a^(10^50) or [a,b]^1000 cost nothing until evaluated.  Evaluation in
+ * a polycyclic presentation lives in pcp.h (pcp_eval_expr). */
+#ifndef NILSTEP_EXPR_H
+#define NILSTEP_EXPR_H
+
+#include <flint/flint.h>
+#include <flint/fmpz.h>
+#include "nserr.h"
+
+typedef enum {
+    EXPR_ONE,   /* the identity "1"; no kids */
+    EXPR_GEN,   /* generator number gen (0-based index into the name list) */
+    EXPR_MUL,   /* product kids[0] kids[1] ... kids[nkids-1], nkids >= 2 */
+    EXPR_POW,   /* kids[0]^exp, exp any integer (negative = inverse) */
+    EXPR_COMM,  /* left-normed [k0,k1,...,k(n-1)], nkids >= 2;
+                   [x,y] = x^-1 y^-1 x y, [x,y,z] = [[x,y],z] */
+    EXPR_CONJ   /* kids[0]^kids[1] = kids[1]^-1 kids[0] kids[1] */
+} expr_kind;
+
+typedef struct expr_node_struct {
+    expr_kind kind;
+    slong gen;                       /* EXPR_GEN only */
+    fmpz_t exp;                      /* EXPR_POW only; 0 elsewhere */
+    slong nkids;
+    struct expr_node_struct **kids;  /* owned */
+    int line, col;                   /* where the node starts in the source */
+} expr_node;
+
+/* A whole word; owns its tree.  root == NULL never happens after a
+ * successful parse (the identity is an EXPR_ONE node). */
+typedef struct {
+    expr_node *root;
+} expr_struct;
+typedef expr_struct expr_t[1];
+
+void expr_init(expr_t e);           /* root = NULL */
+void expr_clear(expr_t e);          /* frees the tree */
+void expr_set(expr_t dst, const expr_t src);  /* deep copy */
+void expr_swap(expr_t a, expr_t b);
+
+/* Node constructors: the returned node is owned by the caller (or by the
+ * parent it is attached to).  kids arrays passed in are taken over. */
+expr_node *expr_node_new(expr_kind kind, int line, int col);
+expr_node *expr_node_copy(const expr_node *n);
+void expr_node_free(expr_node *n);
+void expr_node_add_kid(expr_node *parent, expr_node *kid);
+
+/* A list of generator names; owns the strings. */
+typedef struct {
+    slong n;
+    char **name;
+} names_struct;
+typedef names_struct names_t[1];
+
+void names_init(names_t g);
+void names_clear(names_t g);
+void names_set(names_t dst, const names_t src);
+/* Appends a copy of name; returns its index. */
+slong names_add(names_t g, const char *name);
+/* Index of name, or -1. */
+slong names_find(const names_t g, const char *name, size_t len);
+
+/* The input language of words (precedence from tightest to loosest):
+ *
+ *   atom      NAME | 1 | ( word ) | [ word , word , ... ]
+ *   factor    atom                 an atom alone
+ *             atom ^ n             power; n an integer, optionally signed,
+ *                                  any size: a^-1, a^+3, a^123456789012345678901
+ *             atom ^ (n)           the same, a^(-1)
+ *             atom ^ atom          conjugate: x^y = y^-1 x y; a^b, a^(b c), a^[b,c]
+ *   word      factor factor ...    product by juxtaposition; '*' between two
+ *                                  factors is allowed and means the same
+ *
+ * So powers bind tighter than products: a b^2 = a (b b), and (a b)^-3,
+ * [a,b]^2, [a b, c^2]^-1 mean what they say.  Commutator entries are whole
+ * words; [x,y,z] = [[x,y],z].  A second '^' after an exponent (a^2^3,
+ * a^b^-1) is rejected with a located error because readers disagree on how
+ * it groups: write (a^2)^3, a^(b^-1) or (a^b)^c.  An exponent written with
+ * '^-' must be an integer: conjugation by an inverse is a^(b^-1).  1 is the
+ * identity; other bare numbers are not words.  '#' starts a comment that
+ * runs to the end of the line; blanks and line breaks may stand between any
+ * two tokens.  Brackets and parentheses nest at most EXPR_MAX_DEPTH deep
+ * (NS_ERR_LIMIT beyond that, so parsing never recurses without bound).
+ *
+ * Positions: lines and columns are 1-based; a column counts Unicode code
+ * points (a tab is one column), so that messages match what editors show
+ * for UTF-8 text. */
+#define EXPR_MAX_DEPTH 200
+
+/* Parses a word in generators g.  text starts at (line, col) of its source:
+ * errors carry positions in that source; a newline in text moves to the next
+ * line, column 1.  The whole of text must be one word (surrounding blanks and
+ * '#' comments allowed). */
+ns_status expr_parse(expr_t out, const char *text, int line, int col,
+                     const names_t g, nserr_t err);
+
+/* The word in the input language, e.g. "a^2 [b,a] (a b)^-3".  Returns a
+ * string the caller frees with flint_free.  Parentheses are the fewest that
+ * make the text parse back to the same tree, except that nested products
+ * print flat (a product is associative) and a conjugate by the identity
+ * prints as the power ^1.  Commutators print as [a,b] and, when an entry is
+ * a product, as [a b, c].  Trees of any depth print (the walk does not
+ * recurse), but only trees within EXPR_MAX_DEPTH parse back. */
+char *expr_get_str(const expr_t e, const names_t g);
+char *expr_node_get_str(const expr_node *n, const names_t g);
+
+/* Exponent sum of generator i over the whole word (fmpz; exact for huge
+ * exponents).  sums has g.n entries, zeroed by the function.  Commutators
+ * contribute 0, a conjugate x^y contributes the sums of x, a power x^n n
+ * times those of x.  Generator numbers >= ngens are ignored. */
+void expr_exponent_sums(fmpz *sums, const expr_t e, slong ngens);
+
+/* ---- Low level: the scanner and word parser shared with pres.c ---------
+ *
+ * A token stream over NUL-terminated text with source positions.  Tokens
+ * point into the text, which must outlive the scanner.  The scanner is plain
+ * data: copying the struct saves its state (used for lookahead). */
+typedef enum {
+    EXPR_TOK_END,     /* end of text */
+    EXPR_TOK_NAME,    /* letter followed by letters, digits, '_' */
+    EXPR_TOK_INT,     /* digits; bad_number set for "1.5" or "1/2" */
+    EXPR_TOK_STAR, EXPR_TOK_CARET, EXPR_TOK_LPAREN, EXPR_TOK_RPAREN,
+    EXPR_TOK_LBRACK, EXPR_TOK_RBRACK, EXPR_TOK_COMMA, EXPR_TOK_MINUS,
+    EXPR_TOK_PLUS, EXPR_TOK_ARROW /* "->" */, EXPR_TOK_LANGLE,
+    EXPR_TOK_RANGLE, EXPR_TOK_BAR, EXPR_TOK_EQUALS, EXPR_TOK_SEMI,
+    EXPR_TOK_BAD      /* a character the language does not use */
+} expr_tok_kind;
+
+typedef struct {
+    expr_tok_kind kind;
+    const char *start;   /* into the scanned text */
+    size_t len;
+    int line, col;       /* of the first character (END: just past the text) */
+    int nl_before;       /* a line break separates it from the previous token */
+    int bad_number;      /* EXPR_TOK_INT that had a fraction part */
+} expr_tok_struct;
+
+typedef struct {
+    const char *text;
+    size_t pos;            /* next unread byte */
+    int line, col;         /* position of text[pos] */
+    const char *prev_end;  /* just past the last token taken by _next */
+    expr_tok_struct tok;   /* the current token */
+} expr_scan_struct;
+typedef expr_scan_struct expr_scan_t[1];
+
+/* Starts scanning text, which begins at (line, col), and reads the first
+ * token into s->tok. */
+void _expr_scan_init(expr_scan_t s, const char *text, int line, int col);
+/* Moves to the next token. */
+void _expr_scan_next(expr_scan_t s);
+/* Kind of the token after the current one (the scanner is unchanged). */
+expr_tok_kind _expr_scan_peek(const expr_scan_t s);
+/* Describes a token for messages: "')'", "'abc'", "number '12'",
+ * "end of text", "character '%'", "byte 0xff".  Always NUL-terminates. */
+void _expr_tok_describe(char *buf, size_t n, const expr_tok_struct *t);
+/* Value of an EXPR_TOK_INT token (bad_number clear). */
+void _expr_tok_get_fmpz(fmpz_t out, const expr_tok_struct *t);
+/* 1 if a token of this kind can begin a word. */
+int _expr_tok_starts_word(expr_tok_kind k);
+
+/* Flags for _expr_parse_word. */
+#define EXPR_STOP_BEFORE_ARROW 1  /* end the word before "NAME ->" (maps) */
+
+/* Parses one word starting at the current token and stops at the first
+ * token that cannot continue it (',' ']' '>' '=' end of text ...), which is
+ * left current.  On success *out is a new tree owned by the caller; on
+ * failure *out is NULL and err is set.  The current token must begin a
+ * word (check with _expr_tok_starts_word for a better message). */
+ns_status _expr_parse_word(expr_node **out, expr_scan_t s, const names_t g,
+                           int flags, nserr_t err);
+
+#endif

@@ -1,0 +1,581 @@
+/* nq.c — the nilpotent quotient algorithm; see nq.h for the method. */
+#include <stdio.h>
+#include <string.h>
+#include <flint/fmpz_mat.h>
+#include "elim.h"
+#include "nq.h"
+
+/* Limits that keep a run inside memory: the conjugate tables grow like the
+ * square of the number of pc generators. */
+#define NQ_MAX_PCGENS 1500
+#define NQ_MAX_TAILS 60000
+
+typedef enum { TAIL_POW, TAIL_IMG, TAIL_CONJ } tail_kind;
+
+typedef struct {
+    tail_kind kind;
+    slong a, b; /* POW: a_a;  IMG: input generator a;  CONJ: a_a^(a_b) */
+} tail_struct;
+
+void nq_init(nq_t Q)
+{
+    memset(Q, 0, sizeof(nq_struct));
+    pres_init(Q->pres);
+    pcp_init(Q->pcp);
+}
+
+static void free_layers(nq_t Q)
+{
+    for (slong j = 0; j < Q->nlayers; j++)
+        if (Q->layers[j].ntors)
+            _fmpz_vec_clear(Q->layers[j].torsion, Q->layers[j].ntors);
+    flint_free(Q->layers);
+    Q->layers = NULL;
+    Q->nlayers = 0;
+}
+
+void nq_clear(nq_t Q)
+{
+    if (Q->images)
+        _fmpz_vec_clear(Q->images, FLINT_MAX(Q->pres->gens->n * Q->pcp->n, 1));
+    if (Q->labels) {
+        for (slong k = 0; k < Q->pcp->n; k++)
+            flint_free(Q->labels[k]);
+        flint_free(Q->labels);
+    }
+    free_layers(Q);
+    pcp_clear(Q->pcp);
+    pres_clear(Q->pres);
+    memset(Q, 0, sizeof(nq_struct));
+    pres_init(Q->pres);
+    pcp_init(Q->pcp);
+}
+
+static int progress_stage(const ns_progress_t *p, slong c, const char *what, double f)
+{
+    char buf[96];
+    snprintf(buf, sizeof buf, "class %ld: %s", (long)c, what);
+    return ns_progress_report(p, buf, f);
+}
+
+/* v (ns entries) reduced modulo the torsion relations of q: each torsion
+ * coordinate ends in [0, d). */
+static void reduce_central(fmpz *v, const elim_quotient_t q)
+{
+    slong ns = q->nsurv;
+    fmpz_t k;
+    fmpz_init(k);
+    for (slong s = 0; s < ns; s++) {
+        if (fmpz_is_zero(q->order + s))
+            continue;
+        fmpz_fdiv_q(k, v + s, q->order + s);
+        if (!fmpz_is_zero(k))
+            _fmpz_vec_scalar_submul_fmpz(v, q->rel + s * ns, ns, k);
+    }
+    fmpz_clear(k);
+}
+
+/* Appends base + sum_s v_s a_(base+s) to the word w. */
+static void push_central(pcw_t w, const fmpz *v, slong ns, slong base)
+{
+    for (slong s = 0; s < ns; s++)
+        if (!fmpz_is_zero(v + s))
+            pcw_push(w, base + s, v + s);
+}
+
+/* The reduced expression of tail column t in the survivors. */
+static void tail_value(fmpz *v, const elim_quotient_t q, slong t)
+{
+    _fmpz_vec_set(v, q->expr + t * q->nsurv, q->nsurv);
+    reduce_central(v, q);
+}
+
+/* Sets the power relations of the survivors (indices base.. in P). */
+static void set_survivor_powers(pcp_t P, const elim_quotient_t q, slong base)
+{
+    slong ns = q->nsurv;
+    fmpz *v = _fmpz_vec_init(ns);
+    pcw_t w;
+    pcw_init(w);
+    for (slong s = 0; s < ns; s++) {
+        if (fmpz_is_zero(q->order + s))
+            continue;
+        _fmpz_vec_neg(v, q->rel + s * ns, ns);
+        fmpz_zero(v + s);
+        reduce_central(v, q);
+        pcw_zero(w);
+        push_central(w, v, ns, base);
+        pcp_set_power(P, base + s, q->order + s, w);
+    }
+    pcw_clear(w);
+    _fmpz_vec_clear(v, ns);
+}
+
+static ns_status class_one(nq_t Q, pcp_work_t W, nserr_t err)
+{
+    slong X = Q->pres->gens->n;
+    elim_t E;
+    elim_quotient_t q;
+    fmpz *row = _fmpz_vec_init(X);
+    elim_init(E, X);
+    elim_quotient_init(q);
+    for (slong r = 0; r < Q->pres->nrels; r++) {
+        expr_exponent_sums(row, Q->pres->rels + r, X);
+        elim_add_dense(E, row);
+    }
+    elim_get_quotient(q, E);
+    slong ns = q->nsurv;
+    slong *wt = flint_malloc(FLINT_MAX(ns, 1) * sizeof(slong));
+    for (slong s = 0; s < ns; s++)
+        wt[s] = 1;
+    pcp_reset(Q->pcp, ns, wt, 1);
+    set_survivor_powers(Q->pcp, q, 0);
+    for (slong s = 0; s < ns; s++) {
+        Q->pcp->def[s].kind = PCP_DEF_IMAGE;
+        Q->pcp->def[s].a = q->surv[s];
+    }
+    Q->images = _fmpz_vec_init(FLINT_MAX(X * ns, 1));
+    for (slong x = 0; x < X; x++)
+        tail_value(Q->images + x * ns, q, x);
+    W->P = Q->pcp;
+    pcp_complete(Q->pcp, W);
+    flint_free(wt);
+    _fmpz_vec_clear(row, X);
+    elim_quotient_clear(q);
+    elim_clear(E);
+    (void)err;
+    return NS_OK;
+}
+
+typedef struct {
+    slong n, T;
+    elim_struct *E;
+    fmpz *row;
+    int bad;
+} cons_ctx;
+
+static int cons_row(void *vctx, const fmpz *l, const fmpz *r)
+{
+    cons_ctx *c = vctx;
+    if (!_fmpz_vec_equal(l, r, c->n)) {
+        c->bad = 1; /* the class-c quotient was not consistent */
+        return 1;
+    }
+    _fmpz_vec_sub(c->row, l + c->n, r + c->n, c->T);
+    if (!_fmpz_vec_is_zero(c->row, c->T))
+        elim_add_dense(c->E, c->row);
+    return 0;
+}
+
+/* One step c -> c+1.  *grew is set to the number of new generators. */
+static ns_status step(nq_t Q, slong c, pcp_work_t W, const ns_progress_t *prog, slong *grew,
+                      nserr_t err)
+{
+    pcp_struct *P = Q->pcp;
+    slong n = P->n, X = Q->pres->gens->n, nslots = n * (n - 1) / 2;
+    ns_status st = NS_OK;
+    *grew = 0;
+    if (n > NQ_MAX_PCGENS)
+        return nserr_set(err, NS_ERR_LIMIT, 0, 0,
+                         "class %ld would extend a presentation on %ld pc generators "
+                         "(limit %d)",
+                         (long)(c + 1), (long)n, NQ_MAX_PCGENS);
+    if (progress_stage(prog, c + 1, "tails", 0.0))
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+
+    /* Which relations are definitions and carry no tail. */
+    char *isdef = flint_calloc(FLINT_MAX(nslots, 1), 1);
+    char *imgdef = flint_calloc(FLINT_MAX(X, 1), 1);
+    for (slong g = 0; g < n; g++) {
+        if (P->def[g].kind == PCP_DEF_COMM)
+            isdef[pcp_slot(P->def[g].a, P->def[g].b)] = 1;
+        else if (P->def[g].kind == PCP_DEF_IMAGE)
+            imgdef[P->def[g].a] = 1;
+    }
+    slong cap = 16, T = 0;
+    tail_struct *tails = flint_malloc(cap * sizeof(tail_struct));
+    slong *tailof = flint_malloc(FLINT_MAX(nslots, 1) * sizeof(slong));
+    slong *powtail = flint_malloc(FLINT_MAX(n, 1) * sizeof(slong));
+    slong *imgtail = flint_malloc(FLINT_MAX(X, 1) * sizeof(slong));
+#define ADD_TAIL(K, A, B)                                                                    \
+    do {                                                                                     \
+        if (T == cap) {                                                                      \
+            cap *= 2;                                                                        \
+            tails = flint_realloc(tails, cap * sizeof(tail_struct));                         \
+        }                                                                                    \
+        tails[T].kind = (K);                                                                 \
+        tails[T].a = (A);                                                                    \
+        tails[T].b = (B);                                                                    \
+        T++;                                                                                 \
+    } while (0)
+    for (slong s = 0; s < nslots; s++)
+        tailof[s] = -1;
+    for (slong i = 0; i < n; i++) {
+        powtail[i] = -1;
+        if (!fmpz_is_zero(P->relorder + i)) {
+            powtail[i] = T;
+            ADD_TAIL(TAIL_POW, i, 0);
+        }
+    }
+    for (slong x = 0; x < X; x++) {
+        imgtail[x] = -1;
+        if (!imgdef[x]) {
+            imgtail[x] = T;
+            ADD_TAIL(TAIL_IMG, x, 0);
+        }
+    }
+    for (slong k = 0; k < n; k++)
+        for (slong i = 0; i < k; i++) {
+            slong wi = P->weight[i], wk = P->weight[k];
+            if (wi + wk > c + 1 || isdef[pcp_slot(k, i)] || (wi == 1 && wk == c))
+                continue;
+            tailof[pcp_slot(k, i)] = T;
+            ADD_TAIL(TAIL_CONJ, k, i);
+        }
+    slong last = T;
+    for (slong k = 0; k < n; k++)
+        for (slong i = 0; i < k; i++)
+            if (P->weight[i] == 1 && P->weight[k] == c) {
+                tailof[pcp_slot(k, i)] = T;
+                ADD_TAIL(TAIL_CONJ, k, i);
+            }
+#undef ADD_TAIL
+    if (T > NQ_MAX_TAILS) {
+        st = nserr_set(err, NS_ERR_LIMIT, 0, 0, "class %ld needs %ld tails (limit %d)",
+                       (long)(c + 1), (long)T, NQ_MAX_TAILS);
+        goto out_tails;
+    }
+
+    /* The tailed presentation on n + T generators. */
+    slong N = n + T;
+    slong *wt = flint_malloc(N * sizeof(slong));
+    for (slong g = 0; g < N; g++)
+        wt[g] = g < n ? P->weight[g] : c + 1;
+    pcp_t E;
+    pcp_init(E);
+    pcp_reset(E, N, wt, c + 1);
+    pcw_t w;
+    pcw_init(w);
+    fmpz_t one;
+    fmpz_init_set_ui(one, 1);
+    for (slong i = 0; i < n; i++) {
+        if (fmpz_is_zero(P->relorder + i))
+            continue;
+        pcw_set(w, P->pow + i);
+        pcw_push(w, n + powtail[i], one);
+        pcp_set_power(E, i, P->relorder + i, w);
+    }
+    for (slong k = 0; k < n; k++)
+        for (slong i = 0; i < k; i++) {
+            slong s = pcp_slot(k, i);
+            if (P->weight[i] + P->weight[k] > c + 1)
+                continue;
+            if (k < P->ncore && !P->trivial[s])
+                pcw_set(w, P->conj + s);
+            else {
+                pcw_zero(w);
+                pcw_push(w, k, one);
+            }
+            if (tailof[s] >= 0)
+                pcw_push(w, n + tailof[s], one);
+            pcp_set_conj(E, k, i, w);
+        }
+    fmpz *img = _fmpz_vec_init(FLINT_MAX(X * N, 1));
+    for (slong x = 0; x < X; x++) {
+        _fmpz_vec_set(img + x * N, Q->images + x * n, n);
+        if (imgtail[x] >= 0)
+            fmpz_one(img + x * N + n + imgtail[x]);
+    }
+    W->P = E;
+    if (pcp_complete(E, W)) {
+        st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld", (long)(c + 1));
+        goto out_ext;
+    }
+
+    /* Consistency and relators give the relation lattice on the tails. */
+    elim_t L;
+    elim_init(L, T);
+    if (progress_stage(prog, c + 1, "consistency", 0.3)) {
+        st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+        goto out_elim;
+    }
+    cons_ctx cc = {n, T, L, _fmpz_vec_init(FLINT_MAX(T, 1)), 0};
+    int rc = pcp_consistency_run(E, W, cons_row, &cc);
+    if (rc < 0) {
+        st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld", (long)(c + 1));
+        goto out_cons;
+    }
+    if (cc.bad) {
+        st = nserr_set(err, NS_ERR_INPUT, 0, 0,
+                       "internal error: the class-%ld presentation is not consistent", (long)c);
+        goto out_cons;
+    }
+    if (progress_stage(prog, c + 1, "relators", 0.7)) {
+        st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+        goto out_cons;
+    }
+    fmpz *val = _fmpz_vec_init(N);
+    for (slong r = 0; r < Q->pres->nrels; r++) {
+        if (pcp_eval_expr(W, val, Q->pres->rels[r].root, img)) {
+            st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld", (long)(c + 1));
+            break;
+        }
+        if (!_fmpz_vec_is_zero(val, n)) {
+            st = nserr_set(err, NS_ERR_INPUT, 0, 0,
+                           "internal error: relator %ld is not trivial in class %ld", (long)r + 1,
+                           (long)c);
+            break;
+        }
+        if (!_fmpz_vec_is_zero(val + n, T))
+            elim_add_dense(L, val + n);
+    }
+    _fmpz_vec_clear(val, N);
+    if (st != NS_OK)
+        goto out_cons;
+    if (progress_stage(prog, c + 1, "elimination", 0.9)) {
+        st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+        goto out_cons;
+    }
+
+    elim_quotient_t q;
+    elim_quotient_init(q);
+    elim_get_quotient(q, L);
+    slong ns = q->nsurv;
+    for (slong s = 0; s < ns; s++)
+        if (q->surv[s] < last) {
+            st = nserr_set(err, NS_ERR_INPUT, 0, 0,
+                           "internal error: a non-commutator tail survived in class %ld",
+                           (long)(c + 1));
+            goto out_q;
+        }
+    *grew = ns;
+    if (ns == 0)
+        goto out_q;
+
+    /* The class-(c+1) presentation: the old one with the tails replaced by
+     * their values in the survivors. */
+    {
+        slong M = n + ns;
+        slong *wt2 = flint_malloc(M * sizeof(slong));
+        for (slong g = 0; g < M; g++)
+            wt2[g] = g < n ? P->weight[g] : c + 1;
+        pcp_t R;
+        pcp_init(R);
+        pcp_reset(R, M, wt2, c + 1);
+        fmpz *v = _fmpz_vec_init(ns);
+        set_survivor_powers(R, q, n);
+        for (slong i = 0; i < n; i++) {
+            if (fmpz_is_zero(P->relorder + i))
+                continue;
+            pcw_set(w, P->pow + i);
+            tail_value(v, q, powtail[i]);
+            push_central(w, v, ns, n);
+            pcp_set_power(R, i, P->relorder + i, w);
+        }
+        for (slong k = 0; k < n; k++)
+            for (slong i = 0; i < k; i++) {
+                slong s = pcp_slot(k, i);
+                if (P->weight[i] + P->weight[k] > c + 1)
+                    continue;
+                if (k < P->ncore && !P->trivial[s])
+                    pcw_set(w, P->conj + s);
+                else {
+                    pcw_zero(w);
+                    pcw_push(w, k, one);
+                }
+                if (tailof[s] >= 0) {
+                    tail_value(v, q, tailof[s]);
+                    push_central(w, v, ns, n);
+                }
+                pcp_set_conj(R, k, i, w);
+            }
+        memcpy(R->def, P->def, n * sizeof(pcp_def_struct));
+        for (slong s = 0; s < ns; s++) {
+            const tail_struct *t = tails + q->surv[s];
+            R->def[n + s].kind = PCP_DEF_COMM;
+            R->def[n + s].a = t->a;
+            R->def[n + s].b = t->b;
+        }
+        fmpz *img2 = _fmpz_vec_init(FLINT_MAX(X * M, 1));
+        for (slong x = 0; x < X; x++) {
+            _fmpz_vec_set(img2 + x * M, Q->images + x * n, n);
+            if (imgtail[x] >= 0) {
+                tail_value(v, q, imgtail[x]);
+                _fmpz_vec_set(img2 + x * M + n, v, ns);
+            }
+        }
+        W->P = R;
+        if (pcp_complete(R, W)) {
+            st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld", (long)(c + 1));
+            _fmpz_vec_clear(img2, FLINT_MAX(X * M, 1));
+            pcp_clear(R);
+        } else {
+            _fmpz_vec_clear(Q->images, FLINT_MAX(X * n, 1));
+            Q->images = img2;
+            pcp_swap(Q->pcp, R);
+            pcp_clear(R);
+        }
+        _fmpz_vec_clear(v, ns);
+        flint_free(wt2);
+    }
+out_q:
+    elim_quotient_clear(q);
+out_cons:
+    _fmpz_vec_clear(cc.row, FLINT_MAX(T, 1));
+out_elim:
+    elim_clear(L);
+out_ext:
+    _fmpz_vec_clear(img, FLINT_MAX(X * N, 1));
+    fmpz_clear(one);
+    pcw_clear(w);
+    pcp_clear(E);
+    flint_free(wt);
+out_tails:
+    W->P = Q->pcp;
+    flint_free(tails);
+    flint_free(tailof);
+    flint_free(powtail);
+    flint_free(imgtail);
+    flint_free(isdef);
+    flint_free(imgdef);
+    return st;
+}
+
+/* "[b,a]" and "a" give "[b,a,a]"; "b" and "a" give "[b,a]". */
+static char *make_label(const char *x, const char *y)
+{
+    size_t lx = strlen(x), ly = strlen(y);
+    char *s = flint_malloc(lx + ly + 4);
+    if (x[0] == '[')
+        sprintf(s, "%.*s,%s]", (int)(lx - 1), x, y);
+    else
+        sprintf(s, "[%s,%s]", x, y);
+    return s;
+}
+
+static void compute_layers(nq_t Q)
+{
+    const pcp_struct *P = Q->pcp;
+    slong c = Q->class_reached;
+    free_layers(Q);
+    Q->nlayers = c;
+    Q->layers = flint_calloc(FLINT_MAX(c, 1), sizeof(nq_layer_struct));
+    Q->hirsch_length = 0;
+    slong g = 0;
+    for (slong j = 1; j <= c; j++) {
+        nq_layer_struct *L = Q->layers + j - 1;
+        L->weight = j;
+        L->start = g;
+        while (g < P->n && P->weight[g] == j)
+            g++;
+        L->count = g - L->start;
+        slong f = 0;
+        for (slong k = L->start; k < g; k++)
+            if (!fmpz_is_zero(P->relorder + k))
+                f++;
+        L->free_rank = L->count - f;
+        Q->hirsch_length += L->free_rank;
+        if (f == 0)
+            continue;
+        /* The layer's invariants come from the Smith form of its whole
+         * power-relation block, not from the relative orders. */
+        fmpz_mat_t A, S;
+        fmpz_mat_init(A, f, L->count);
+        fmpz_mat_init(S, f, L->count);
+        slong r = 0;
+        for (slong k = L->start; k < g; k++) {
+            if (fmpz_is_zero(P->relorder + k))
+                continue;
+            fmpz_set(fmpz_mat_entry(A, r, k - L->start), P->relorder + k);
+            const pcw_struct *w = P->pow + k;
+            for (slong t = 0; t < w->len; t++)
+                if (w->gen[t] < g)
+                    fmpz_sub(fmpz_mat_entry(A, r, w->gen[t] - L->start),
+                             fmpz_mat_entry(A, r, w->gen[t] - L->start), w->exp + t);
+            r++;
+        }
+        fmpz_mat_snf(S, A);
+        slong nt = 0;
+        for (slong k = 0; k < f; k++)
+            if (!fmpz_is_one(fmpz_mat_entry(S, k, k)))
+                nt++;
+        L->ntors = nt;
+        L->torsion = _fmpz_vec_init(FLINT_MAX(nt, 1));
+        nt = 0;
+        for (slong k = 0; k < f; k++)
+            if (!fmpz_is_one(fmpz_mat_entry(S, k, k)))
+                fmpz_abs(L->torsion + nt++, fmpz_mat_entry(S, k, k));
+        if (nt == 0)
+            _fmpz_vec_clear(L->torsion, 1);
+        fmpz_mat_clear(A);
+        fmpz_mat_clear(S);
+    }
+    Q->labels = flint_malloc(FLINT_MAX(P->n, 1) * sizeof(char *));
+    for (slong k = 0; k < P->n; k++) {
+        const pcp_def_struct *d = P->def + k;
+        if (d->kind == PCP_DEF_IMAGE) {
+            const char *nm = Q->pres->gens->name[d->a];
+            Q->labels[k] = flint_malloc(strlen(nm) + 1);
+            strcpy(Q->labels[k], nm);
+        } else
+            Q->labels[k] = make_label(Q->labels[d->a], Q->labels[d->b]);
+    }
+}
+
+ns_status nq_compute(nq_t Q, const pres_t G, slong c, const ns_progress_t *progress,
+                     nserr_t err)
+{
+    nq_clear(Q);
+    if (c < 1 || c > NQ_MAX_CLASS)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "the class must be between 1 and %d",
+                         NQ_MAX_CLASS);
+    pres_set(Q->pres, G);
+    Q->class_requested = c;
+    pcp_work_t W;
+    pcp_work_init(W, Q->pcp);
+    W->progress = progress;
+    ns_status st = NS_OK;
+    if (progress_stage(progress, 1, "abelianisation", 0.0)) {
+        st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+        goto done;
+    }
+    class_one(Q, W, err);
+    Q->class_reached = Q->pcp->n ? 1 : 0;
+    Q->stabilised = Q->pcp->n == 0;
+    for (slong k = 1; k < c && !Q->stabilised; k++) {
+        slong grew;
+        st = step(Q, k, W, progress, &grew, err);
+        if (st != NS_OK)
+            break;
+        if (grew == 0)
+            Q->stabilised = 1;
+        else
+            Q->class_reached = k + 1;
+    }
+done:
+    pcp_work_clear(W);
+    if (st != NS_OK) {
+        nq_clear(Q);
+        return st;
+    }
+    compute_layers(Q);
+    return NS_OK;
+}
+
+ns_status nq_eval(const nq_t Q, fmpz *out, const expr_t w, const ns_progress_t *progress,
+                  nserr_t err)
+{
+    pcp_work_t W;
+    pcp_work_init(W, Q->pcp);
+    W->progress = progress;
+    int bad = pcp_eval_expr(W, out, w->root, Q->images);
+    pcp_work_clear(W);
+    if (bad)
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "evaluation stopped");
+    return NS_OK;
+}
+
+char *nq_elt_get_str(const nq_t Q, const fmpz *u)
+{
+    return pcp_elt_get_str(Q->pcp, u, Q->labels);
+}

@@ -1,0 +1,76 @@
+/* nq.h — the nilpotent quotient algorithm.
+ *
+ * Computes a consistent nilpotent presentation of G / gamma_(c+1)(G) for a
+ * finitely presented G, one class at a time, following C. C. Sims,
+ * Computation with Finitely Presented Groups (1994), ch. 11, and W. Nickel,
+ * "Computing nilpotent quotients of finitely presented groups" (DIMACS
+ * Series 25, 1996):
+ *
+ *  class 1: the abelianisation, from the exponent-sum matrix of the
+ *           relators in echelon form;
+ *  c -> c+1: put a new central generator (a "tail") on every power relation,
+ *           on every conjugate relation of weight <= c+1 that is not a
+ *           definition, and on every image of an input generator that is
+ *           not a definition; this presents F/[K,F] for K the kernel of
+ *           F -> G/gamma_(c+1)(G), once it is made consistent.  Enforce
+ *           consistency (each test word gives a linear relation between
+ *           tails), then evaluate the relators, which by
+ *           N [K,F] = N gamma_(c+2)(F) cut out G/gamma_(c+2)(G).  The
+ *           relation lattice is brought to echelon form (elim.h) with the
+ *           commutator tails [a_k, a_i] (weight(a_i) = 1, weight(a_k) = c)
+ *           last; they generate the new layer, so every surviving tail is
+ *           one of them and carries its commutator as definition.
+ *
+ * The series stabilises when a step produces no new generator: then
+ * gamma_(c+1)(G) = gamma_(c+2)(G) and every larger class gives the same
+ * quotient. */
+#ifndef NILSTEP_NQ_H
+#define NILSTEP_NQ_H
+
+#include "pcp.h"
+#include "pres.h"
+
+/* Layer j = gamma_j / gamma_(j+1) = Z^free_rank + Z/d_1 + ... + Z/d_k. */
+typedef struct {
+    slong weight;
+    slong start, count;  /* its pc generators: start .. start+count-1 */
+    slong free_rank;
+    slong ntors;
+    fmpz *torsion;       /* ntors invariant factors d_1 | d_2 | ..., all > 1 */
+} nq_layer_struct;
+
+typedef struct {
+    pres_t pres;           /* a copy of the input presentation */
+    slong class_requested;
+    slong class_reached;   /* number of layers computed (<= requested) */
+    int stabilised;        /* 1: gamma_(class_reached+1) is known trivial */
+    pcp_t pcp;             /* the class-(class_reached) quotient */
+    fmpz *images;          /* pres->gens.n rows of pcp.n: the generators' images */
+    slong nlayers;
+    nq_layer_struct *layers;
+    char **labels;         /* pcp.n labels: "a", "[b,a]", "[b,a,a]" */
+    slong hirsch_length;
+} nq_struct;
+typedef nq_struct nq_t[1];
+
+void nq_init(nq_t Q);
+void nq_clear(nq_t Q);
+
+/* Computes the class-c quotient of G (1 <= c <= NQ_MAX_CLASS).  progress may
+ * be NULL; it is told each stage and polled during collection, and a
+ * nonzero answer stops with NS_ERR_CANCELLED.  On error Q is left empty
+ * (as after nq_init) and err says why. */
+#define NQ_MAX_CLASS 64
+ns_status nq_compute(nq_t Q, const pres_t G, slong c, const ns_progress_t *progress,
+                     nserr_t err);
+
+/* Evaluates a word in the input generators in the quotient; out has
+ * Q->pcp->n entries.  Returns NS_OK or NS_ERR_LIMIT / NS_ERR_CANCELLED. */
+ns_status nq_eval(const nq_t Q, fmpz *out, const expr_t w, const ns_progress_t *progress,
+                  nserr_t err);
+
+/* The element as a word in the pc generator labels, e.g. "a^2 [b,a]^-1";
+ * caller frees with flint_free. */
+char *nq_elt_get_str(const nq_t Q, const fmpz *u);
+
+#endif

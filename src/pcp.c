@@ -1,0 +1,759 @@
+/* pcp.c — nilpotent presentations and collection from the left.
+ * See pcp.h for the method and its sources. */
+#include <stdlib.h>
+#include <string.h>
+#include "pcp.h"
+
+/* ---------------------------------------------------------------- words */
+
+void pcw_init(pcw_t w)
+{
+    w->len = w->alloc = 0;
+    w->gen = NULL;
+    w->exp = NULL;
+}
+
+void pcw_clear(pcw_t w)
+{
+    if (w->alloc) {
+        _fmpz_vec_clear(w->exp, w->alloc);
+        flint_free(w->gen);
+    }
+    pcw_init(w);
+}
+
+static void pcw_fit(pcw_t w, slong len)
+{
+    if (len <= w->alloc)
+        return;
+    slong na = FLINT_MAX(len, 2 * w->alloc);
+    w->gen = flint_realloc(w->gen, na * sizeof(slong));
+    w->exp = flint_realloc(w->exp, na * sizeof(fmpz));
+    for (slong k = w->alloc; k < na; k++)
+        fmpz_init(w->exp + k);
+    w->alloc = na;
+}
+
+void pcw_zero(pcw_t w)
+{
+    for (slong k = 0; k < w->len; k++)
+        fmpz_zero(w->exp + k);
+    w->len = 0;
+}
+
+void pcw_set(pcw_t dst, const pcw_t src)
+{
+    if (dst == src)
+        return;
+    pcw_zero(dst);
+    pcw_fit(dst, src->len);
+    for (slong k = 0; k < src->len; k++) {
+        dst->gen[k] = src->gen[k];
+        fmpz_set(dst->exp + k, src->exp + k);
+    }
+    dst->len = src->len;
+}
+
+void pcw_push(pcw_t w, slong g, const fmpz_t e)
+{
+    pcw_fit(w, w->len + 1);
+    w->gen[w->len] = g;
+    fmpz_set(w->exp + w->len, e);
+    w->len++;
+}
+
+void pcw_set_vec(pcw_t w, const fmpz *u, slong n)
+{
+    pcw_zero(w);
+    for (slong k = 0; k < n; k++)
+        if (!fmpz_is_zero(u + k))
+            pcw_push(w, k, u + k);
+}
+
+void pcw_get_vec(fmpz *u, slong n, const pcw_t w)
+{
+    _fmpz_vec_zero(u, n);
+    for (slong k = 0; k < w->len; k++)
+        fmpz_set(u + w->gen[k], w->exp + k);
+}
+
+int pcw_is_gen(const pcw_t w, slong g)
+{
+    return w->len == 1 && w->gen[0] == g && fmpz_is_one(w->exp);
+}
+
+/* ------------------------------------------------------- presentations */
+
+static void pcp_free_tables(pcp_t P)
+{
+    slong nslots = P->ncore * (P->ncore - 1) / 2;
+    for (slong i = 0; i < P->n; i++) {
+        pcw_clear(P->pow + i);
+        pcw_clear(P->powinv + i);
+    }
+    for (slong s = 0; s < nslots; s++) {
+        pcw_clear(P->conj + s);
+        pcw_clear(P->conjinv + s);
+        pcw_clear(P->conjm + s);
+        pcw_clear(P->conjminv + s);
+    }
+    if (P->n) {
+        _fmpz_vec_clear(P->relorder, P->n);
+        flint_free(P->weight);
+        flint_free(P->pow);
+        flint_free(P->powinv);
+        flint_free(P->commute_from);
+        flint_free(P->def);
+    }
+    if (nslots) {
+        flint_free(P->conj);
+        flint_free(P->conjinv);
+        flint_free(P->conjm);
+        flint_free(P->conjminv);
+        flint_free(P->trivial);
+    }
+}
+
+void pcp_init(pcp_t P)
+{
+    memset(P, 0, sizeof(pcp_struct));
+}
+
+void pcp_clear(pcp_t P)
+{
+    pcp_free_tables(P);
+    pcp_init(P);
+}
+
+void pcp_swap(pcp_t a, pcp_t b)
+{
+    pcp_struct t = *a;
+    *a = *b;
+    *b = t;
+}
+
+void pcp_reset(pcp_t P, slong n, const slong *weight, slong maxweight)
+{
+    pcp_free_tables(P);
+    pcp_init(P);
+    P->n = n;
+    P->maxweight = maxweight;
+    if (n == 0)
+        return;
+    P->weight = flint_malloc(n * sizeof(slong));
+    memcpy(P->weight, weight, n * sizeof(slong));
+    P->relorder = _fmpz_vec_init(n);
+    P->pow = flint_malloc(n * sizeof(pcw_struct));
+    P->powinv = flint_malloc(n * sizeof(pcw_struct));
+    P->commute_from = flint_malloc(n * sizeof(slong));
+    P->def = flint_calloc(n, sizeof(pcp_def_struct));
+    for (slong i = 0; i < n; i++) {
+        pcw_init(P->pow + i);
+        pcw_init(P->powinv + i);
+    }
+    P->ncore = n;
+    for (slong i = 0; i < n; i++)
+        if (weight[i] >= maxweight) {
+            P->ncore = i;
+            break;
+        }
+    /* Weights are sorted, so "commutes with a_i" is a suffix of indices. */
+    for (slong i = 0; i < n; i++) {
+        slong lo = i + 1, hi = n;
+        while (lo < hi) {
+            slong mid = lo + (hi - lo) / 2;
+            if (weight[mid] + weight[i] > maxweight)
+                hi = mid;
+            else
+                lo = mid + 1;
+        }
+        P->commute_from[i] = lo;
+    }
+    slong nslots = P->ncore * (P->ncore - 1) / 2;
+    if (nslots) {
+        P->conj = flint_malloc(nslots * sizeof(pcw_struct));
+        P->conjinv = flint_malloc(nslots * sizeof(pcw_struct));
+        P->conjm = flint_malloc(nslots * sizeof(pcw_struct));
+        P->conjminv = flint_malloc(nslots * sizeof(pcw_struct));
+        P->trivial = flint_malloc(nslots);
+        memset(P->trivial, 1, nslots);
+        for (slong s = 0; s < nslots; s++) {
+            pcw_init(P->conj + s);
+            pcw_init(P->conjinv + s);
+            pcw_init(P->conjm + s);
+            pcw_init(P->conjminv + s);
+        }
+    }
+}
+
+void pcp_set_conj(pcp_t P, slong k, slong i, const pcw_t w)
+{
+    if (pcw_is_gen(w, k))
+        return;
+    FLINT_ASSERT(i < k && k < P->ncore);
+    slong s = pcp_slot(k, i);
+    pcw_set(P->conj + s, w);
+    P->trivial[s] = 0;
+}
+
+void pcp_set_power(pcp_t P, slong i, const fmpz_t m, const pcw_t w)
+{
+    fmpz_set(P->relorder + i, m);
+    pcw_set(P->pow + i, w);
+}
+
+void pcp_work_init(pcp_work_t W, const pcp_t P)
+{
+    W->P = P;
+    W->steps = 0;
+    W->limit = 0;
+    W->overflow = 0;
+    W->progress = NULL;
+}
+
+void pcp_work_clear(pcp_work_t W)
+{
+    (void)W;
+}
+
+/* ----------------------------------------------------------- collection */
+
+static int work_tick(pcp_work_t W)
+{
+    W->steps++;
+    if (W->limit && W->steps > W->limit)
+        W->overflow = 1;
+    if ((W->steps & 0xffff) == 0 && W->progress &&
+        ns_progress_report(W->progress, NULL, -1.0))
+        W->overflow = 1;
+    return W->overflow;
+}
+
+/* Moves the nonzero entries of u beyond i into a word and zeroes them. */
+static void take_tail(pcw_t T, fmpz *u, slong i, slong n)
+{
+    pcw_zero(T);
+    for (slong k = i + 1; k < n; k++)
+        if (!fmpz_is_zero(u + k)) {
+            pcw_push(T, k, u + k);
+            fmpz_zero(u + k);
+        }
+}
+
+/* u := u * w^q for a word w and integer q. */
+static void collect_word_pow(pcp_work_t W, fmpz *u, const pcw_t w, const pcw_t winv,
+                             const fmpz_t q)
+{
+    if (fmpz_is_zero(q) || w->len == 0)
+        return;
+    if (fmpz_is_one(q)) {
+        pcp_collect_word(W, u, w);
+        return;
+    }
+    if (fmpz_equal_si(q, -1)) {
+        pcp_collect_word(W, u, winv);
+        return;
+    }
+    slong n = W->P->n;
+    fmpz *x = _fmpz_vec_init(n);
+    pcw_t t;
+    pcw_init(t);
+    pcw_get_vec(x, n, w);
+    pcp_elt_pow(W, x, x, q);
+    pcw_set_vec(t, x, n);
+    pcp_collect_word(W, u, t);
+    pcw_clear(t);
+    _fmpz_vec_clear(x, n);
+}
+
+/* u_i += e, carrying through the power relation of a finite a_i.  Entries
+ * of u beyond i are put back after the carried power word. */
+static void add_power(pcp_work_t W, fmpz *u, slong i, const fmpz_t e)
+{
+    const pcp_struct *P = W->P;
+    fmpz_add(u + i, u + i, e);
+    const fmpz *m = P->relorder + i;
+    if (fmpz_is_zero(m) || (fmpz_sgn(u + i) >= 0 && fmpz_cmp(u + i, m) < 0))
+        return;
+    fmpz_t q;
+    pcw_t T;
+    fmpz_init(q);
+    pcw_init(T);
+    fmpz_fdiv_qr(q, u + i, u + i, m);
+    take_tail(T, u, i, P->n);
+    collect_word_pow(W, u, P->pow + i, P->powinv + i, q);
+    pcp_collect_word(W, u, T);
+    pcw_clear(T);
+    fmpz_clear(q);
+}
+
+/* out := y^(a_i^e) for y in the subgroup of generators > i (y is a vector
+ * of length n with zeros up to i), by the automorphisms
+ * phi_b = conjugation by a_i^(sign e * 2^b), each the square of the last. */
+static void conj_by_power(pcp_work_t W, fmpz *out, const fmpz *y, slong i, const fmpz_t e)
+{
+    const pcp_struct *P = W->P;
+    slong n = P->n, cf = P->commute_from[i];
+    slong lo = i + 1, cnt = cf - lo;
+    int neg = fmpz_sgn(e) < 0;
+    fmpz_t E;
+    fmpz_init(E);
+    fmpz_abs(E, e);
+    fmpz *phi = _fmpz_vec_init(cnt * n);
+    fmpz *nphi = _fmpz_vec_init(cnt * n);
+    fmpz *res = _fmpz_vec_init(n);
+    fmpz *acc = _fmpz_vec_init(n);
+    fmpz *pw = _fmpz_vec_init(n);
+    for (slong l = lo; l < cf; l++) {
+        fmpz *row = phi + (l - lo) * n;
+        if (l < P->ncore && !P->trivial[pcp_slot(l, i)])
+            pcw_get_vec(row, n, neg ? P->conjm + pcp_slot(l, i) : P->conj + pcp_slot(l, i));
+        else
+            fmpz_one(row + l);
+    }
+    _fmpz_vec_set(res, y, n);
+    slong bits = fmpz_bits(E);
+    for (slong b = 0; b < bits && !W->overflow; b++) {
+        /* apply(phi, v) = prod_l phi[l]^(v_l) */
+        if (fmpz_tstbit(E, b)) {
+            _fmpz_vec_zero(acc, n);
+            for (slong l = lo; l < n; l++) {
+                if (fmpz_is_zero(res + l))
+                    continue;
+                if (l >= cf)
+                    pcp_collect_gen(W, acc, l, res + l);
+                else {
+                    pcp_elt_pow(W, pw, phi + (l - lo) * n, res + l);
+                    pcp_elt_mul(W, acc, acc, pw);
+                }
+            }
+            _fmpz_vec_swap(res, acc, n);
+        }
+        if (b + 1 < bits) {
+            for (slong m = lo; m < cf; m++) {
+                const fmpz *v = phi + (m - lo) * n;
+                fmpz *dst = nphi + (m - lo) * n;
+                _fmpz_vec_zero(dst, n);
+                for (slong l = lo; l < n; l++) {
+                    if (fmpz_is_zero(v + l))
+                        continue;
+                    if (l >= cf)
+                        pcp_collect_gen(W, dst, l, v + l);
+                    else {
+                        pcp_elt_pow(W, pw, phi + (l - lo) * n, v + l);
+                        pcp_elt_mul(W, dst, dst, pw);
+                    }
+                }
+            }
+            fmpz *t = phi;
+            phi = nphi;
+            nphi = t;
+        }
+    }
+    _fmpz_vec_set(out, res, n);
+    _fmpz_vec_clear(phi, cnt * n);
+    _fmpz_vec_clear(nphi, cnt * n);
+    _fmpz_vec_clear(res, n);
+    _fmpz_vec_clear(acc, n);
+    _fmpz_vec_clear(pw, n);
+    fmpz_clear(E);
+}
+
+void pcp_collect_gen(pcp_work_t W, fmpz *u, slong i, const fmpz_t e)
+{
+    const pcp_struct *P = W->P;
+    if (fmpz_is_zero(e) || work_tick(W))
+        return;
+    slong n = P->n, cf = P->commute_from[i];
+    int tail = 0;
+    for (slong k = i + 1; k < cf; k++)
+        if (!fmpz_is_zero(u + k)) {
+            tail = 1;
+            break;
+        }
+    if (!tail) {
+        add_power(W, u, i, e);
+        return;
+    }
+    /* u = head a_i^(u_i) T, and T a_i^e = a_i^e T^(a_i^e). */
+    pcw_t T;
+    pcw_init(T);
+    take_tail(T, u, i, n);
+    add_power(W, u, i, e);
+    if (fmpz_is_pm1(e)) {
+        int neg = fmpz_sgn(e) < 0;
+        for (slong t = 0; t < T->len && !W->overflow; t++) {
+            slong k = T->gen[t];
+            const fmpz *x = T->exp + t;
+            if (k >= cf || P->trivial[pcp_slot(k, i)]) {
+                pcp_collect_gen(W, u, k, x);
+                continue;
+            }
+            slong s = pcp_slot(k, i);
+            const pcw_struct *w;
+            if (fmpz_sgn(x) > 0)
+                w = neg ? P->conjm + s : P->conj + s;
+            else
+                w = neg ? P->conjminv + s : P->conjinv + s;
+            if (fmpz_is_pm1(x))
+                pcp_collect_word(W, u, w);
+            else {
+                fmpz_t ax;
+                fmpz_init(ax);
+                fmpz_abs(ax, x);
+                const pcw_struct *wi;
+                if (fmpz_sgn(x) > 0)
+                    wi = neg ? P->conjminv + s : P->conjinv + s;
+                else
+                    wi = neg ? P->conjm + s : P->conj + s;
+                collect_word_pow(W, u, w, wi, ax);
+                fmpz_clear(ax);
+            }
+        }
+    } else {
+        fmpz *y = _fmpz_vec_init(n);
+        pcw_get_vec(y, n, T);
+        conj_by_power(W, y, y, i, e);
+        pcw_set_vec(T, y, n);
+        pcp_collect_word(W, u, T);
+        _fmpz_vec_clear(y, n);
+    }
+    pcw_clear(T);
+}
+
+void pcp_collect_word(pcp_work_t W, fmpz *u, const pcw_t w)
+{
+    for (slong k = 0; k < w->len && !W->overflow; k++)
+        pcp_collect_gen(W, u, w->gen[k], w->exp + k);
+}
+
+/* ------------------------------------------------------------- elements */
+
+void pcp_elt_mul(pcp_work_t W, fmpz *out, const fmpz *u, const fmpz *v)
+{
+    slong n = W->P->n;
+    pcw_t t;
+    pcw_init(t);
+    pcw_set_vec(t, v, n);
+    if (out != u)
+        _fmpz_vec_set(out, u, n);
+    pcp_collect_word(W, out, t);
+    pcw_clear(t);
+}
+
+void pcp_elt_inv(pcp_work_t W, fmpz *out, const fmpz *u)
+{
+    /* u^-1 = a_(n-1)^(-u_(n-1)) ... a_0^(-u_0), collected from the left:
+     * each step conjugates the part beyond k by a power of a_k. */
+    slong n = W->P->n;
+    fmpz *r = _fmpz_vec_init(n);
+    fmpz_t e;
+    fmpz_init(e);
+    for (slong k = n - 1; k >= 0 && !W->overflow; k--) {
+        if (fmpz_is_zero(u + k))
+            continue;
+        fmpz_neg(e, u + k);
+        pcp_collect_gen(W, r, k, e);
+    }
+    _fmpz_vec_set(out, r, n);
+    fmpz_clear(e);
+    _fmpz_vec_clear(r, n);
+}
+
+void pcp_elt_pow(pcp_work_t W, fmpz *out, const fmpz *u, const fmpz_t e)
+{
+    slong n = W->P->n;
+    fmpz *base = _fmpz_vec_init(n);
+    fmpz *res = _fmpz_vec_init(n);
+    fmpz_t E;
+    fmpz_init(E);
+    fmpz_abs(E, e);
+    if (fmpz_sgn(e) < 0)
+        pcp_elt_inv(W, base, u);
+    else
+        _fmpz_vec_set(base, u, n);
+    /* A single generator to a power is one collection step:
+     * (a_g^x)^e = a_g^(x e) in any group. */
+    slong nz = 0, g = -1;
+    for (slong k = 0; k < n; k++)
+        if (!fmpz_is_zero(u + k)) {
+            nz++;
+            g = k;
+        }
+    if (nz == 1) {
+        fmpz_mul(E, u + g, e);
+        pcp_collect_gen(W, res, g, E);
+    } else {
+        slong bits = fmpz_bits(E);
+        for (slong b = bits - 1; b >= 0 && !W->overflow; b--) {
+            pcp_elt_mul(W, res, res, res);
+            if (fmpz_tstbit(E, b))
+                pcp_elt_mul(W, res, res, base);
+        }
+    }
+    _fmpz_vec_set(out, res, n);
+    fmpz_clear(E);
+    _fmpz_vec_clear(base, n);
+    _fmpz_vec_clear(res, n);
+}
+
+void pcp_elt_comm(pcp_work_t W, fmpz *out, const fmpz *u, const fmpz *v)
+{
+    /* [u,v] = (v u)^-1 (u v) */
+    slong n = W->P->n;
+    fmpz *uv = _fmpz_vec_init(n);
+    fmpz *vu = _fmpz_vec_init(n);
+    pcp_elt_mul(W, uv, u, v);
+    pcp_elt_mul(W, vu, v, u);
+    pcp_elt_inv(W, vu, vu);
+    pcp_elt_mul(W, out, vu, uv);
+    _fmpz_vec_clear(uv, n);
+    _fmpz_vec_clear(vu, n);
+}
+
+void pcp_elt_conj(pcp_work_t W, fmpz *out, const fmpz *u, const fmpz *v)
+{
+    slong n = W->P->n;
+    fmpz *vi = _fmpz_vec_init(n);
+    fmpz *t = _fmpz_vec_init(n);
+    pcp_elt_inv(W, vi, v);
+    pcp_elt_mul(W, t, vi, u);
+    pcp_elt_mul(W, out, t, v);
+    _fmpz_vec_clear(vi, n);
+    _fmpz_vec_clear(t, n);
+}
+
+int pcp_eval_expr(pcp_work_t W, fmpz *out, const expr_node *e, const fmpz *images)
+{
+    slong n = W->P->n;
+    switch (e->kind) {
+    case EXPR_ONE:
+        _fmpz_vec_zero(out, n);
+        break;
+    case EXPR_GEN:
+        _fmpz_vec_set(out, images + e->gen * n, n);
+        break;
+    case EXPR_POW: {
+        fmpz *x = _fmpz_vec_init(n);
+        pcp_eval_expr(W, x, e->kids[0], images);
+        pcp_elt_pow(W, out, x, e->exp);
+        _fmpz_vec_clear(x, n);
+        break;
+    }
+    case EXPR_MUL:
+    case EXPR_COMM:
+    case EXPR_CONJ: {
+        fmpz *acc = _fmpz_vec_init(n);
+        fmpz *x = _fmpz_vec_init(n);
+        pcp_eval_expr(W, acc, e->kids[0], images);
+        for (slong k = 1; k < e->nkids && !W->overflow; k++) {
+            pcp_eval_expr(W, x, e->kids[k], images);
+            if (e->kind == EXPR_MUL)
+                pcp_elt_mul(W, acc, acc, x);
+            else if (e->kind == EXPR_COMM)
+                pcp_elt_comm(W, acc, acc, x);
+            else
+                pcp_elt_conj(W, acc, acc, x);
+        }
+        _fmpz_vec_set(out, acc, n);
+        _fmpz_vec_clear(acc, n);
+        _fmpz_vec_clear(x, n);
+        break;
+    }
+    }
+    return W->overflow;
+}
+
+/* ---------------------------------------------------------- completion */
+
+/* out := y^(a_i) for y in the subgroup beyond i, using only the forward
+ * tables (the backward ones are what pcp_complete is building). */
+static void conj_once(pcp_work_t W, fmpz *out, const fmpz *y, slong i)
+{
+    fmpz_t e;
+    fmpz_init_set_si(e, 1);
+    slong n = W->P->n;
+    fmpz *t = _fmpz_vec_init(n);
+    /* y a_i = a_i y^(a_i): collect y a_i and drop the a_i part (m_i >= 2,
+     * so no power relation fires). */
+    _fmpz_vec_set(t, y, n);
+    pcp_collect_gen(W, t, i, e);
+    fmpz_zero(t + i);
+    _fmpz_vec_set(out, t, n);
+    _fmpz_vec_clear(t, n);
+    fmpz_clear(e);
+}
+
+int pcp_complete(pcp_t P, pcp_work_t W)
+{
+    slong n = P->n;
+    fmpz *y = _fmpz_vec_init(n);
+    fmpz *z = _fmpz_vec_init(n);
+    fmpz *ak = _fmpz_vec_init(n);
+    for (slong i = n - 1; i >= 0 && !W->overflow; i--) {
+        if (!fmpz_is_zero(P->relorder + i)) {
+            pcw_get_vec(y, n, P->pow + i);
+            pcp_elt_inv(W, y, y);
+            pcw_set_vec(P->powinv + i, y, n);
+        }
+        if (i >= P->ncore)
+            continue;
+        for (slong k = i + 1; k < P->ncore; k++) {
+            slong s = pcp_slot(k, i);
+            if (P->trivial[s])
+                continue;
+            pcw_get_vec(y, n, P->conj + s);
+            pcp_elt_inv(W, y, y);
+            pcw_set_vec(P->conjinv + s, y, n);
+        }
+        /* a_k^(a_i^-1): the y with y^(a_i) = a_k; conjugation by a_i is the
+         * identity modulo higher weight, so y <- y (y^(a_i))^-1 a_k gains a
+         * weight each round. */
+        for (slong k = i + 1; k < P->ncore; k++) {
+            slong s = pcp_slot(k, i);
+            if (P->trivial[s])
+                continue;
+            _fmpz_vec_zero(ak, n);
+            fmpz_one(ak + k);
+            _fmpz_vec_set(y, ak, n);
+            for (slong round = 0; round <= P->maxweight + 1 && !W->overflow; round++) {
+                conj_once(W, z, y, i);
+                if (_fmpz_vec_equal(z, ak, n))
+                    break;
+                pcp_elt_inv(W, z, z);
+                pcp_elt_mul(W, y, y, z);
+                pcp_elt_mul(W, y, y, ak);
+            }
+            pcw_set_vec(P->conjm + s, y, n);
+            pcp_elt_inv(W, y, y);
+            pcw_set_vec(P->conjminv + s, y, n);
+        }
+    }
+    _fmpz_vec_clear(y, n);
+    _fmpz_vec_clear(z, n);
+    _fmpz_vec_clear(ak, n);
+    return W->overflow;
+}
+
+/* ------------------------------------------------------------- output */
+
+char *pcp_elt_get_str(const pcp_t P, const fmpz *u, char *const *names)
+{
+    size_t cap = 64, len = 0;
+    char *s = flint_malloc(cap);
+    s[0] = '\0';
+    for (slong k = 0; k < P->n; k++) {
+        if (fmpz_is_zero(u + k))
+            continue;
+        char *e = fmpz_get_str(NULL, 10, u + k);
+        size_t need = len + strlen(names[k]) + strlen(e) + 4;
+        if (need >= cap) {
+            cap = 2 * need;
+            s = flint_realloc(s, cap);
+        }
+        len += (size_t)sprintf(s + len, "%s%s", len ? " " : "", names[k]);
+        if (!fmpz_is_one(u + k))
+            len += (size_t)sprintf(s + len, "^%s", e);
+        flint_free(e);
+    }
+    if (len == 0)
+        strcpy(s, "1");
+    return s;
+}
+
+/* ---------------------------------------------------------- consistency */
+
+int pcp_consistency_run(const pcp_t P, pcp_work_t W, pcp_consistency_fn fn, void *ctx)
+{
+    slong n = P->n, c = P->maxweight;
+    fmpz *l = _fmpz_vec_init(n), *r = _fmpz_vec_init(n), *v = _fmpz_vec_init(n);
+    fmpz_t one, mone, e;
+    fmpz_init_set_si(one, 1);
+    fmpz_init_set_si(mone, -1);
+    fmpz_init(e);
+    pcw_t t;
+    pcw_init(t);
+    int stop = 0;
+#define UNIT(x, g) (_fmpz_vec_zero(x, n), fmpz_one((x) + (g)))
+#define CHECK() (stop = W->overflow || fn(ctx, l, r))
+    for (slong i = 0; i < n && !stop; i++) {
+        for (slong j = i + 1; j < n && !stop; j++) {
+            if (P->weight[i] + P->weight[j] > c)
+                break;
+            /* (a_k a_j) a_i = a_k (a_j a_i), k > j > i */
+            for (slong k = j + 1; k < n && !stop; k++) {
+                if (P->weight[i] + P->weight[j] + P->weight[k] > c)
+                    break;
+                UNIT(l, k);
+                pcp_collect_gen(W, l, j, one);
+                pcp_collect_gen(W, l, i, one);
+                UNIT(v, j);
+                pcp_collect_gen(W, v, i, one);
+                pcw_set_vec(t, v, n);
+                UNIT(r, k);
+                pcp_collect_word(W, r, t);
+                CHECK();
+            }
+            /* (a_j^(m_j-1) a_j) a_i = a_j^(m_j-1) (a_j a_i) */
+            if (!stop && !fmpz_is_zero(P->relorder + j)) {
+                pcw_get_vec(l, n, P->pow + j);
+                pcp_collect_gen(W, l, i, one);
+                _fmpz_vec_zero(r, n);
+                fmpz_sub_ui(r + j, P->relorder + j, 1);
+                UNIT(v, j);
+                pcp_collect_gen(W, v, i, one);
+                pcw_set_vec(t, v, n);
+                pcp_collect_word(W, r, t);
+                CHECK();
+            }
+            /* (a_j a_i^(m_i-1)) a_i = a_j (a_i^(m_i-1) a_i) */
+            if (!stop && !fmpz_is_zero(P->relorder + i)) {
+                UNIT(l, j);
+                fmpz_sub_ui(e, P->relorder + i, 1);
+                pcp_collect_gen(W, l, i, e);
+                pcp_collect_gen(W, l, i, one);
+                UNIT(r, j);
+                pcp_collect_word(W, r, P->pow + i);
+                CHECK();
+            }
+            /* (a_j a_i^-1) a_i = a_j for infinite a_i */
+            if (!stop && fmpz_is_zero(P->relorder + i)) {
+                UNIT(l, j);
+                pcp_collect_gen(W, l, i, mone);
+                pcp_collect_gen(W, l, i, one);
+                UNIT(r, j);
+                CHECK();
+            }
+        }
+        /* (a_i^(m_i-1) a_i) a_i = a_i (a_i^(m_i-1) a_i) */
+        if (!stop && !fmpz_is_zero(P->relorder + i) && 2 * P->weight[i] <= c) {
+            pcw_get_vec(l, n, P->pow + i);
+            pcp_collect_gen(W, l, i, one);
+            UNIT(r, i);
+            pcp_collect_word(W, r, P->pow + i);
+            CHECK();
+        }
+    }
+#undef UNIT
+#undef CHECK
+    int status = W->overflow ? -1 : stop ? 1 : 0;
+    pcw_clear(t);
+    fmpz_clear(one);
+    fmpz_clear(mone);
+    fmpz_clear(e);
+    _fmpz_vec_clear(l, n);
+    _fmpz_vec_clear(r, n);
+    _fmpz_vec_clear(v, n);
+    return status;
+}
+
+static int differ(void *ctx, const fmpz *l, const fmpz *r)
+{
+    return !_fmpz_vec_equal(l, r, *(const slong *)ctx);
+}
+
+int pcp_is_consistent(const pcp_t P, pcp_work_t W)
+{
+    slong n = P->n;
+    return pcp_consistency_run(P, W, differ, &n) == 0;
+}
