@@ -1,0 +1,125 @@
+/* analysis.h — everything nilstep shows about a group and a map, computed
+ * once and kept as plain data for the report writers and the explorer.
+ *
+ * Two stages, so that editing a generator image never re-runs the nilpotent
+ * quotient algorithm:
+ *   analysis_set_group  — parses nothing; runs the nilpotent quotient of
+ *                         the presentation to the class (slow, cancellable);
+ *   analysis_set_map    — images of the generators; validity, layer
+ *                         matrices, spectra, bounds and invariants (fast).
+ * All strings are owned by the analysis and stay valid until the next
+ * analysis_set_* or analysis_clear. */
+#ifndef NILSTEP_ANALYSIS_H
+#define NILSTEP_ANALYSIS_H
+
+#include <flint/fmpz_mat.h>
+#include "nq.h"
+#include "pres.h"
+
+#define ANALYSIS_DIGITS 30 /* significant digits of the decimal strings */
+
+typedef struct {
+    /* the layer as a group */
+    slong weight;
+    slong npc;             /* pc generators of this layer */
+    slong free_rank;
+    slong ntors;
+    fmpz *torsion;         /* invariant factors d_1 | d_2 | ... (> 1) */
+    char *group_str;       /* "Z^5", "Z^2 + Z/2 + Z/4", "0" */
+    char **basis;          /* free_rank labels of the free-part basis, e.g. "[b,a,a]" */
+    /* the map on it (only when the analysis has a valid map) */
+    fmpz_mat_t matrix;     /* free_rank x free_rank; column k = image of basis k */
+    fmpz_mat_t action;     /* npc x npc: images of the layer's pc generators,
+                              modulo the layer's power relations */
+    char *charpoly_str;    /* "x^2 - 3*x + 1" */
+    char *charpoly_factored_str; /* "(x - 1)^2*(x^2 - 3*x + 1)" */
+    char *charpoly_latex;  /* the factored form in LaTeX */
+    fmpz *charpoly;        /* free_rank + 1 coefficients, constant term first */
+    char *rho_str;         /* spectral radius, ANALYSIS_DIGITS digits ("0" exactly) */
+    char *rho_minpoly_str; /* minimal polynomial of rho, or NULL if not computed */
+    char *root_bound_str;  /* rho^(1/weight) */
+    fmpz_t det;            /* det M */
+    fmpz_t det_i_minus;    /* det(I - M) */
+    slong nev;
+    char **ev_str;         /* nev eigenvalues (with multiplicity), decreasing modulus */
+    char **ev_abs_str;     /* their moduli */
+    slong n_unimodular;    /* eigenvalues with |lambda| = 1, decided exactly */
+    slong n_above_one;     /* |lambda| > 1 */
+    char *entropy_str;     /* sum of log|lambda| over |lambda| > 1 */
+} analysis_layer_struct;
+
+typedef enum {
+    ANALYSIS_REID_UNDEFINED = 0,
+    ANALYSIS_REID_FINITE,
+    ANALYSIS_REID_INFINITE
+} analysis_reid_kind;
+
+typedef struct {
+    /* group stage */
+    int has_group;
+    nq_t nq;                     /* the class-c quotient (owns a copy of the presentation) */
+    slong class_requested;
+    slong nlayers;               /* = class_requested (trivial layers included) */
+    analysis_layer_struct *layers;
+    int layers_torsion_free;     /* every layer torsion-free */
+
+    /* map stage */
+    int has_map;
+    expr_struct *images;         /* generator images, nq->pres->gens.n of them */
+    char *map_str;               /* the map printed back */
+    int valid;                   /* images define an endomorphism of the class-c quotient */
+    slong nfail;
+    char **fail_relator;         /* the relators whose images are not trivial */
+    char **fail_image;           /* ... and their images as normal words */
+    char **gen_image_str;        /* the images as normal words in the pc labels */
+
+    /* bounds and growth (valid map only) */
+    char *lower_bound_str;       /* max_j rho_j^(1/j) */
+    slong lower_layer;           /* a layer attaining it (1-based) */
+    char *upper_bound_str;       /* max_j rho_j */
+    slong upper_layer;
+    char *growth_str;            /* the exact growth rate */
+    const char *growth_reason;   /* one line: why that value (static text) */
+    char *log_growth_str;        /* log of the growth rate, or NULL when it is 0 */
+
+    /* invariants (valid map only); undefined_reason is NULL when the
+     * quotient's layers are torsion-free and the numbers are defined */
+    const char *undefined_reason;
+    char *entropy_str;
+    int lefschetz_defined;
+    fmpz_t lefschetz;
+    fmpz_t nielsen;
+    analysis_reid_kind reid_kind;
+    fmpz_t reidemeister;
+    int automorphism;            /* surjective on the whole abelianisation */
+    int injective;               /* det M_j != 0 for all j (torsion-free case) */
+    int index_defined;
+    fmpz_t image_index;          /* prod |det M_j| when injective */
+    int hyperbolic;              /* no |lambda| = 1 in any layer */
+    int expanding;               /* all |lambda| > 1 in every layer */
+} analysis_struct;
+typedef analysis_struct analysis_t[1];
+
+void analysis_init(analysis_t A);
+void analysis_clear(analysis_t A);
+
+/* Runs the nilpotent quotient of G to class c and reads the layers; drops
+ * any map.  On error (limit, cancel) A is left without a group. */
+ns_status analysis_set_group(analysis_t A, const pres_t G, slong c, const ns_progress_t *progress,
+                             nserr_t err);
+
+/* Parses the map text (pres_parse_map coordinates: the text starts at line,
+ * col) and analyses it.  A syntax error leaves the previous map in place and
+ * returns NS_ERR_SYNTAX with the location.  A map that is not well defined
+ * is not an error: valid = 0 and the failing relators are listed. */
+ns_status analysis_set_map_text(analysis_t A, const char *text, int line, int col,
+                                const ns_progress_t *progress, nserr_t err);
+
+/* The same from parsed images (copied). */
+ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_progress_t *progress,
+                           nserr_t err);
+
+/* Forgets the map. */
+void analysis_clear_map(analysis_t A);
+
+#endif
