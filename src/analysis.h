@@ -13,8 +13,11 @@
 #define NILSTEP_ANALYSIS_H
 
 #include <flint/fmpz_mat.h>
+#include "endo.h"
+#include "layer.h"
 #include "nq.h"
 #include "pres.h"
+#include "spectrum.h"
 
 #define ANALYSIS_DIGITS 30 /* significant digits of the decimal strings */
 
@@ -46,6 +49,8 @@ typedef struct {
     slong n_unimodular;    /* eigenvalues with |lambda| = 1, decided exactly */
     slong n_above_one;     /* |lambda| > 1 */
     char *entropy_str;     /* sum of log|lambda| over |lambda| > 1 */
+    spectrum_t spectrum;   /* the full spectral data of matrix */
+    layer_t lcs;           /* coordinates on the free part (internal) */
 } analysis_layer_struct;
 
 typedef enum {
@@ -65,6 +70,7 @@ typedef struct {
 
     /* map stage */
     int has_map;
+    endo_t endo;                 /* the map on the quotient (internal) */
     expr_struct *images;         /* generator images, nq->pres->gens.n of them */
     char *map_str;               /* the map printed back */
     int valid;                   /* images define an endomorphism of the class-c quotient */

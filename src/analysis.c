@@ -1,0 +1,450 @@
+/* analysis.c — see analysis.h.  The growth-rate argument is written out
+ * in the README ("Why the growth rate is rho_1"). */
+#include <stdlib.h>
+#include <string.h>
+#include "analysis.h"
+#include "elim.h"
+
+/* A malloc copy of a flint_malloc string, freeing the original. */
+static char *own(char *s)
+{
+    char *t = malloc(strlen(s) + 1);
+    strcpy(t, s);
+    flint_free(s);
+    return t;
+}
+
+static char *dup_str(const char *s)
+{
+    char *t = malloc(strlen(s) + 1);
+    strcpy(t, s);
+    return t;
+}
+
+static void free_strs(char **v, slong n)
+{
+    if (!v)
+        return;
+    for (slong k = 0; k < n; k++)
+        free(v[k]);
+    free(v);
+}
+
+static void layer_map_clear(analysis_layer_struct *L)
+{
+    free(L->charpoly_str);
+    free(L->charpoly_factored_str);
+    free(L->charpoly_latex);
+    free(L->rho_str);
+    free(L->rho_minpoly_str);
+    free(L->root_bound_str);
+    free(L->entropy_str);
+    free_strs(L->ev_str, L->nev);
+    free_strs(L->ev_abs_str, L->nev);
+    if (L->charpoly)
+        _fmpz_vec_clear(L->charpoly, L->free_rank + 1);
+    L->charpoly_str = L->charpoly_factored_str = L->charpoly_latex = NULL;
+    L->rho_str = L->rho_minpoly_str = L->root_bound_str = L->entropy_str = NULL;
+    L->ev_str = L->ev_abs_str = NULL;
+    L->charpoly = NULL;
+    L->nev = 0;
+    L->n_unimodular = L->n_above_one = 0;
+    fmpz_mat_clear(L->matrix);
+    fmpz_mat_clear(L->action);
+    fmpz_mat_init(L->matrix, 0, 0);
+    fmpz_mat_init(L->action, 0, 0);
+    fmpz_zero(L->det);
+    fmpz_zero(L->det_i_minus);
+    spectrum_clear(L->spectrum);
+    spectrum_init(L->spectrum);
+}
+
+void analysis_clear_map(analysis_t A)
+{
+    slong X = A->has_group ? A->nq->pres->gens->n : 0;
+    if (A->images) {
+        for (slong x = 0; x < X; x++)
+            expr_clear(A->images + x);
+        flint_free(A->images);
+    }
+    A->images = NULL;
+    free(A->map_str);
+    A->map_str = NULL;
+    free_strs(A->fail_relator, A->nfail);
+    free_strs(A->fail_image, A->nfail);
+    free_strs(A->gen_image_str, A->gen_image_str ? X : 0);
+    A->fail_relator = A->fail_image = A->gen_image_str = NULL;
+    A->nfail = 0;
+    A->has_map = A->valid = 0;
+    free(A->lower_bound_str);
+    free(A->upper_bound_str);
+    free(A->growth_str);
+    free(A->log_growth_str);
+    free(A->entropy_str);
+    A->lower_bound_str = A->upper_bound_str = A->growth_str = NULL;
+    A->log_growth_str = A->entropy_str = NULL;
+    A->lower_layer = A->upper_layer = 0;
+    A->growth_reason = NULL;
+    A->undefined_reason = NULL;
+    A->lefschetz_defined = A->index_defined = 0;
+    A->reid_kind = ANALYSIS_REID_UNDEFINED;
+    fmpz_zero(A->lefschetz);
+    fmpz_zero(A->nielsen);
+    fmpz_zero(A->reidemeister);
+    fmpz_zero(A->image_index);
+    A->automorphism = A->injective = A->hyperbolic = A->expanding = 0;
+    endo_clear(A->endo);
+    for (slong j = 0; j < A->nlayers; j++)
+        layer_map_clear(A->layers + j);
+}
+
+static void clear_group(analysis_t A)
+{
+    analysis_clear_map(A);
+    for (slong j = 0; j < A->nlayers; j++) {
+        analysis_layer_struct *L = A->layers + j;
+        if (L->ntors)
+            _fmpz_vec_clear(L->torsion, L->ntors);
+        free(L->group_str);
+        free_strs(L->basis, L->free_rank);
+        fmpz_mat_clear(L->matrix);
+        fmpz_mat_clear(L->action);
+        fmpz_clear(L->det);
+        fmpz_clear(L->det_i_minus);
+        spectrum_clear(L->spectrum);
+        layer_clear(L->lcs);
+    }
+    free(A->layers);
+    A->layers = NULL;
+    A->nlayers = 0;
+    A->has_group = 0;
+    nq_clear(A->nq);
+}
+
+void analysis_init(analysis_t A)
+{
+    memset(A, 0, sizeof(analysis_struct));
+    nq_init(A->nq);
+    endo_init(A->endo);
+    fmpz_init(A->lefschetz);
+    fmpz_init(A->nielsen);
+    fmpz_init(A->reidemeister);
+    fmpz_init(A->image_index);
+}
+
+void analysis_clear(analysis_t A)
+{
+    clear_group(A);
+    endo_clear(A->endo);
+    nq_clear(A->nq);
+    fmpz_clear(A->lefschetz);
+    fmpz_clear(A->nielsen);
+    fmpz_clear(A->reidemeister);
+    fmpz_clear(A->image_index);
+}
+
+/* "Z^2 + Z/2 + Z/4", "Z", "0" */
+static char *group_string(slong r, const fmpz *tors, slong nt)
+{
+    size_t cap = 32, len = 0;
+    char *s = malloc(cap);
+    s[0] = '\0';
+    if (r > 0)
+        len = (size_t)(r == 1 ? sprintf(s, "Z") : sprintf(s, "Z^%ld", (long)r));
+    for (slong t = 0; t < nt; t++) {
+        char *d = fmpz_get_str(NULL, 10, tors + t);
+        size_t need = len + strlen(d) + 8;
+        if (need > cap) {
+            cap = 2 * need;
+            s = realloc(s, cap);
+        }
+        len += (size_t)sprintf(s + len, "%sZ/%s", len ? " + " : "", d);
+        flint_free(d);
+    }
+    if (len == 0)
+        strcpy(s, "0");
+    return s;
+}
+
+ns_status analysis_set_group(analysis_t A, const pres_t G, slong c, const ns_progress_t *progress,
+                             nserr_t err)
+{
+    clear_group(A);
+    ns_status st = nq_compute(A->nq, G, c, progress, err);
+    if (st != NS_OK)
+        return st;
+    A->has_group = 1;
+    A->class_requested = c;
+    A->nlayers = c;
+    A->layers = calloc((size_t)c, sizeof(analysis_layer_struct));
+    A->layers_torsion_free = 1;
+    for (slong j = 1; j <= c; j++) {
+        analysis_layer_struct *L = A->layers + j - 1;
+        L->weight = j;
+        fmpz_mat_init(L->matrix, 0, 0);
+        fmpz_mat_init(L->action, 0, 0);
+        fmpz_init(L->det);
+        fmpz_init(L->det_i_minus);
+        spectrum_init(L->spectrum);
+        layer_init(L->lcs);
+        if (j <= A->nq->class_reached) {
+            const nq_layer_struct *N = A->nq->layers + j - 1;
+            L->npc = N->count;
+            L->free_rank = N->free_rank;
+            L->ntors = N->ntors;
+            if (N->ntors) {
+                L->torsion = _fmpz_vec_init(N->ntors);
+                _fmpz_vec_set(L->torsion, N->torsion, N->ntors);
+                A->layers_torsion_free = 0;
+            }
+            layer_compute(L->lcs, A->nq, j);
+            L->basis = malloc(FLINT_MAX(L->free_rank, 1) * sizeof(char *));
+            for (slong k = 0; k < L->free_rank; k++)
+                L->basis[k] = dup_str(L->lcs->basis[k]);
+        }
+        L->group_str = group_string(L->free_rank, L->torsion, L->ntors);
+    }
+    return NS_OK;
+}
+
+ns_status analysis_set_map_text(analysis_t A, const char *text, int line, int col,
+                                const ns_progress_t *progress, nserr_t err)
+{
+    if (!A->has_group)
+        return nserr_set(err, NS_ERR_INPUT, line, col, "no group to map");
+    slong X = A->nq->pres->gens->n;
+    expr_struct *im = flint_malloc(FLINT_MAX(X, 1) * sizeof(expr_struct));
+    for (slong x = 0; x < X; x++)
+        expr_init(im + x);
+    ns_status st = pres_parse_map(im, A->nq->pres, text, line, col, err);
+    if (st == NS_OK)
+        st = analysis_set_map(A, im, progress, err);
+    for (slong x = 0; x < X; x++)
+        expr_clear(im + x);
+    flint_free(im);
+    return st;
+}
+
+/* 1 if the map induced on the whole layer (torsion included) is nilpotent:
+ * the free part is nilpotent by assumption, so some power A^N with N the
+ * number of generators plus the number of prime factors of the torsion
+ * order kills the layer if anything does. */
+static int layer_map_nilpotent(const analysis_layer_struct *L)
+{
+    slong cnt = L->lcs->count;
+    if (cnt == 0)
+        return 1;
+    slong N = cnt + 1;
+    for (slong t = 0; t < L->ntors; t++)
+        N += fmpz_bits(L->torsion + t);
+    fmpz_mat_t P;
+    fmpz_mat_init(P, cnt, cnt);
+    fmpz_mat_pow(P, L->action, (ulong)N);
+    int nil = 1;
+    fmpz *v = _fmpz_vec_init(cnt);
+    for (slong k = 0; k < cnt && nil; k++) {
+        for (slong i = 0; i < cnt; i++)
+            fmpz_set(v + i, fmpz_mat_entry(P, i, k));
+        nil = layer_is_trivial_vec(L->lcs, v);
+    }
+    _fmpz_vec_clear(v, cnt);
+    fmpz_mat_clear(P);
+    return nil;
+}
+
+/* Surjective on the layer Z^cnt / rel: the images and the relations
+ * together span Z^cnt, i.e. every column gets pivot 1. */
+static int layer_map_onto(const analysis_layer_struct *L)
+{
+    slong cnt = L->lcs->count;
+    if (cnt == 0)
+        return 1;
+    elim_t E;
+    elim_init(E, cnt);
+    fmpz *v = _fmpz_vec_init(cnt);
+    for (slong k = 0; k < cnt; k++) {
+        for (slong i = 0; i < cnt; i++)
+            fmpz_set(v + i, fmpz_mat_entry(L->action, i, k));
+        elim_add_dense(E, v);
+    }
+    for (slong k = 0; k < L->lcs->nfinite; k++)
+        elim_add_dense(E, L->lcs->rel->rows[k]);
+    int onto = 1;
+    for (slong k = 0; k < cnt; k++)
+        if (!fmpz_is_one(elim_pivot(E, k)))
+            onto = 0;
+    _fmpz_vec_clear(v, cnt);
+    elim_clear(E);
+    return onto;
+}
+
+static char *arb_str(const arb_t x)
+{
+    char *s = spectrum_ball_get_str(x, ANALYSIS_DIGITS);
+    return s ? s : dup_str("(not certified)");
+}
+
+ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_progress_t *progress,
+                           nserr_t err)
+{
+    if (!A->has_group)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "no group to map");
+    analysis_clear_map(A);
+    const nq_struct *Q = A->nq;
+    slong X = Q->pres->gens->n, n = Q->pcp->n, c = Q->class_reached;
+    A->images = flint_malloc(FLINT_MAX(X, 1) * sizeof(expr_struct));
+    for (slong x = 0; x < X; x++) {
+        expr_init(A->images + x);
+        expr_set(A->images + x, images + x);
+    }
+    A->has_map = 1;
+    A->map_str = own(pres_get_map_str(images, Q->pres));
+    ns_status st = endo_set(A->endo, Q, images, progress, err);
+    if (st != NS_OK) {
+        analysis_clear_map(A);
+        return st;
+    }
+    A->gen_image_str = malloc(FLINT_MAX(X, 1) * sizeof(char *));
+    for (slong x = 0; x < X; x++)
+        A->gen_image_str[x] = own(nq_elt_get_str(Q, A->endo->gen_img + x * n));
+    A->valid = A->endo->valid;
+    if (!A->valid) {
+        A->nfail = A->endo->nfail;
+        A->fail_relator = malloc(A->nfail * sizeof(char *));
+        A->fail_image = malloc(A->nfail * sizeof(char *));
+        for (slong k = 0; k < A->nfail; k++) {
+            slong r = A->endo->fail_rel[k];
+            A->fail_relator[k] = dup_str(Q->pres->text[r]);
+            A->fail_image[k] = own(nq_elt_get_str(Q, A->endo->fail_val + k * n));
+        }
+        return NS_OK;
+    }
+
+    /* Per layer: matrices and spectra. */
+    nserr_t e2;
+    nserr_init(e2);
+    for (slong j = 1; j <= A->nlayers; j++) {
+        analysis_layer_struct *L = A->layers + j - 1;
+        if (j <= c)
+            endo_layer_matrices(L->action, L->matrix, A->endo, L->lcs);
+        if (progress && ns_progress_report(progress, "spectra", (double)j / (double)A->nlayers)) {
+            analysis_clear_map(A);
+            return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+        }
+        st = spectrum_compute(L->spectrum, L->matrix, e2);
+        if (st != NS_OK) {
+            analysis_clear_map(A);
+            return nserr_set(err, st, 0, 0, "layer %ld: %s", (long)j, e2->msg);
+        }
+        const spectrum_struct *S = L->spectrum;
+        slong d = spectrum_dim(S);
+        L->charpoly = _fmpz_vec_init(d + 1);
+        for (slong k = 0; k <= d; k++)
+            fmpz_poly_get_coeff_fmpz(L->charpoly + k, spectrum_charpoly(S), k);
+        L->charpoly_str = spectrum_charpoly_get_str(S, SPECTRUM_STR_PLAIN);
+        L->charpoly_factored_str = spectrum_factored_get_str(S, SPECTRUM_STR_PLAIN);
+        L->charpoly_latex = spectrum_factored_get_str(S, SPECTRUM_STR_LATEX);
+        L->rho_str = spectrum_radius_get_str(S, ANALYSIS_DIGITS);
+        L->rho_minpoly_str = spectrum_radius_minpoly_get_str(S, SPECTRUM_STR_PLAIN);
+        L->root_bound_str = spectrum_root_bound_get_str(S, (ulong)j, ANALYSIS_DIGITS);
+        L->entropy_str = spectrum_entropy_get_str(S, ANALYSIS_DIGITS);
+        fmpz_set(L->det, spectrum_det(S));
+        fmpz_set(L->det_i_minus, spectrum_det_one_minus(S));
+        L->nev = d;
+        L->ev_str = malloc(FLINT_MAX(d, 1) * sizeof(char *));
+        L->ev_abs_str = malloc(FLINT_MAX(d, 1) * sizeof(char *));
+        for (slong k = 0; k < d; k++) {
+            L->ev_str[k] = spectrum_eigenvalue_get_str(S, k, 16);
+            L->ev_abs_str[k] = spectrum_eigenvalue_abs_get_str(S, k, 16);
+        }
+        L->n_unimodular = spectrum_count_on_one(S);
+        L->n_above_one = spectrum_count_above_one(S);
+    }
+    nserr_clear(e2);
+
+    /* Bounds: the first layer attaining each maximum.  An undecidable
+     * comparison (equal to thousands of bits) keeps the earlier layer. */
+    slong lo = 1, up = 1;
+    for (slong j = 2; j <= A->nlayers; j++) {
+        int cr = spectrum_cmp_root_bound(A->layers[j - 1].spectrum, (ulong)j,
+                                         A->layers[lo - 1].spectrum, (ulong)lo);
+        if (cr == 1)
+            lo = j;
+        int cu = spectrum_cmp_radius(A->layers[j - 1].spectrum, A->layers[up - 1].spectrum);
+        if (cu == 1)
+            up = j;
+    }
+    if (A->nlayers > 0) {
+        A->lower_layer = lo;
+        A->upper_layer = up;
+        A->lower_bound_str = dup_str(A->layers[lo - 1].root_bound_str);
+        A->upper_bound_str = dup_str(A->layers[up - 1].rho_str);
+    } else {
+        A->lower_bound_str = dup_str("0");
+        A->upper_bound_str = dup_str("0");
+    }
+
+    /* The exact growth rate (Koberda 2013; Fel'shtyn, Jo and Lee 2014). */
+    arb_t t;
+    arb_init(t);
+    if (c == 0) {
+        A->growth_str = dup_str("0");
+        A->growth_reason = "the quotient is trivial";
+    } else if (spectrum_radius_cmp_one(A->layers[0].spectrum) >= 0) {
+        A->growth_str = dup_str(A->layers[0].rho_str);
+        A->growth_reason = "rho_1 >= 1, and the growth rate of a map of a nilpotent group is "
+                           "the spectral radius on the abelianisation";
+        spectrum_radius_arb(t, A->layers[0].spectrum, 4 * ANALYSIS_DIGITS + 64);
+        arb_log(t, t, 4 * ANALYSIS_DIGITS + 64);
+        A->log_growth_str = arb_str(t);
+    } else if (layer_map_nilpotent(A->layers)) {
+        A->growth_str = dup_str("0");
+        A->growth_reason = "the map is nilpotent on the abelianisation, so a power of it is "
+                           "trivial";
+    } else {
+        A->growth_str = dup_str("1");
+        A->growth_reason = "rho_1 = 0 but the map is not nilpotent on the torsion of the "
+                           "abelianisation, so word lengths stay bounded and nonzero";
+        A->log_growth_str = dup_str("0");
+    }
+
+    /* Invariants. */
+    A->automorphism = c == 0 || layer_map_onto(A->layers);
+    A->hyperbolic = A->expanding = 1;
+    A->injective = 1;
+    fmpz_one(A->lefschetz);
+    fmpz_one(A->image_index);
+    arb_zero(t);
+    int reid_inf = 0;
+    for (slong j = 0; j < A->nlayers; j++) {
+        const analysis_layer_struct *L = A->layers + j;
+        A->hyperbolic &= spectrum_is_hyperbolic(L->spectrum);
+        A->expanding &= spectrum_is_expanding(L->spectrum);
+        if (fmpz_is_zero(L->det))
+            A->injective = 0;
+        fmpz_mul(A->image_index, A->image_index, L->det);
+        fmpz_mul(A->lefschetz, A->lefschetz, L->det_i_minus);
+        if (fmpz_is_zero(L->det_i_minus))
+            reid_inf = 1;
+        arb_add(t, t, spectrum_entropy(L->spectrum), 4 * ANALYSIS_DIGITS + 64);
+    }
+    fmpz_abs(A->image_index, A->image_index);
+    if (!A->layers_torsion_free) {
+        A->undefined_reason = "the class-c quotient has torsion in its layers";
+        A->injective = 0;
+        fmpz_zero(A->lefschetz);
+        fmpz_zero(A->image_index);
+    } else {
+        A->entropy_str = arb_str(t);
+        A->lefschetz_defined = 1;
+        fmpz_abs(A->nielsen, A->lefschetz);
+        A->reid_kind = reid_inf ? ANALYSIS_REID_INFINITE : ANALYSIS_REID_FINITE;
+        if (!reid_inf)
+            fmpz_abs(A->reidemeister, A->lefschetz);
+        A->index_defined = A->injective;
+        if (!A->injective)
+            fmpz_zero(A->image_index);
+    }
+    arb_clear(t);
+    return NS_OK;
+}

@@ -1,0 +1,269 @@
+/* endo.c — see endo.h. */
+#include <string.h>
+#include "endo.h"
+
+void endo_init(endo_t E)
+{
+    memset(E, 0, sizeof(endo_struct));
+}
+
+void endo_clear(endo_t E)
+{
+    slong n = E->n;
+    if (E->gen_img)
+        _fmpz_vec_clear(E->gen_img, FLINT_MAX(E->ngens * n, 1));
+    if (E->fail_val)
+        _fmpz_vec_clear(E->fail_val, FLINT_MAX(E->nfail * n, 1));
+    if (E->pc_img)
+        _fmpz_vec_clear(E->pc_img, FLINT_MAX(n * n, 1));
+    flint_free(E->fail_rel);
+    endo_init(E);
+}
+
+static ns_status finish(endo_t E, const nq_t Q, pcp_work_t W, nserr_t err)
+{
+    slong n = Q->pcp->n, X = Q->pres->gens->n;
+    fmpz *val = _fmpz_vec_init(FLINT_MAX(n, 1));
+    E->valid = 1;
+    for (slong r = 0; r < Q->pres->nrels && !W->overflow; r++) {
+        pcp_eval_expr(W, val, Q->pres->rels[r].root, E->gen_img);
+        if (_fmpz_vec_is_zero(val, n))
+            continue;
+        E->valid = 0;
+        E->fail_rel = flint_realloc(E->fail_rel, (E->nfail + 1) * sizeof(slong));
+        fmpz *nv = _fmpz_vec_init((E->nfail + 1) * n);
+        if (E->fail_val) {
+            _fmpz_vec_set(nv, E->fail_val, E->nfail * n);
+            _fmpz_vec_clear(E->fail_val, FLINT_MAX(E->nfail * n, 1));
+        }
+        _fmpz_vec_set(nv + E->nfail * n, val, n);
+        E->fail_val = nv;
+        E->fail_rel[E->nfail++] = r;
+    }
+    if (E->valid && !W->overflow) {
+        E->pc_img = _fmpz_vec_init(FLINT_MAX(n * n, 1));
+        for (slong k = 0; k < n && !W->overflow; k++) {
+            const pcp_def_struct *d = Q->pcp->def + k;
+            if (d->kind == PCP_DEF_IMAGE)
+                _fmpz_vec_set(E->pc_img + k * n, E->gen_img + d->a * n, n);
+            else
+                pcp_elt_comm(W, E->pc_img + k * n, E->pc_img + d->a * n, E->pc_img + d->b * n);
+        }
+    }
+    _fmpz_vec_clear(val, FLINT_MAX(n, 1));
+    (void)X;
+    if (W->overflow)
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "the map's analysis was stopped");
+    return NS_OK;
+}
+
+ns_status endo_set(endo_t E, const nq_t Q, const expr_struct *images,
+                   const ns_progress_t *progress, nserr_t err)
+{
+    endo_clear(E);
+    slong n = Q->pcp->n, X = Q->pres->gens->n;
+    E->n = n;
+    E->ngens = X;
+    E->gen_img = _fmpz_vec_init(FLINT_MAX(X * n, 1));
+    pcp_work_t W;
+    pcp_work_init(W, Q->pcp);
+    W->progress = progress;
+    for (slong x = 0; x < X && !W->overflow; x++)
+        pcp_eval_expr(W, E->gen_img + x * n, images[x].root, Q->images);
+    ns_status st = finish(E, Q, W, err);
+    pcp_work_clear(W);
+    if (st != NS_OK)
+        endo_clear(E);
+    return st;
+}
+
+ns_status endo_set_elts(endo_t E, const nq_t Q, const fmpz *gen_img,
+                        const ns_progress_t *progress, nserr_t err)
+{
+    endo_clear(E);
+    slong n = Q->pcp->n, X = Q->pres->gens->n;
+    E->n = n;
+    E->ngens = X;
+    E->gen_img = _fmpz_vec_init(FLINT_MAX(X * n, 1));
+    _fmpz_vec_set(E->gen_img, gen_img, X * n);
+    pcp_work_t W;
+    pcp_work_init(W, Q->pcp);
+    W->progress = progress;
+    ns_status st = finish(E, Q, W, err);
+    pcp_work_clear(W);
+    if (st != NS_OK)
+        endo_clear(E);
+    return st;
+}
+
+void endo_apply(const endo_t E, const nq_t Q, fmpz *out, const fmpz *g, pcp_work_t W)
+{
+    slong n = Q->pcp->n;
+    fmpz *acc = _fmpz_vec_init(FLINT_MAX(n, 1));
+    fmpz *t = _fmpz_vec_init(FLINT_MAX(n, 1));
+    for (slong k = 0; k < n && !W->overflow; k++) {
+        if (fmpz_is_zero(g + k))
+            continue;
+        pcp_elt_pow(W, t, E->pc_img + k * n, g + k);
+        pcp_elt_mul(W, acc, acc, t);
+    }
+    _fmpz_vec_set(out, acc, n);
+    _fmpz_vec_clear(acc, FLINT_MAX(n, 1));
+    _fmpz_vec_clear(t, FLINT_MAX(n, 1));
+}
+
+ns_status endo_compose(endo_t out, const endo_t a, const endo_t b, const nq_t Q,
+                       const ns_progress_t *progress, nserr_t err)
+{
+    slong n = Q->pcp->n, X = Q->pres->gens->n;
+    fmpz *img = _fmpz_vec_init(FLINT_MAX(X * n, 1));
+    pcp_work_t W;
+    pcp_work_init(W, Q->pcp);
+    W->progress = progress;
+    for (slong x = 0; x < X; x++)
+        endo_apply(a, Q, img + x * n, b->gen_img + x * n, W);
+    ns_status st = W->overflow ? nserr_set(err, NS_ERR_CANCELLED, 0, 0, "composition stopped")
+                               : endo_set_elts(out, Q, img, progress, err);
+    pcp_work_clear(W);
+    _fmpz_vec_clear(img, FLINT_MAX(X * n, 1));
+    return st;
+}
+
+ns_status endo_pow(endo_t out, const endo_t a, ulong k, const nq_t Q,
+                   const ns_progress_t *progress, nserr_t err)
+{
+    slong n = Q->pcp->n, X = Q->pres->gens->n;
+    /* the identity map */
+    fmpz *id = _fmpz_vec_init(FLINT_MAX(X * n, 1));
+    _fmpz_vec_set(id, Q->images, X * n);
+    endo_t res, base, t;
+    endo_init(res);
+    endo_init(base);
+    endo_init(t);
+    ns_status st = endo_set_elts(res, Q, id, progress, err);
+    if (st == NS_OK)
+        st = endo_set_elts(base, Q, a->gen_img, progress, err);
+    while (st == NS_OK && k) {
+        if (k & 1) {
+            st = endo_compose(t, base, res, Q, progress, err);
+            endo_clear(res);
+            memcpy(res, t, sizeof(endo_struct));
+            endo_init(t);
+        }
+        k >>= 1;
+        if (st == NS_OK && k) {
+            st = endo_compose(t, base, base, Q, progress, err);
+            endo_clear(base);
+            memcpy(base, t, sizeof(endo_struct));
+            endo_init(t);
+        }
+    }
+    if (st == NS_OK) {
+        endo_clear(out);
+        memcpy(out, res, sizeof(endo_struct));
+        endo_init(res);
+    }
+    endo_clear(res);
+    endo_clear(base);
+    endo_clear(t);
+    _fmpz_vec_clear(id, FLINT_MAX(X * n, 1));
+    return st;
+}
+
+void endo_layer_matrices(fmpz_mat_t A, fmpz_mat_t M, const endo_t E, const layer_t L)
+{
+    slong n = E->n, s = L->start, cnt = L->count, r = L->free_rank;
+    fmpz_mat_clear(A);
+    fmpz_mat_init(A, cnt, cnt);
+    for (slong k = 0; k < cnt; k++)
+        for (slong i = 0; i < cnt; i++)
+            fmpz_set(fmpz_mat_entry(A, i, k), E->pc_img + (s + k) * n + s + i);
+    fmpz_mat_t T;
+    fmpz_mat_init(T, r, cnt);
+    fmpz_mat_clear(M);
+    fmpz_mat_init(M, r, r);
+    if (r > 0) {
+        fmpz_mat_mul(T, L->phi, A);
+        fmpz_mat_mul(M, T, L->sigma);
+    }
+    fmpz_mat_clear(T);
+}
+
+ns_status endo_inverse(endo_t out, const endo_t a, const nq_t Q, const ns_progress_t *progress,
+                       nserr_t err)
+{
+    slong n = Q->pcp->n, X = Q->pres->gens->n, c = Q->class_reached;
+    for (slong j = 0; j < c; j++)
+        if (Q->layers[j].free_rank != Q->layers[j].count)
+            return nserr_set(err, NS_ERR_INPUT, 0, 0,
+                             "inverse maps are computed only when every layer is torsion-free");
+    /* Invert each layer matrix (unimodular for an automorphism). */
+    fmpz_mat_struct *inv = flint_malloc(FLINT_MAX(c, 1) * sizeof(fmpz_mat_struct));
+    ns_status st = NS_OK;
+    slong made = 0;
+    for (slong j = 0; j < c; j++, made++) {
+        layer_t L;
+        fmpz_mat_t A, M;
+        fmpz_t den;
+        layer_init(L);
+        layer_compute(L, Q, j + 1);
+        fmpz_mat_init(A, 0, 0);
+        fmpz_mat_init(M, 0, 0);
+        fmpz_init(den);
+        endo_layer_matrices(A, M, a, L);
+        fmpz_mat_init(inv + j, L->count, L->count);
+        int ok = L->count == 0 || fmpz_mat_inv(inv + j, den, A);
+        if (ok && L->count && !fmpz_is_pm1(den))
+            ok = 0;
+        if (ok && L->count && fmpz_sgn(den) < 0)
+            fmpz_mat_neg(inv + j, inv + j);
+        fmpz_clear(den);
+        fmpz_mat_clear(A);
+        fmpz_mat_clear(M);
+        layer_clear(L);
+        if (!ok) {
+            st = nserr_set(err, NS_ERR_INPUT, 0, 0,
+                           "the map is not an automorphism: layer %ld is not mapped onto itself",
+                           (long)j + 1);
+            made++;
+            break;
+        }
+    }
+    pcp_work_t W;
+    pcp_work_init(W, Q->pcp);
+    W->progress = progress;
+    fmpz *img = _fmpz_vec_init(FLINT_MAX(X * n, 1));
+    fmpz *y = _fmpz_vec_init(FLINT_MAX(n, 1)), *h = _fmpz_vec_init(FLINT_MAX(n, 1));
+    fmpz *z = _fmpz_vec_init(FLINT_MAX(n, 1));
+    /* For each target g find y with alpha(y) = g, one layer at a time: fix
+     * y's weight-j part so that g' = alpha(y)^-1 g vanishes up to weight j. */
+    for (slong x = 0; x < X && st == NS_OK && !W->overflow; x++) {
+        const fmpz *g = Q->images + x * n;
+        _fmpz_vec_zero(y, n);
+        for (slong j = 0; j < c; j++) {
+            endo_apply(a, Q, h, y, W);
+            pcp_elt_inv(W, h, h);
+            pcp_elt_mul(W, h, h, g);
+            const nq_layer_struct *NL = Q->layers + j;
+            _fmpz_vec_zero(z, n);
+            for (slong i = 0; i < NL->count; i++)
+                for (slong k = 0; k < NL->count; k++)
+                    fmpz_addmul(z + NL->start + i, fmpz_mat_entry(inv + j, i, k),
+                                h + NL->start + k);
+            pcp_elt_mul(W, y, y, z);
+        }
+        _fmpz_vec_set(img + x * n, y, n);
+    }
+    if (st == NS_OK)
+        st = W->overflow ? nserr_set(err, NS_ERR_CANCELLED, 0, 0, "inversion stopped")
+                         : endo_set_elts(out, Q, img, progress, err);
+    for (slong j = 0; j < made && j < c; j++)
+        fmpz_mat_clear(inv + j);
+    flint_free(inv);
+    _fmpz_vec_clear(img, FLINT_MAX(X * n, 1));
+    _fmpz_vec_clear(y, FLINT_MAX(n, 1));
+    _fmpz_vec_clear(h, FLINT_MAX(n, 1));
+    _fmpz_vec_clear(z, FLINT_MAX(n, 1));
+    pcp_work_clear(W);
+    return st;
+}

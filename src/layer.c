@@ -1,0 +1,147 @@
+/* layer.c — see layer.h. */
+#include <string.h>
+#include "elim.h"
+#include "layer.h"
+
+void layer_init(layer_t L)
+{
+    memset(L, 0, sizeof(layer_struct));
+    fmpz_mat_init(L->rel, 0, 0);
+    fmpz_mat_init(L->phi, 0, 0);
+    fmpz_mat_init(L->sigma, 0, 0);
+}
+
+void layer_clear(layer_t L)
+{
+    for (slong k = 0; k < L->free_rank; k++)
+        flint_free(L->basis[k]);
+    flint_free(L->basis);
+    fmpz_mat_clear(L->rel);
+    fmpz_mat_clear(L->phi);
+    fmpz_mat_clear(L->sigma);
+    memset(L, 0, sizeof(layer_struct));
+}
+
+/* "x^2 y^-1" for the layer element v in labels. */
+static char *vec_label(const fmpz *v, slong n, char *const *labels)
+{
+    size_t cap = 32, len = 0;
+    char *s = flint_malloc(cap);
+    s[0] = '\0';
+    for (slong k = 0; k < n; k++) {
+        if (fmpz_is_zero(v + k))
+            continue;
+        char *e = fmpz_get_str(NULL, 10, v + k);
+        size_t need = len + strlen(labels[k]) + strlen(e) + 4;
+        if (need > cap) {
+            cap = 2 * need;
+            s = flint_realloc(s, cap);
+        }
+        len += (size_t)sprintf(s + len, "%s%s", len ? " " : "", labels[k]);
+        if (!fmpz_is_one(v + k))
+            len += (size_t)sprintf(s + len, "^%s", e);
+        flint_free(e);
+    }
+    return s;
+}
+
+void layer_compute(layer_t L, const nq_t Q, slong j)
+{
+    layer_clear(L);
+    layer_init(L);
+    const pcp_struct *P = Q->pcp;
+    const nq_layer_struct *NL = Q->layers + j - 1;
+    slong s = NL->start, cnt = NL->count, f = cnt - NL->free_rank, r = NL->free_rank;
+    L->weight = j;
+    L->start = s;
+    L->count = cnt;
+    L->nfinite = f;
+    L->free_rank = r;
+    fmpz_mat_clear(L->rel);
+    fmpz_mat_clear(L->phi);
+    fmpz_mat_clear(L->sigma);
+    fmpz_mat_init(L->rel, f, cnt);
+    fmpz_mat_init(L->phi, r, cnt);
+    fmpz_mat_init(L->sigma, cnt, r);
+    slong row = 0;
+    for (slong k = s; k < s + cnt; k++) {
+        if (fmpz_is_zero(P->relorder + k))
+            continue;
+        fmpz_set(fmpz_mat_entry(L->rel, row, k - s), P->relorder + k);
+        const pcw_struct *w = P->pow + k;
+        for (slong t = 0; t < w->len; t++)
+            if (w->gen[t] < s + cnt)
+                fmpz_sub(fmpz_mat_entry(L->rel, row, w->gen[t] - s),
+                         fmpz_mat_entry(L->rel, row, w->gen[t] - s), w->exp + t);
+        row++;
+    }
+    if (f == 0) {
+        fmpz_mat_one(L->phi);
+        fmpz_mat_one(L->sigma);
+    } else if (r > 0) {
+        /* U rel^T = H with H's last count - f rows zero: those rows of U
+         * span the integer kernel and, U being unimodular, extend to a
+         * basis; the matching columns of U^-1 are a right inverse. */
+        fmpz_mat_t A, H, U, V;
+        fmpz_t den;
+        fmpz_mat_init(A, cnt, f);
+        fmpz_mat_init(H, cnt, f);
+        fmpz_mat_init(U, cnt, cnt);
+        fmpz_mat_init(V, cnt, cnt);
+        fmpz_init(den);
+        fmpz_mat_transpose(A, L->rel);
+        fmpz_mat_hnf_transform(H, U, A);
+        fmpz_mat_inv(V, den, U);
+        for (slong a = 0; a < r; a++)
+            for (slong b = 0; b < cnt; b++) {
+                fmpz_set(fmpz_mat_entry(L->phi, a, b), fmpz_mat_entry(U, f + a, b));
+                fmpz_mul(fmpz_mat_entry(L->sigma, b, a), fmpz_mat_entry(V, b, f + a), den);
+            }
+        fmpz_clear(den);
+        fmpz_mat_clear(A);
+        fmpz_mat_clear(H);
+        fmpz_mat_clear(U);
+        fmpz_mat_clear(V);
+    }
+    L->basis = flint_malloc(FLINT_MAX(r, 1) * sizeof(char *));
+    fmpz *v = _fmpz_vec_init(FLINT_MAX(cnt, 1));
+    for (slong k = 0; k < r; k++) {
+        for (slong b = 0; b < cnt; b++)
+            fmpz_set(v + b, fmpz_mat_entry(L->sigma, b, k));
+        L->basis[k] = vec_label(v, cnt, Q->labels + s);
+    }
+    _fmpz_vec_clear(v, FLINT_MAX(cnt, 1));
+}
+
+int layer_is_trivial_vec(const layer_t L, const fmpz *v)
+{
+    slong cnt = L->count;
+    if (L->nfinite == 0)
+        return _fmpz_vec_is_zero(v, cnt);
+    elim_t E;
+    elim_init(E, cnt);
+    for (slong k = 0; k < L->nfinite; k++)
+        elim_add_dense(E, L->rel->rows[k]);
+    /* v is in the lattice iff adding it creates no new pivot and leaves the
+     * pivots unchanged: compare the product of pivots before and after. */
+    fmpz_t before, after;
+    fmpz_init_set_ui(before, 1);
+    fmpz_init_set_ui(after, 1);
+    for (slong c = 0; c < cnt; c++)
+        if (!fmpz_is_zero(elim_pivot(E, c)))
+            fmpz_mul(before, before, elim_pivot(E, c));
+    slong nb = 0, na = 0;
+    for (slong c = 0; c < cnt; c++)
+        nb += !fmpz_is_zero(elim_pivot(E, c));
+    elim_add_dense(E, v);
+    for (slong c = 0; c < cnt; c++)
+        if (!fmpz_is_zero(elim_pivot(E, c))) {
+            fmpz_mul(after, after, elim_pivot(E, c));
+            na++;
+        }
+    int in = (na == nb) && fmpz_equal(before, after);
+    fmpz_clear(before);
+    fmpz_clear(after);
+    elim_clear(E);
+    return in;
+}

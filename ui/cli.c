@@ -1,0 +1,203 @@
+/* cli.c — see cli.h.  The only place besides the explorer that prints. */
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+#include "analysis.h"
+#include "cli.h"
+#include "report.h"
+#include "session.h"
+
+void cli_print_help(FILE *out)
+{
+    fputs("usage: nilstep [FILE]\n"
+          "       nilstep report [--format text|json|latex] FILE\n"
+          "       nilstep report --group PRES --class C [--map MAP] [--format text|json|latex]\n"
+          "       nilstep --help | --version\n"
+          "\n"
+          "Explores an endomorphism of a finitely presented group on its class-c\n"
+          "nilpotent quotient: the lower central series layer by layer, the matrices\n"
+          "the map induces on the layers, their spectral radii, the bounds and the\n"
+          "exact growth rate, entropy, Lefschetz, Nielsen and Reidemeister numbers.\n"
+          "\n"
+          "  nilstep [FILE]      the terminal explorer on a session file (format 1);\n"
+          "                      without FILE, the built-in default scenario\n"
+          "  report              the same analysis as text, JSON or LaTeX\n"
+          "    --format F        text (default), json or latex\n"
+          "    --group PRES      a presentation, e.g. '<a, b | [a,b,a], [a,b,b]>'\n"
+          "    --class C         the nilpotency class, 1..64\n"
+          "    --map MAP         images of the generators, e.g. 'a -> a^2 b, b -> a b'\n"
+          "\n"
+          "Conventions: [x,y] = x^-1 y^-1 x y, [x,y,z] = [[x,y],z], x^y = y^-1 x y;\n"
+          "gamma_1 = G, gamma_(j+1) = [gamma_j, G]; layer j is gamma_j/gamma_(j+1),\n"
+          "shown as Z^r + Z/d1 + ... with d1 | d2 | ...; matrices act on column\n"
+          "vectors (column k holds the image of basis element k).\n"
+          "\n"
+          "Exit status of report: 0 done, 1 the map is not well defined on the\n"
+          "class-c quotient, 2 bad input or usage, 3 a resource limit was hit.\n",
+          out);
+}
+
+static int usage(const char *msg)
+{
+    fprintf(stderr, "nilstep report: %s\n", msg);
+    fputs("usage: nilstep report [--format text|json|latex] FILE\n"
+          "       nilstep report --group PRES --class C [--map MAP] [--format F]\n"
+          "(nilstep --help for more)\n",
+          stderr);
+    return 2;
+}
+
+static int report_error(const nserr_t err, const char *where)
+{
+    char buf[700];
+    nserr_format(buf, sizeof buf, err, where);
+    fprintf(stderr, "%s\n", buf);
+    if (err->status == NS_ERR_LIMIT || err->status == NS_ERR_CANCELLED)
+        return 3;
+    return 2;
+}
+
+typedef struct {
+    int shown;
+} progress_state;
+
+/* Progress on stderr, only when it is a terminal. */
+static int show_progress(void *ctx, const char *stage, double fraction)
+{
+    progress_state *p = ctx;
+    (void)fraction;
+    if (stage) {
+        fprintf(stderr, "\r\033[Knilstep: %s", stage);
+        fflush(stderr);
+        p->shown = 1;
+    }
+    return 0;
+}
+
+int cli_report(int argc, char **argv)
+{
+    const char *format = "text", *file = NULL, *group = NULL, *cls = NULL, *map = NULL;
+    for (int i = 1; i < argc; i++) {
+        const char *a = argv[i];
+        const char **slot = NULL;
+        if (!strcmp(a, "--format"))
+            slot = &format;
+        else if (!strcmp(a, "--group"))
+            slot = &group;
+        else if (!strcmp(a, "--class"))
+            slot = &cls;
+        else if (!strcmp(a, "--map"))
+            slot = &map;
+        else if (!strcmp(a, "--help") || !strcmp(a, "-h")) {
+            cli_print_help(stdout);
+            return 0;
+        } else if (a[0] == '-' && a[1] != '\0') {
+            char msg[300];
+            snprintf(msg, sizeof msg, "unknown option '%.200s'", a);
+            return usage(msg);
+        } else if (file) {
+            return usage("only one FILE may be given");
+        } else {
+            file = a;
+            continue;
+        }
+        if (i + 1 >= argc) {
+            char msg[300];
+            snprintf(msg, sizeof msg, "option '%s' needs a value", a);
+            return usage(msg);
+        }
+        *slot = argv[++i];
+    }
+    int fmt = report_parse_format(format);
+    if (fmt < 0)
+        return usage("--format takes text, json or latex");
+    if (file && (group || cls || map))
+        return usage("give either FILE or --group/--class/--map, not both");
+    if (!file && !group)
+        return usage("no FILE and no --group given");
+    if (group && !cls)
+        return usage("--group needs --class");
+
+    nserr_t err;
+    nserr_init(err);
+    session_t s;
+    session_init(s);
+    pres_t G;
+    pres_init(G);
+    analysis_t A;
+    analysis_init(A);
+    int status = 0;
+    const char *where_group, *where_map;
+    const char *gtext, *mtext = NULL, *title = NULL;
+    int gline = 1, gcol = 1, mline = 1, mcol = 1;
+    long c = 0;
+    if (file) {
+        if (session_load(s, file, err) != NS_OK) {
+            status = report_error(err, file);
+            goto done;
+        }
+        where_group = where_map = file;
+        gtext = s->group.text;
+        gline = s->group.line;
+        gcol = s->group.col;
+        c = s->cls;
+        if (s->map.text) {
+            mtext = s->map.text;
+            mline = s->map.line;
+            mcol = s->map.col;
+        }
+        title = s->title.text;
+    } else {
+        where_group = "--group";
+        where_map = "--map";
+        gtext = group;
+        mtext = map;
+        char *end;
+        c = strtol(cls, &end, 10);
+        if (*cls == '\0' || *end != '\0' || c < 1 || c > NQ_MAX_CLASS) {
+            char msg[200];
+            snprintf(msg, sizeof msg, "--class takes a whole number from 1 to %d", NQ_MAX_CLASS);
+            status = usage(msg);
+            goto done;
+        }
+    }
+    if (pres_parse(G, gtext, gline, gcol, err) != NS_OK) {
+        status = report_error(err, where_group);
+        goto done;
+    }
+    progress_state ps = {0};
+    ns_progress_t prog = {show_progress, &ps};
+    const ns_progress_t *pp = isatty(2) ? &prog : NULL;
+    ns_status st = analysis_set_group(A, G, (slong)c, pp, err);
+    if (ps.shown)
+        fputs("\r\033[K", stderr);
+    if (st != NS_OK) {
+        status = report_error(err, where_group);
+        goto done;
+    }
+    if (mtext) {
+        st = analysis_set_map_text(A, mtext, mline, mcol, pp, err);
+        if (ps.shown)
+            fputs("\r\033[K", stderr);
+        if (st != NS_OK) {
+            status = report_error(err, where_map);
+            goto done;
+        }
+    }
+    char *out = report_get_str(A, (report_format)fmt, title);
+    fputs(out, stdout);
+    free(out);
+    if (A->has_map && !A->valid)
+        status = 1;
+done:
+    analysis_clear(A);
+    pres_clear(G);
+    session_clear(s);
+    nserr_clear(err);
+    if (fflush(stdout) != 0) {
+        perror("nilstep: writing the report");
+        status = 2;
+    }
+    return status;
+}

@@ -1,0 +1,16 @@
+/* cli.h — the non-interactive command line: `nilstep report`, help and
+ * version texts. */
+#ifndef NILSTEP_CLI_H
+#define NILSTEP_CLI_H
+
+#include <stdio.h>
+
+/* Runs `nilstep report ...`; argv[0] is "report".  Returns the exit status
+ * of DESIGN §6: 0 done, 1 map not well defined, 2 bad input or usage,
+ * 3 a resource limit stopped the computation. */
+int cli_report(int argc, char **argv);
+
+/* Writes the --help text. */
+void cli_print_help(FILE *out);
+
+#endif
