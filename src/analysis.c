@@ -93,6 +93,8 @@ void analysis_clear_map(analysis_t A)
     fmpz_zero(A->reidemeister);
     fmpz_zero(A->image_index);
     A->automorphism = A->injective = A->hyperbolic = A->expanding = 0;
+    free_strs(A->inverse_str, A->inverse_str ? X : 0);
+    A->inverse_str = NULL;
     endo_clear(A->endo);
     for (slong j = 0; j < A->nlayers; j++)
         layer_map_clear(A->layers + j);
@@ -446,5 +448,101 @@ ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_pro
             fmpz_zero(A->image_index);
     }
     arb_clear(t);
+    if (A->automorphism && A->layers_torsion_free) {
+        endo_t I;
+        endo_init(I);
+        nserr_t e3;
+        nserr_init(e3);
+        if (endo_inverse(I, A->endo, Q, progress, e3) == NS_OK) {
+            A->inverse_str = malloc(FLINT_MAX(X, 1) * sizeof(char *));
+            for (slong x = 0; x < X; x++)
+                A->inverse_str[x] = own(nq_elt_get_str(Q, I->gen_img + x * n));
+        }
+        nserr_clear(e3);
+        endo_clear(I);
+    }
     return NS_OK;
+}
+
+/* "a -> w_a, b -> w_b" from images given as elements. */
+static char *map_text_of(const nq_struct *Q, const fmpz *gen_img)
+{
+    slong X = Q->pres->gens->n, n = Q->pcp->n;
+    size_t cap = 64, len = 0;
+    char *s = malloc(cap);
+    s[0] = '\0';
+    for (slong x = 0; x < X; x++) {
+        char *w = nq_elt_get_str(Q, gen_img + x * n);
+        const char *g = Q->pres->gens->name[x];
+        size_t need = len + strlen(w) + strlen(g) + 8;
+        if (need > cap) {
+            cap = 2 * need;
+            s = realloc(s, cap);
+        }
+        len += (size_t)sprintf(s + len, "%s%s -> %s", x ? ", " : "", g, w);
+        flint_free(w);
+    }
+    return s;
+}
+
+static ns_status need_valid(const analysis_t A, nserr_t err)
+{
+    if (!A->has_group || !A->has_map || !A->valid)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "this needs a well-defined map");
+    return NS_OK;
+}
+
+ns_status analysis_power_map_str(char **out, const analysis_t A, ulong k,
+                                 const ns_progress_t *progress, nserr_t err)
+{
+    ns_status st = need_valid(A, err);
+    if (st != NS_OK)
+        return st;
+    endo_t P;
+    endo_init(P);
+    st = endo_pow(P, A->endo, k, A->nq, progress, err);
+    if (st == NS_OK)
+        *out = map_text_of(A->nq, P->gen_img);
+    endo_clear(P);
+    return st;
+}
+
+ns_status analysis_compose_map_str(char **out, const analysis_t A, const expr_struct *images2,
+                                   const ns_progress_t *progress, nserr_t err)
+{
+    ns_status st = need_valid(A, err);
+    if (st != NS_OK)
+        return st;
+    endo_t B, C;
+    endo_init(B);
+    endo_init(C);
+    st = endo_set(B, A->nq, images2, progress, err);
+    if (st == NS_OK && !B->valid)
+        st = nserr_set(err, NS_ERR_INPUT, 0, 0,
+                       "the second map is not well defined on the class-%ld quotient",
+                       (long)A->class_requested);
+    if (st == NS_OK)
+        st = endo_compose(C, B, A->endo, A->nq, progress, err);
+    if (st == NS_OK)
+        *out = map_text_of(A->nq, C->gen_img);
+    endo_clear(B);
+    endo_clear(C);
+    return st;
+}
+
+ns_status analysis_inverse_map_str(char **out, const analysis_t A,
+                                   const ns_progress_t *progress, nserr_t err)
+{
+    ns_status st = need_valid(A, err);
+    if (st != NS_OK)
+        return st;
+    if (!A->automorphism)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "the map is not an automorphism");
+    endo_t I;
+    endo_init(I);
+    st = endo_inverse(I, A->endo, A->nq, progress, err);
+    if (st == NS_OK)
+        *out = map_text_of(A->nq, I->gen_img);
+    endo_clear(I);
+    return st;
 }

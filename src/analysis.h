@@ -101,6 +101,9 @@ typedef struct {
     int injective;               /* det M_j != 0 for all j (torsion-free case) */
     int index_defined;
     fmpz_t image_index;          /* prod |det M_j| when injective */
+    char **inverse_str;          /* for an automorphism of a quotient with
+                                    torsion-free layers: the images of the
+                                    inverse map as normal words; else NULL */
     int hyperbolic;              /* no |lambda| = 1 in any layer */
     int expanding;               /* all |lambda| > 1 in every layer */
 } analysis_struct;
@@ -127,5 +130,18 @@ ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_pro
 
 /* Forgets the map. */
 void analysis_clear_map(analysis_t A);
+
+/* The map text ("a -> ..., b -> ...") of alpha^k (k >= 0), of beta o alpha
+ * (first the analysed map alpha, then beta, given by images2 in the input
+ * generators) or of alpha^-1 (automorphisms of quotients with torsion-free
+ * layers), as normal words in the pc labels, which parse back as words in
+ * the input generators.  Needs a valid map.  *out is set to a string the
+ * caller frees with free(). */
+ns_status analysis_power_map_str(char **out, const analysis_t A, ulong k,
+                                 const ns_progress_t *progress, nserr_t err);
+ns_status analysis_compose_map_str(char **out, const analysis_t A, const expr_struct *images2,
+                                   const ns_progress_t *progress, nserr_t err);
+ns_status analysis_inverse_map_str(char **out, const analysis_t A,
+                                   const ns_progress_t *progress, nserr_t err);
 
 #endif

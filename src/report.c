@@ -104,6 +104,10 @@ static void report_text(sbuf_t b, const analysis_t A, const char *title)
     for (slong j = 0; j < A->nlayers; j++) {
         const analysis_layer_struct *L = A->layers + j;
         sbuf_printf(b, "\nlayer %ld: %s\n", (long)L->weight, L->group_str);
+        if (L->ntors > 0 && L->npc > 0) {
+            sbuf_puts(b, "  action on the layer's pc generators (modulo its power relations)\n");
+            text_matrix(b, L->action, "    ");
+        }
         if (L->free_rank == 0)
             continue;
         sbuf_puts(b, "  matrix\n");
@@ -157,6 +161,13 @@ static void report_text(sbuf_t b, const analysis_t A, const char *title)
     }
     sbuf_printf(b, "hyperbolic    %s\n", yes_no(A->hyperbolic));
     sbuf_printf(b, "expanding     %s\n", yes_no(A->expanding));
+    if (A->inverse_str) {
+        sbuf_puts(b, "inverse       ");
+        for (slong x = 0; x < Q->pres->gens->n; x++)
+            sbuf_printf(b, "%s%s -> %s", x ? ", " : "", Q->pres->gens->name[x],
+                        A->inverse_str[x]);
+        sbuf_puts(b, "\n");
+    }
 }
 
 /* ------------------------------------------------------------------ JSON */
@@ -320,6 +331,19 @@ static void report_json(sbuf_t b, const analysis_t A, const char *title)
                     A->automorphism ? "true" : "false", A->injective ? "true" : "false",
                     A->hyperbolic ? "true" : "false", A->expanding ? "true" : "false");
         json_fmpz_or_null(b, A->index_defined, A->image_index);
+        sbuf_puts(b, ",\n   \"inverse\": ");
+        if (A->inverse_str) {
+            sbuf_puts(b, "{");
+            for (slong x = 0; x < Q->pres->gens->n; x++) {
+                if (x)
+                    sbuf_puts(b, ", ");
+                sbuf_put_json_str(b, Q->pres->gens->name[x]);
+                sbuf_puts(b, ": ");
+                sbuf_put_json_str(b, A->inverse_str[x]);
+            }
+            sbuf_puts(b, "}");
+        } else
+            sbuf_puts(b, "null");
     }
     sbuf_puts(b, "}}\n");
 }

@@ -13,6 +13,7 @@ void cli_print_help(FILE *out)
     fputs("usage: nilstep [FILE]\n"
           "       nilstep report [--format text|json|latex] FILE\n"
           "       nilstep report --group PRES --class C [--map MAP] [--format text|json|latex]\n"
+          "                      [--power K] [--then MAP2]\n"
           "       nilstep --help | --version\n"
           "\n"
           "Explores an endomorphism of a finitely presented group on its class-c\n"
@@ -27,6 +28,8 @@ void cli_print_help(FILE *out)
           "    --group PRES      a presentation, e.g. '<a, b | [a,b,a], [a,b,b]>'\n"
           "    --class C         the nilpotency class, 1..64\n"
           "    --map MAP         images of the generators, e.g. 'a -> a^2 b, b -> a b'\n"
+          "    --power K         analyse the K-th power of the map instead\n"
+          "    --then MAP2       analyse the composite: first the map, then MAP2\n"
           "\n"
           "Conventions: [x,y] = x^-1 y^-1 x y, [x,y,z] = [[x,y],z], x^y = y^-1 x y;\n"
           "gamma_1 = G, gamma_(j+1) = [gamma_j, G]; layer j is gamma_j/gamma_(j+1),\n"
@@ -75,9 +78,54 @@ static int show_progress(void *ctx, const char *stage, double fraction)
     return 0;
 }
 
+/* Replaces the analysed map by alpha^k (--power) and then by beta o alpha
+ * (--then MAP: first the map, then MAP).  Returns an exit status. */
+static int derived_map(analysis_t A, const char *power, const char *then,
+                       const ns_progress_t *pp, nserr_t err)
+{
+    if ((power || then) && !A->valid) {
+        fprintf(stderr, "nilstep report: --power and --then need a well-defined map\n");
+        return 1;
+    }
+    char *text = NULL;
+    ns_status st = NS_OK;
+    if (power) {
+        char *end;
+        long k = strtol(power, &end, 10);
+        if (*power == '\0' || *end != '\0' || k < 0 || k > 1000000)
+            return usage("--power takes a whole number from 0 to 1000000");
+        st = analysis_power_map_str(&text, A, (ulong)k, pp, err);
+        if (st == NS_OK)
+            st = analysis_set_map_text(A, text, 1, 1, pp, err);
+        free(text);
+        if (st != NS_OK)
+            return report_error(err, "--power");
+    }
+    if (then) {
+        slong X = A->nq->pres->gens->n;
+        expr_struct *im = flint_malloc(FLINT_MAX(X, 1) * sizeof(expr_struct));
+        for (slong x = 0; x < X; x++)
+            expr_init(im + x);
+        st = pres_parse_map(im, A->nq->pres, then, 1, 1, err);
+        if (st == NS_OK)
+            st = analysis_compose_map_str(&text, A, im, pp, err);
+        for (slong x = 0; x < X; x++)
+            expr_clear(im + x);
+        flint_free(im);
+        if (st == NS_OK) {
+            st = analysis_set_map_text(A, text, 1, 1, pp, err);
+            free(text);
+        }
+        if (st != NS_OK)
+            return report_error(err, "--then");
+    }
+    return 0;
+}
+
 int cli_report(int argc, char **argv)
 {
     const char *format = "text", *file = NULL, *group = NULL, *cls = NULL, *map = NULL;
+    const char *power = NULL, *then = NULL;
     for (int i = 1; i < argc; i++) {
         const char *a = argv[i];
         const char **slot = NULL;
@@ -89,6 +137,10 @@ int cli_report(int argc, char **argv)
             slot = &cls;
         else if (!strcmp(a, "--map"))
             slot = &map;
+        else if (!strcmp(a, "--power"))
+            slot = &power;
+        else if (!strcmp(a, "--then"))
+            slot = &then;
         else if (!strcmp(a, "--help") || !strcmp(a, "-h")) {
             cli_print_help(stdout);
             return 0;
@@ -184,6 +236,12 @@ int cli_report(int argc, char **argv)
             status = report_error(err, where_map);
             goto done;
         }
+        status = derived_map(A, power, then, pp, err);
+        if (status != 0)
+            goto done;
+    } else if (power || then) {
+        status = usage("--power and --then need a map");
+        goto done;
     }
     char *out = report_get_str(A, (report_format)fmt, title);
     fputs(out, stdout);
