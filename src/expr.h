@@ -43,7 +43,10 @@ void expr_set(expr_t dst, const expr_t src);  /* deep copy */
 void expr_swap(expr_t a, expr_t b);
 
 /* Node constructors: the returned node is owned by the caller (or by the
- * parent it is attached to).  kids arrays passed in are taken over. */
+ * parent it is attached to).  kids arrays passed in are taken over; they
+ * must come from flint_malloc, as expr_node_add_kid reallocates them.
+ * expr_node_free, expr_node_copy and the printers walk the tree without
+ * recursion, so trees of any depth are safe. */
 expr_node *expr_node_new(expr_kind kind, int line, int col);
 expr_node *expr_node_copy(const expr_node *n);
 void expr_node_free(expr_node *n);
@@ -94,7 +97,7 @@ slong names_find(const names_t g, const char *name, size_t len);
 /* Parses a word in generators g.  text starts at (line, col) of its source:
  * errors carry positions in that source; a newline in text moves to the next
  * line, column 1.  The whole of text must be one word (surrounding blanks and
- * '#' comments allowed). */
+ * '#' comments allowed).  On failure out is unchanged. */
 ns_status expr_parse(expr_t out, const char *text, int line, int col,
                      const names_t g, nserr_t err);
 

@@ -1,0 +1,975 @@
+/* session.c — reading and writing session files, format 1. */
+#include <errno.h>
+#include <fcntl.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include "session.h"
+
+#define SESSION_MAGIC "nilstep session 1"
+
+/* ------------------------------------------------------------------------ */
+/* Small helpers                                                             */
+
+static char *dup_n(const char *s, size_t n)
+{
+    char *d = flint_malloc(n + 1);
+    memcpy(d, s, n);
+    d[n] = '\0';
+    return d;
+}
+
+static int is_blank(char c)
+{
+    return c == ' ' || c == '\t' || c == '\r' || c == '\f' || c == '\v';
+}
+
+static void text_clear(session_text_struct *t)
+{
+    flint_free(t->text);
+    t->text = NULL;
+    t->line = t->col = 0;
+}
+
+static void text_set(session_text_struct *t, const char *s, size_t n, int line, int col)
+{
+    char *d = dup_n(s, n);
+    flint_free(t->text);
+    t->text = d;
+    t->line = line;
+    t->col = col;
+}
+
+static void text_copy(session_text_struct *dst, const session_text_struct *src)
+{
+    if (src->text == NULL)
+        text_clear(dst);
+    else
+        text_set(dst, src->text, strlen(src->text), src->line, src->col);
+}
+
+/* Growable string. */
+typedef struct {
+    char *s;
+    size_t len, cap;
+} strbuf;
+
+static void sb_putn(strbuf *b, const char *s, size_t n)
+{
+    if (b->len + n + 1 > b->cap) {
+        size_t cap = b->cap ? b->cap : 256;
+        while (b->len + n + 1 > cap)
+            cap *= 2;
+        b->s = flint_realloc(b->s, cap);
+        b->cap = cap;
+    }
+    memcpy(b->s + b->len, s, n);
+    b->len += n;
+    b->s[b->len] = '\0';
+}
+
+static void sb_puts(strbuf *b, const char *s)
+{
+    sb_putn(b, s, strlen(s));
+}
+
+/* The normal form of a text: its lines without leading and trailing blanks,
+ * empty lines left out, joined by '\n'.  NULL counts as empty.  This is
+ * what survives a write and a read, so it is what equality compares. */
+static char *norm_text(const char *t)
+{
+    strbuf b = {NULL, 0, 0};
+
+    sb_puts(&b, "");
+    if (t == NULL)
+        return b.s;
+    while (*t != '\0') {
+        const char *e = strchr(t, '\n'), *a = t, *z;
+        if (e == NULL)
+            e = t + strlen(t);
+        while (a < e && is_blank(*a))
+            a++;
+        z = e;
+        while (z > a && is_blank(z[-1]))
+            z--;
+        if (z > a) {
+            if (b.len > 0)
+                sb_puts(&b, "\n");
+            sb_putn(&b, a, (size_t)(z - a));
+        }
+        t = *e ? e + 1 : e;
+    }
+    return b.s;
+}
+
+static int text_is_blank(const char *t)
+{
+    if (t == NULL)
+        return 1;
+    for (; *t; t++)
+        if (!is_blank(*t) && *t != '\n')
+            return 0;
+    return 1;
+}
+
+/* Column (code points, 1-based) of p within the line that starts at ls. */
+static int col_of(const char *ls, const char *p)
+{
+    int col = 1;
+    for (; ls < p; ls++)
+        if (((unsigned char)*ls & 0xC0) != 0x80)
+            col++;
+    return col;
+}
+
+/* Length of the valid UTF-8 sequence at u (n bytes available), 0 if none. */
+static size_t utf8_len(const unsigned char *u, size_t n)
+{
+    size_t need;
+
+    if (u[0] < 0x80)
+        return 1;
+    if (u[0] >= 0xC2 && u[0] <= 0xDF)
+        need = 2;
+    else if (u[0] >= 0xE0 && u[0] <= 0xEF)
+        need = 3;
+    else if (u[0] >= 0xF0 && u[0] <= 0xF4)
+        need = 4;
+    else
+        return 0;
+    if (n < need)
+        return 0;
+    for (size_t i = 1; i < need; i++)
+        if ((u[i] & 0xC0) != 0x80)
+            return 0;
+    if ((need == 3 && u[0] == 0xE0 && u[1] < 0xA0) || (need == 3 && u[0] == 0xED && u[1] >= 0xA0) ||
+        (need == 4 && u[0] == 0xF0 && u[1] < 0x90) || (need == 4 && u[0] == 0xF4 && u[1] >= 0x90))
+        return 0;
+    return need;
+}
+
+/* Checks for NUL bytes and invalid UTF-8, reporting the first with its
+ * position. */
+static ns_status check_bytes(const char *buf, size_t len, nserr_t err)
+{
+    const unsigned char *u = (const unsigned char *)buf;
+    int line = 1;
+    const char *ls = buf;
+    size_t i = 0;
+
+    while (i < len) {
+        size_t k;
+        if (u[i] == '\0')
+            return nserr_set(err, NS_ERR_SYNTAX, line, col_of(ls, buf + i),
+                             "NUL byte in the file (not a text file?)");
+        if (u[i] == '\n') {
+            line++;
+            ls = buf + i + 1;
+            i++;
+            continue;
+        }
+        k = utf8_len(u + i, len - i);
+        if (k == 0)
+            return nserr_set(err, NS_ERR_SYNTAX, line, col_of(ls, buf + i),
+                             "invalid UTF-8 (byte 0x%02x)", u[i]);
+        i += k;
+    }
+    return NS_OK;
+}
+
+/* For messages: at most about 40 bytes of s, not cut inside a character. */
+static int short_len(const char *s, size_t n)
+{
+    if (n <= 40)
+        return (int)n;
+    n = 40;
+    while (n > 0 && ((unsigned char)s[n] & 0xC0) == 0x80)
+        n--;
+    return (int)n;
+}
+
+/* ------------------------------------------------------------------------ */
+/* Storage                                                                   */
+
+void session_init(session_t s)
+{
+    s->title.text = s->group.text = s->map.text = s->iterate_word.text = NULL;
+    s->title.line = s->title.col = 0;
+    s->group.line = s->group.col = 0;
+    s->map.line = s->map.col = 0;
+    s->iterate_word.line = s->iterate_word.col = 0;
+    s->cls = 0;
+    s->nnotes = 0;
+    s->notes = NULL;
+    s->cursor_layer = -1;
+    s->cursor_image = -1;
+    s->iterate_steps = -1;
+}
+
+void session_clear_notes(session_t s)
+{
+    for (slong i = 0; i < s->nnotes; i++)
+        flint_free(s->notes[i].text);
+    flint_free(s->notes);
+    s->notes = NULL;
+    s->nnotes = 0;
+}
+
+void session_clear(session_t s)
+{
+    text_clear(&s->title);
+    text_clear(&s->group);
+    text_clear(&s->map);
+    text_clear(&s->iterate_word);
+    session_clear_notes(s);
+    session_init(s);
+}
+
+static void push_note(session_struct *s, const char *text, size_t n, int line, int col)
+{
+    s->notes = flint_realloc(s->notes, sizeof(session_text_struct) * (s->nnotes + 1));
+    s->notes[s->nnotes].text = NULL;
+    text_set(&s->notes[s->nnotes], text, n, line, col);
+    s->nnotes++;
+}
+
+void session_set(session_t dst, const session_t src)
+{
+    session_t t;
+
+    if (dst == src)
+        return;
+    session_init(t);
+    text_copy(&t->title, &src->title);
+    text_copy(&t->group, &src->group);
+    text_copy(&t->map, &src->map);
+    text_copy(&t->iterate_word, &src->iterate_word);
+    t->cls = src->cls;
+    for (slong i = 0; i < src->nnotes; i++)
+        push_note(t, src->notes[i].text, strlen(src->notes[i].text), src->notes[i].line,
+                  src->notes[i].col);
+    t->cursor_layer = src->cursor_layer;
+    t->cursor_image = src->cursor_image;
+    t->iterate_steps = src->iterate_steps;
+    session_swap(dst, t);
+    session_clear(t);
+}
+
+void session_swap(session_t a, session_t b)
+{
+    session_struct t = *a;
+    *a = *b;
+    *b = t;
+}
+
+static int texts_equal(const char *a, const char *b)
+{
+    char *x = norm_text(a), *y = norm_text(b);
+    int eq = strcmp(x, y) == 0;
+    flint_free(x);
+    flint_free(y);
+    return eq;
+}
+
+int session_equal(const session_t a, const session_t b)
+{
+    if (a->cls != b->cls || a->nnotes != b->nnotes || a->cursor_layer != b->cursor_layer ||
+        a->cursor_image != b->cursor_image || a->iterate_steps != b->iterate_steps)
+        return 0;
+    if (!texts_equal(a->title.text, b->title.text) || !texts_equal(a->group.text, b->group.text) ||
+        !texts_equal(a->map.text, b->map.text) ||
+        !texts_equal(a->iterate_word.text, b->iterate_word.text))
+        return 0;
+    for (slong i = 0; i < a->nnotes; i++)
+        if (!texts_equal(a->notes[i].text, b->notes[i].text))
+            return 0;
+    return 1;
+}
+
+/* ------------------------------------------------------------------------ */
+/* Setters                                                                   */
+
+static void set_or_remove(session_text_struct *t, const char *text)
+{
+    if (text_is_blank(text))
+        text_clear(t);
+    else
+        text_set(t, text, strlen(text), 1, 1);
+}
+
+void session_set_title(session_t s, const char *text)
+{
+    set_or_remove(&s->title, text);
+}
+
+void session_set_group(session_t s, const char *text)
+{
+    set_or_remove(&s->group, text);
+}
+
+void session_set_map(session_t s, const char *text)
+{
+    set_or_remove(&s->map, text);
+}
+
+ns_status session_set_class(session_t s, int cls, nserr_t err)
+{
+    if (cls < 0 || cls > SESSION_MAX_CLASS)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "class must be a whole number from 1 to %d",
+                         SESSION_MAX_CLASS);
+    s->cls = cls;
+    return NS_OK;
+}
+
+void session_add_note(session_t s, const char *text)
+{
+    if (!text_is_blank(text))
+        push_note(s, text, strlen(text), 1, 1);
+}
+
+static slong clamp_index(slong v)
+{
+    if (v < 0)
+        return -1;
+    return v > SESSION_MAX_INDEX ? SESSION_MAX_INDEX : v;
+}
+
+void session_set_cursor(session_t s, slong layer, slong image)
+{
+    s->cursor_layer = clamp_index(layer);
+    s->cursor_image = clamp_index(image);
+}
+
+void session_set_iterate(session_t s, const char *word, slong steps)
+{
+    set_or_remove(&s->iterate_word, word);
+    s->iterate_steps = clamp_index(steps);
+}
+
+/* ------------------------------------------------------------------------ */
+/* Parsing                                                                   */
+
+enum { K_TITLE, K_GROUP, K_CLASS, K_MAP, K_NOTE, K_CURSOR, K_ITERATE, NKEYS };
+static const char *const key_names[NKEYS] = {"title", "group",  "class",  "map",
+                                             "note",  "cursor", "iterate"};
+
+/* The entry being read: its key and the span of its value in the file. */
+typedef struct {
+    int key;            /* -1: none yet */
+    int key_line, key_end_col;
+    const char *vstart; /* NULL until the value's first character is seen */
+    const char *vend;   /* just past its last non-blank character */
+    int vline, vcol;
+} entry;
+
+/* Whitespace-separated words of a value, with '#' comments (class, cursor
+ * and iterate values). */
+typedef struct {
+    const char *p, *end;
+    int line, col;
+} wscan;
+
+typedef struct {
+    const char *start;
+    size_t len;
+    int line, col;
+} word;
+
+static int wscan_next(wscan *w, word *out)
+{
+    for (;;) {
+        if (w->p >= w->end)
+            return 0;
+        if (*w->p == '#') {
+            while (w->p < w->end && *w->p != '\n')
+                w->p++;
+        } else if (*w->p == '\n') {
+            w->line++;
+            w->col = 1;
+            w->p++;
+        } else if (is_blank(*w->p)) {
+            w->col++;
+            w->p++;
+        } else {
+            break;
+        }
+    }
+    out->start = w->p;
+    out->line = w->line;
+    out->col = w->col;
+    while (w->p < w->end && !is_blank(*w->p) && *w->p != '\n' && *w->p != '#') {
+        if (((unsigned char)*w->p & 0xC0) != 0x80)
+            w->col++;
+        w->p++;
+    }
+    out->len = (size_t)(w->p - out->start);
+    return 1;
+}
+
+static int word_is(const word *w, const char *s)
+{
+    return strlen(s) == w->len && memcmp(w->start, s, w->len) == 0;
+}
+
+/* Reads a whole number 0..max from w; -1 if it is not one. */
+static slong word_number(const word *w, slong max)
+{
+    slong v = 0;
+    if (w->len == 0)
+        return -1;
+    for (size_t i = 0; i < w->len; i++) {
+        if (w->start[i] < '0' || w->start[i] > '9')
+            return -1;
+        v = 10 * v + (w->start[i] - '0');
+        if (v > max)
+            return -1;
+    }
+    return v;
+}
+
+static ns_status parse_class(session_struct *s, const entry *e, nserr_t err)
+{
+    wscan w = {e->vstart, e->vend, e->vline, e->vcol};
+    word a, b;
+    slong v;
+
+    if (!wscan_next(&w, &a)) /* the value may be a lone comment */
+        return nserr_set(err, NS_ERR_INPUT, e->vline, e->vcol,
+                         "class must be a whole number from 1 to %d", SESSION_MAX_CLASS);
+    if ((v = word_number(&a, SESSION_MAX_CLASS)) < 1)
+        return nserr_set(err, NS_ERR_INPUT, a.line, a.col,
+                         "class must be a whole number from 1 to %d", SESSION_MAX_CLASS);
+    if (wscan_next(&w, &b))
+        return nserr_set(err, NS_ERR_INPUT, b.line, b.col, "unexpected '%.*s' after the class",
+                         short_len(b.start, b.len), b.start);
+    s->cls = (int)v;
+    return NS_OK;
+}
+
+static ns_status parse_cursor(session_struct *s, const entry *e, nserr_t err)
+{
+    wscan w = {e->vstart, e->vend, e->vline, e->vcol};
+    word k, n;
+    int seen = 0;
+
+    while (wscan_next(&w, &k)) {
+        slong *field;
+        slong v;
+        if (word_is(&k, "layer"))
+            field = &s->cursor_layer;
+        else if (word_is(&k, "image"))
+            field = &s->cursor_image;
+        else
+            return nserr_set(err, NS_ERR_INPUT, k.line, k.col,
+                             "unknown cursor field '%.*s' (expected 'layer' or 'image')",
+                             short_len(k.start, k.len), k.start);
+        if (*field >= 0)
+            return nserr_set(err, NS_ERR_INPUT, k.line, k.col, "repeated cursor field '%.*s'",
+                             (int)k.len, k.start);
+        if (!wscan_next(&w, &n))
+            return nserr_set(err, NS_ERR_INPUT, k.line, k.col,
+                             "expected a whole number after '%.*s'", (int)k.len, k.start);
+        if ((v = word_number(&n, SESSION_MAX_INDEX)) < 0)
+            return nserr_set(err, NS_ERR_INPUT, n.line, n.col,
+                             "expected a whole number from 0 to %ld after '%.*s'",
+                             (long)SESSION_MAX_INDEX, (int)k.len, k.start);
+        *field = v;
+        seen = 1;
+    }
+    if (!seen)
+        return nserr_set(err, NS_ERR_INPUT, e->vline, e->vcol,
+                         "expected 'layer N' or 'image N' in cursor");
+    return NS_OK;
+}
+
+static ns_status parse_steps(session_struct *s, const word *k, const word *n, nserr_t err)
+{
+    slong v = word_number(n, SESSION_MAX_INDEX);
+    if (v < 0)
+        return nserr_set(err, NS_ERR_INPUT, n->line, n->col,
+                         "steps must be a whole number from 0 to %ld", (long)SESSION_MAX_INDEX);
+    (void)k;
+    s->iterate_steps = v;
+    return NS_OK;
+}
+
+static ns_status parse_iterate(session_struct *s, const entry *e, nserr_t err)
+{
+    wscan w = {e->vstart, e->vend, e->vline, e->vcol};
+    word *ws = NULL;
+    slong n = 0, cap = 0, first_word = -1, last_word = -1;
+    ns_status st = NS_OK;
+    word t;
+
+    while (wscan_next(&w, &t)) {
+        if (n == cap) {
+            cap = cap ? 2 * cap : 8;
+            ws = flint_realloc(ws, sizeof(word) * cap);
+        }
+        ws[n++] = t;
+    }
+    if (n == 0) {
+        st = nserr_set(err, NS_ERR_INPUT, e->vline, e->vcol,
+                       "expected 'word W' or 'steps N' in iterate");
+        goto done;
+    }
+    if (word_is(&ws[0], "steps")) {
+        if (n < 2) {
+            st = nserr_set(err, NS_ERR_INPUT, ws[0].line, ws[0].col,
+                           "expected a whole number after 'steps'");
+            goto done;
+        }
+        if ((st = parse_steps(s, &ws[0], &ws[1], err)) != NS_OK)
+            goto done;
+        if (n > 2) {
+            if (!word_is(&ws[2], "word")) {
+                st = nserr_set(err, NS_ERR_INPUT, ws[2].line, ws[2].col,
+                               "expected 'word' after the steps, found '%.*s'",
+                               short_len(ws[2].start, ws[2].len), ws[2].start);
+                goto done;
+            }
+            if (n == 3) {
+                st = nserr_set(err, NS_ERR_INPUT, ws[2].line, ws[2].col,
+                               "expected a word after 'word'");
+                goto done;
+            }
+            first_word = 3;
+            last_word = n - 1;
+        }
+    } else if (word_is(&ws[0], "word")) {
+        slong end = n;
+        if (n >= 3 && word_is(&ws[n - 2], "steps") &&
+            word_number(&ws[n - 1], SESSION_MAX_INDEX) >= 0) {
+            if ((st = parse_steps(s, &ws[n - 2], &ws[n - 1], err)) != NS_OK)
+                goto done;
+            end = n - 2;
+        }
+        if (end < 2) {
+            st = nserr_set(err, NS_ERR_INPUT, ws[0].line, ws[0].col,
+                           "expected a word after 'word'");
+            goto done;
+        }
+        first_word = 1;
+        last_word = end - 1;
+    } else {
+        st = nserr_set(err, NS_ERR_INPUT, ws[0].line, ws[0].col,
+                       "expected 'word' or 'steps' in iterate, found '%.*s'",
+                       short_len(ws[0].start, ws[0].len), ws[0].start);
+        goto done;
+    }
+    if (first_word >= 0) {
+        const char *a = ws[first_word].start;
+        const char *z = ws[last_word].start + ws[last_word].len;
+        text_set(&s->iterate_word, a, (size_t)(z - a), ws[first_word].line, ws[first_word].col);
+    }
+
+done:
+    flint_free(ws);
+    return st;
+}
+
+/* Free text: the first line of the value, then each continuation line
+ * without its indentation; comment and blank lines left out. */
+static void free_text(strbuf *b, const entry *e)
+{
+    const char *p = e->vstart;
+    int first = 1;
+
+    sb_puts(b, "");
+    while (p < e->vend) {
+        const char *le = memchr(p, '\n', (size_t)(e->vend - p));
+        const char *a = p, *z;
+        if (le == NULL)
+            le = e->vend;
+        if (!first && *p == '#') {
+            p = le + 1;
+            continue;
+        }
+        while (a < le && is_blank(*a))
+            a++;
+        z = le;
+        while (z > a && is_blank(z[-1]))
+            z--;
+        if (z > a) {
+            if (b->len > 0)
+                sb_puts(b, "\n");
+            sb_putn(b, a, (size_t)(z - a));
+        }
+        first = 0;
+        p = le + 1;
+    }
+}
+
+static ns_status finish_entry(session_struct *s, const entry *e, nserr_t err)
+{
+    if (e->key < 0)
+        return NS_OK;
+    if (e->vstart == NULL)
+        return nserr_set(err, NS_ERR_SYNTAX, e->key_line, e->key_end_col,
+                         "key '%s' needs a value", key_names[e->key]);
+    switch (e->key) {
+    case K_TITLE:
+    case K_NOTE: {
+        strbuf b = {NULL, 0, 0};
+        free_text(&b, e);
+        if (e->key == K_TITLE)
+            text_set(&s->title, b.s, b.len, e->vline, e->vcol);
+        else
+            push_note(s, b.s, b.len, e->vline, e->vcol);
+        flint_free(b.s);
+        return NS_OK;
+    }
+    case K_GROUP:
+        text_set(&s->group, e->vstart, (size_t)(e->vend - e->vstart), e->vline, e->vcol);
+        return NS_OK;
+    case K_MAP:
+        text_set(&s->map, e->vstart, (size_t)(e->vend - e->vstart), e->vline, e->vcol);
+        return NS_OK;
+    case K_CLASS:
+        return parse_class(s, e, err);
+    case K_CURSOR:
+        return parse_cursor(s, e, err);
+    default:
+        return parse_iterate(s, e, err);
+    }
+}
+
+static ns_status parse_buf(session_struct *s, const char *buf, size_t len, nserr_t err)
+{
+    const char *p = buf, *end = buf + len, *le;
+    int line = 1, seen_line[NKEYS];
+    entry cur;
+    ns_status st;
+
+    if ((st = check_bytes(buf, len, err)) != NS_OK)
+        return st;
+    for (int k = 0; k < NKEYS; k++)
+        seen_line[k] = 0;
+
+    /* The first line. */
+    if (len >= 3 && memcmp(p, "\xEF\xBB\xBF", 3) == 0)
+        p += 3;
+    le = memchr(p, '\n', (size_t)(end - p));
+    if (le == NULL)
+        le = end;
+    {
+        size_t n = (size_t)(le - p), m = strlen(SESSION_MAGIC);
+        if (n > 0 && p[n - 1] == '\r')
+            n--;
+        if (n != m || memcmp(p, SESSION_MAGIC, m) != 0) {
+            size_t pre = strlen("nilstep session ");
+            if (n > pre && memcmp(p, "nilstep session ", pre) == 0)
+                return nserr_set(err, NS_ERR_SYNTAX, 1, (int)pre + 1,
+                                 "session format '%.*s' is not known to this program "
+                                 "(it reads format 1)",
+                                 short_len(p + pre, n - pre), p + pre);
+            return nserr_set(err, NS_ERR_SYNTAX, 1, 1,
+                             "not a nilstep session file (the first line must be '%s')",
+                             SESSION_MAGIC);
+        }
+    }
+    p = le < end ? le + 1 : end;
+    line = 2;
+
+    memset(&cur, 0, sizeof cur);
+    cur.key = -1;
+    cur.vstart = NULL;
+    while (p < end) {
+        const char *q, *z;
+        le = memchr(p, '\n', (size_t)(end - p));
+        if (le == NULL)
+            le = end;
+        q = p;
+        while (q < le && is_blank(*q))
+            q++;
+        z = le;
+        while (z > q && is_blank(z[-1]))
+            z--;
+
+        if (q == le || *p == '#') {
+            /* blank or comment line */
+        } else if (is_blank(*p)) {
+            if (cur.key < 0)
+                return nserr_set(err, NS_ERR_SYNTAX, line, col_of(p, q),
+                                 "indented line continues no key (keys start in column 1)");
+            if (cur.vstart == NULL) {
+                cur.vstart = q;
+                cur.vline = line;
+                cur.vcol = col_of(p, q);
+            }
+            cur.vend = z;
+        } else {
+            const char *k = p;
+            int key = -1;
+            if ((st = finish_entry(s, &cur, err)) != NS_OK)
+                return st;
+            while (k < le && !is_blank(*k))
+                k++;
+            for (int i = 0; i < NKEYS; i++)
+                if (strlen(key_names[i]) == (size_t)(k - p) &&
+                    memcmp(key_names[i], p, (size_t)(k - p)) == 0)
+                    key = i;
+            if (key < 0)
+                return nserr_set(err, NS_ERR_INPUT, line, 1,
+                                 "unknown key '%.*s' (keys: title, group, class, map, cursor, "
+                                 "iterate, note)",
+                                 short_len(p, (size_t)(k - p)), p);
+            if (key != K_NOTE && seen_line[key] > 0)
+                return nserr_set(err, NS_ERR_INPUT, line, 1,
+                                 "repeated key '%s' (first on line %d)", key_names[key],
+                                 seen_line[key]);
+            seen_line[key] = line;
+            cur.key = key;
+            cur.key_line = line;
+            cur.key_end_col = col_of(p, k);
+            cur.vstart = NULL;
+            while (k < le && is_blank(*k))
+                k++;
+            if (k < z) {
+                cur.vstart = k;
+                cur.vline = line;
+                cur.vcol = col_of(p, k);
+                cur.vend = z;
+            }
+        }
+        p = le < end ? le + 1 : end;
+        line++;
+    }
+    if ((st = finish_entry(s, &cur, err)) != NS_OK)
+        return st;
+    if (s->group.text == NULL)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "missing key 'group' (the presentation)");
+    if (s->cls == 0)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "missing key 'class' (a number from 1 to %d)",
+                         SESSION_MAX_CLASS);
+    return NS_OK;
+}
+
+ns_status session_parse(session_t s, const char *text, nserr_t err)
+{
+    session_t t;
+    ns_status st;
+
+    session_init(t);
+    st = parse_buf(t, text, strlen(text), err);
+    if (st == NS_OK)
+        session_swap(s, t);
+    session_clear(t);
+    return st;
+}
+
+/* ------------------------------------------------------------------------ */
+/* Files                                                                     */
+
+static ns_status io_error(nserr_t err, const char *what, const char *path, int errnum)
+{
+    char reason[256];
+    if (strerror_r(errnum, reason, sizeof reason) != 0)
+        snprintf(reason, sizeof reason, "error %d", errnum);
+    return nserr_set(err, NS_ERR_IO, 0, 0, "%s '%s': %s", what, path, reason);
+}
+
+ns_status session_load(session_t s, const char *path, nserr_t err)
+{
+    FILE *f = fopen(path, "rb");
+    char *buf = NULL;
+    size_t len = 0, cap = 0;
+    session_t t;
+    ns_status st;
+
+    if (f == NULL)
+        return io_error(err, "cannot open", path, errno);
+    for (;;) {
+        size_t got;
+        if (cap - len < 65536) {
+            cap = cap ? 2 * cap : 65536;
+            buf = flint_realloc(buf, cap + 1);
+        }
+        got = fread(buf + len, 1, cap - len, f);
+        len += got;
+        if (len > (size_t)SESSION_MAX_BYTES) {
+            fclose(f);
+            flint_free(buf);
+            return nserr_set(err, NS_ERR_LIMIT, 0, 0,
+                             "'%s' is larger than %ld MiB: not a session file", path,
+                             SESSION_MAX_BYTES / (1024 * 1024));
+        }
+        if (got == 0) {
+            if (ferror(f)) {
+                int e = errno;
+                fclose(f);
+                flint_free(buf);
+                return io_error(err, "cannot read", path, e);
+            }
+            break;
+        }
+    }
+    fclose(f);
+    buf[len] = '\0';
+
+    session_init(t);
+    st = parse_buf(t, buf, len, err);
+    if (st == NS_OK)
+        session_swap(s, t);
+    session_clear(t);
+    flint_free(buf);
+    return st;
+}
+
+/* "key" padded to column 9, then the normal form of the text with
+ * continuation lines indented by 4 spaces. */
+static void put_entry(strbuf *b, const char *key, const char *prefix, const char *text)
+{
+    char *n = norm_text(text);
+    char pad[16];
+    const char *p = n;
+
+    snprintf(pad, sizeof pad, "%-8s", key);
+    sb_puts(b, pad);
+    if (prefix != NULL)
+        sb_puts(b, prefix);
+    while (*p != '\0') {
+        const char *e = strchr(p, '\n');
+        if (e == NULL) {
+            sb_puts(b, p);
+            break;
+        }
+        sb_putn(b, p, (size_t)(e - p));
+        sb_puts(b, "\n    ");
+        p = e + 1;
+    }
+    sb_puts(b, "\n");
+    flint_free(n);
+}
+
+static int has_text(const char *t)
+{
+    return !text_is_blank(t);
+}
+
+char *session_get_str(const session_t s)
+{
+    strbuf b = {NULL, 0, 0};
+    char num[64];
+
+    sb_puts(&b, SESSION_MAGIC "\n");
+    if (has_text(s->title.text))
+        put_entry(&b, "title", NULL, s->title.text);
+    if (has_text(s->group.text))
+        put_entry(&b, "group", NULL, s->group.text);
+    if (s->cls > 0) {
+        snprintf(num, sizeof num, "%d", s->cls);
+        put_entry(&b, "class", NULL, num);
+    }
+    if (has_text(s->map.text))
+        put_entry(&b, "map", NULL, s->map.text);
+    if (s->cursor_layer >= 0 || s->cursor_image >= 0) {
+        char v[96] = "";
+        if (s->cursor_layer >= 0)
+            snprintf(v, sizeof v, "layer %ld", (long)s->cursor_layer);
+        if (s->cursor_image >= 0)
+            snprintf(v + strlen(v), sizeof v - strlen(v), "%simage %ld", v[0] ? " " : "",
+                     (long)s->cursor_image);
+        put_entry(&b, "cursor", NULL, v);
+    }
+    /* steps first: the word runs to the end of the value and may end in a
+     * comment. */
+    if (s->iterate_steps >= 0 || has_text(s->iterate_word.text)) {
+        char v[64] = "";
+        if (s->iterate_steps >= 0)
+            snprintf(v, sizeof v, "steps %ld%s", (long)s->iterate_steps,
+                     has_text(s->iterate_word.text) ? " " : "");
+        if (has_text(s->iterate_word.text)) {
+            strcat(v, "word ");
+            put_entry(&b, "iterate", v, s->iterate_word.text);
+        } else {
+            put_entry(&b, "iterate", NULL, v);
+        }
+    }
+    for (slong i = 0; i < s->nnotes; i++)
+        if (has_text(s->notes[i].text))
+            put_entry(&b, "note", NULL, s->notes[i].text);
+    return b.s;
+}
+
+ns_status session_save(const session_t s, const char *path, nserr_t err)
+{
+    size_t plen = strlen(path);
+    char *tmp, *text, *dir;
+    const char *slash;
+    struct stat old;
+    FILE *f;
+    int fd, e;
+
+    if (!has_text(s->group.text))
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "the session has no group to save");
+    if (s->cls < 1)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "the session has no class to save");
+
+    tmp = flint_malloc(plen + 16);
+    memcpy(tmp, path, plen);
+    memcpy(tmp + plen, ".tmp-XXXXXX", 12);
+    fd = mkstemp(tmp);
+    if (fd < 0) {
+        e = errno;
+        flint_free(tmp);
+        return io_error(err, "cannot create a temporary file for", path, e);
+    }
+    /* mkstemp makes the file private; keep the mode of the file it will
+     * replace, else the usual mode of a document. */
+    if (fchmod(fd, stat(path, &old) == 0 ? (old.st_mode & 07777) : 0644) != 0) {
+        e = errno;
+        goto fail_fd;
+    }
+    f = fdopen(fd, "wb");
+    if (f == NULL) {
+        e = errno;
+        goto fail_fd;
+    }
+    text = session_get_str(s);
+    {
+        size_t n = strlen(text);
+        int ok = fwrite(text, 1, n, f) == n;
+        e = errno;
+        flint_free(text);
+        if (ok && fflush(f) != 0) {
+            ok = 0;
+            e = errno;
+        }
+        if (ok && fsync(fileno(f)) != 0) {
+            ok = 0;
+            e = errno;
+        }
+        if (fclose(f) != 0 && ok) {
+            ok = 0;
+            e = errno;
+        }
+        if (!ok)
+            goto fail_file;
+    }
+    if (rename(tmp, path) != 0) {
+        e = errno;
+        goto fail_file;
+    }
+    /* Make the rename itself durable; failing here loses nothing. */
+    slash = strrchr(path, '/');
+    dir = slash == NULL ? dup_n(".", 1) : dup_n(path, slash == path ? 1 : (size_t)(slash - path));
+    fd = open(dir, O_RDONLY);
+    if (fd >= 0) {
+        (void)fsync(fd);
+        close(fd);
+    }
+    flint_free(dir);
+    flint_free(tmp);
+    return NS_OK;
+
+fail_fd:
+    close(fd);
+fail_file:
+    unlink(tmp);
+    flint_free(tmp);
+    return io_error(err, "cannot write", path, e);
+}
