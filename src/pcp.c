@@ -287,12 +287,56 @@ static void add_power(pcp_work_t W, fmpz *u, slong i, const fmpz_t e)
     fmpz_clear(q);
 }
 
+/* For a presentation without finite relative orders, e -> x^e and
+ * e -> y^(a_i^e) have coordinates that are integer-valued polynomials of
+ * degree at most maxweight in e (P. Hall, "Nilpotent groups", 1957; the
+ * polynomial route of ALGORITHMS.md §3).  Given the values at
+ * e = 0..D in samples (D+1 vectors of length n), out := the value at e, by
+ * Newton's forward differences: f(e) = sum_d (Delta^d f)(0) binom(e, d),
+ * binom(e, d) = e (e-1) ... (e-d+1) / d! for any integer e. */
+static void newton_eval(fmpz *out, fmpz *samples, slong D, slong n, const fmpz_t e)
+{
+    for (slong d = 1; d <= D; d++)
+        for (slong t = D; t >= d; t--)
+            _fmpz_vec_sub(samples + t * n, samples + t * n, samples + (t - 1) * n, n);
+    fmpz_t b, f;
+    fmpz_init_set_ui(b, 1);
+    fmpz_init(f);
+    _fmpz_vec_zero(out, n);
+    for (slong d = 0; d <= D; d++) {
+        if (d > 0) {
+            fmpz_sub_ui(f, e, (ulong)(d - 1));
+            fmpz_mul(b, b, f);
+            fmpz_divexact_ui(b, b, (ulong)d);
+        }
+        _fmpz_vec_scalar_addmul_fmpz(out, samples + d * n, n, b);
+    }
+    fmpz_clear(b);
+    fmpz_clear(f);
+}
+
+/* Exponents up to this size are handled by plain collection; larger ones
+ * by the polynomial route when the presentation allows it. */
+#define PCP_SMALL_BITS 4
+
 /* out := y^(a_i^e) for y in the subgroup of generators > i (y is a vector
  * of length n with zeros up to i), by the automorphisms
  * phi_b = conjugation by a_i^(sign e * 2^b), each the square of the last. */
+static void conj_once(pcp_work_t W, fmpz *out, const fmpz *y, slong i);
+
 static void conj_by_power(pcp_work_t W, fmpz *out, const fmpz *y, slong i, const fmpz_t e)
 {
     const pcp_struct *P = W->P;
+    if (P->torsion_free && fmpz_bits(e) > PCP_SMALL_BITS) {
+        slong n = P->n, D = P->maxweight;
+        fmpz *smp = _fmpz_vec_init((D + 1) * n);
+        _fmpz_vec_set(smp, y, n);
+        for (slong t = 1; t <= D; t++)
+            conj_once(W, smp + t * n, smp + (t - 1) * n, i);
+        newton_eval(out, smp, D, n, e);
+        _fmpz_vec_clear(smp, (D + 1) * n);
+        return;
+    }
     slong n = P->n, cf = P->commute_from[i];
     slong lo = i + 1, cnt = cf - lo;
     int neg = fmpz_sgn(e) < 0;
@@ -483,6 +527,13 @@ void pcp_elt_pow(pcp_work_t W, fmpz *out, const fmpz *u, const fmpz_t e)
     if (nz == 1) {
         fmpz_mul(E, u + g, e);
         pcp_collect_gen(W, res, g, E);
+    } else if (W->P->torsion_free && fmpz_bits(e) > PCP_SMALL_BITS) {
+        slong D = W->P->maxweight;
+        fmpz *smp = _fmpz_vec_init((D + 1) * n);
+        for (slong t = 1; t <= D; t++)
+            pcp_elt_mul(W, smp + t * n, smp + (t - 1) * n, u);
+        newton_eval(res, smp, D, n, e);
+        _fmpz_vec_clear(smp, (D + 1) * n);
     } else {
         slong bits = fmpz_bits(E);
         for (slong b = bits - 1; b >= 0 && !W->overflow; b--) {
@@ -587,6 +638,10 @@ static void conj_once(pcp_work_t W, fmpz *out, const fmpz *y, slong i)
 int pcp_complete(pcp_t P, pcp_work_t W)
 {
     slong n = P->n;
+    P->torsion_free = 1;
+    for (slong i = 0; i < n; i++)
+        if (!fmpz_is_zero(P->relorder + i))
+            P->torsion_free = 0;
     fmpz *y = _fmpz_vec_init(n);
     fmpz *z = _fmpz_vec_init(n);
     fmpz *ak = _fmpz_vec_init(n);

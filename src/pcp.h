@@ -17,9 +17,10 @@
  * J. Symbolic Comput. 9, 1990; M. Vaughan-Lee, "Collection from the left",
  * same volume, 1990): the collected part is a vector, and multiplying by a_i
  * conjugates the uncollected tail by a_i through the stored relations.
- * Conjugation by a large power a_i^e uses the automorphisms
- * x -> x^(a_i^(2^b)) built by repeated squaring, so that exponents with
- * thousands of digits cost O(log e) group operations. */
+ * Large exponents: when no relative order is finite, x^e and conjugation
+ * by a_i^e are evaluated as integer-valued polynomials in e (Hall), from
+ * maxweight + 1 small values; otherwise conjugation by a_i^e uses the
+ * automorphisms x -> x^(a_i^(2^b)) built by repeated squaring. */
 #ifndef NILSTEP_PCP_H
 #define NILSTEP_PCP_H
 
@@ -75,6 +76,8 @@ typedef struct {
     char *trivial;        /* 1: a_k and a_i commute */
     slong *commute_from;  /* n: every k >= commute_from[i] commutes with a_i */
     pcp_def_struct *def;  /* n definitions */
+    int torsion_free;     /* no finite relative order (set by pcp_complete);
+                             then large powers go by Hall polynomials */
 } pcp_struct;
 typedef pcp_struct pcp_t[1];
 
