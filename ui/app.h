@@ -1,0 +1,165 @@
+/* app.h — the explorer's state and the contract between its parts
+ * (internal to ui/).
+ *
+ * The explorer is a small state machine: one screen at a time (main table,
+ * layer detail, help), optionally with a prompt in front of it (a line
+ * editor or a yes/no question).  Each screen has a draw function that
+ * paints the whole frame from the state, and a table of key bindings whose
+ * actions change the state and return what must happen next (ACT_* flags);
+ * only the main loop in explorer.c acts on those flags, computes, and
+ * redraws.  Nothing here does group theory: every number comes from the
+ * analysis_t, which the main loop feeds.
+ *
+ * Ownership: explorer_app owns everything it points to; the screens only
+ * read it, except through the actions. */
+#ifndef NILSTEP_UI_APP_H
+#define NILSTEP_UI_APP_H
+
+#include <stddef.h>
+
+#include "analysis.h"
+#include "lineedit.h"
+#include "pres.h"
+#include "session.h"
+#include "viewmodel.h"
+
+/* What an action asks of the main loop. */
+enum {
+    ACT_NONE = 0,
+    ACT_REDRAW = 1,   /* the frame must be painted again */
+    ACT_MAP = 2,      /* the images changed: analyse the map again */
+    ACT_GROUP = 4,    /* app->pending_group / pending_cls: recompute the quotient */
+    ACT_OPEN = 8,     /* app->pending_doc: open it (recomputes everything) */
+    ACT_SAVE = 16,    /* write the session to app->path */
+    ACT_QUIT = 32
+};
+
+typedef enum { SCREEN_MAIN, SCREEN_LAYER, SCREEN_HELP } screen_id;
+
+typedef enum {
+    PROMPT_NONE,
+    PROMPT_IMAGE,        /* editing the image of generator edit_index */
+    PROMPT_GROUP,        /* editing the presentation */
+    PROMPT_TITLE,
+    PROMPT_SAVE_AS,      /* a path to save to */
+    PROMPT_OPEN,         /* a path to open */
+    PROMPT_CONFIRM_QUIT, /* unsaved changes: y quits */
+    PROMPT_CONFIRM_OPEN  /* unsaved changes: y goes on to PROMPT_OPEN */
+} prompt_kind;
+
+/* Keys: a Unicode character is its code point; a curses function key
+ * (KEY_UP, KEY_RESIZE ...) is UIKEY_FN(code), above every code point. */
+#define UIKEY_FN(k) (0x200000 | (k))
+#define UIKEY_ESC 27
+#define UIKEY_CTRL(c) ((c) & 0x1f)
+
+typedef struct explorer_app_struct explorer_app;
+
+/* One line of a key table: the action runs on `key`; `keys` and `help` are
+ * what the help screen shows (the first binding of an action carries
+ * them, further keys for the same action leave them NULL); `hint` is the
+ * short label of the bottom line, NULL when the key is left out there. */
+typedef struct {
+    int key;
+    int (*action)(explorer_app *app);
+    const char *keys;
+    const char *help;
+    const char *hint;
+} ui_binding;
+
+typedef struct {
+    const char *title;
+    const ui_binding *bindings;
+    size_t n;
+} ui_keymap;
+
+struct explorer_app_struct {
+    /* the document */
+    session_t doc;          /* the session as loaded; keys we do not edit
+                               (notes, iterate) are saved back unchanged */
+    char *path;             /* where `s` saves; NULL for the built-in scenario */
+    char *title;            /* shown in the header; never NULL */
+    char *group_text;       /* the presentation, one line */
+    pres_t pres;            /* group_text parsed */
+    slong cls;              /* the class asked for */
+    int group_edited;       /* presentation or class changed since loading */
+    int map_edited;         /* an image changed since loading */
+    int title_edited;
+    analysis_struct *A;     /* the current analysis, owned; may lack a group */
+    char group_problem[600];/* why A has no group or no map, or "" */
+    viewmodel_t vm;
+
+    /* requests from actions to the main loop */
+    char *pending_group;    /* owned */
+    slong pending_cls;
+    session_t pending_doc;  /* valid when has_pending_doc */
+    int has_pending_doc;
+    char *pending_path;     /* owned */
+
+    /* the state machine */
+    screen_id screen;
+    screen_id help_return;  /* where Esc leaves the help */
+    prompt_kind prompt;
+    lineedit_t edit;        /* the prompt's text */
+    size_t edit_index;      /* PROMPT_IMAGE: which image */
+    size_t edit_scroll;     /* first code point shown */
+    char edit_msg[600];     /* parse result of the text being typed */
+    int edit_ok;            /* 1: it parses */
+    int edit_caret;         /* 1-based column of the error in the text, 0 none */
+
+    /* scrolling */
+    int detail_scroll;
+    int help_scroll;
+    int table_top;          /* first layer row shown */
+    int image_top;          /* first image row shown */
+
+    /* bottom line */
+    char status[700];
+    int status_error;
+
+    /* keys typed while a computation ran, replayed after it (Esc excepted) */
+    int typeahead[64];
+    int ntypeahead;
+
+    int utf8;               /* the terminal takes UTF-8: use ρ, ↦, … */
+    int running;
+};
+
+/* ---- screens (screen_*.c, prompt.c) -------------------------------- */
+
+void screen_main_draw(explorer_app *app);
+const ui_keymap *screen_main_keys(void);
+
+void screen_layer_draw(explorer_app *app);
+const ui_keymap *screen_layer_keys(void);
+
+void screen_help_draw(explorer_app *app);
+const ui_keymap *screen_help_keys(void);
+
+/* Draws the prompt over the bottom of the frame. */
+void prompt_draw(explorer_app *app);
+/* Handles one key while a prompt is open; returns ACT_* flags. */
+int prompt_key(explorer_app *app, int key);
+/* Opens a prompt of that kind (text prompts start with text). */
+void prompt_open(explorer_app *app, prompt_kind kind, const char *text);
+/* Parses the text being typed and sets edit_ok / edit_msg / edit_caret. */
+void prompt_check(explorer_app *app);
+/* The line editor's own keys, for the help screen. */
+const ui_keymap *prompt_keys(void);
+
+/* ---- shared by the screens (explorer.c) ----------------------------- */
+
+/* Sets the bottom-line message (printf-style). */
+void app_status(explorer_app *app, int is_error, const char *fmt, ...)
+    __attribute__((format(printf, 3, 4)));
+
+/* Draws the bottom key line from a keymap's hints. */
+void app_draw_hints(explorer_app *app, const ui_keymap *km);
+
+/* Draws the message line (row LINES - 2). */
+void app_draw_status(explorer_app *app);
+
+/* The header bar (row 0) with a screen name. */
+void app_draw_header(explorer_app *app, const char *where);
+
+#endif

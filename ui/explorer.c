@@ -1,0 +1,744 @@
+/* explorer.c — the explorer's main loop: terminal setup and restore, key
+ * dispatch through the screens' tables, the computations the actions ask
+ * for (with progress and cancel), opening and saving sessions.  See app.h
+ * for the shape of the whole. */
+#include "explorer.h"
+
+#include <curses.h>
+#include <langinfo.h>
+#include <locale.h>
+#include <signal.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+#include <unistd.h>
+
+#include "app.h"
+#include "defaults.h"
+#include "paint.h"
+
+#define EXPLORER_MIN_COLS 80
+#define EXPLORER_MIN_LINES 24
+
+/* ---- small helpers -------------------------------------------------- */
+
+static char *explorer_strdup(const char *s)
+{
+    size_t n = strlen(s) + 1;
+    char *d = malloc(n);
+    if (d == NULL)
+        abort();
+    memcpy(d, s, n);
+    return d;
+}
+
+void app_status(explorer_app *app, int is_error, const char *fmt, ...)
+{
+    va_list ap;
+    va_start(ap, fmt);
+    vsnprintf(app->status, sizeof app->status, fmt, ap);
+    va_end(ap);
+    app->status_error = is_error;
+}
+
+/* ---- terminal ---------------------------------------------------------- */
+
+static volatile sig_atomic_t explorer_curses_on;
+
+/* A fatal signal must not leave the terminal in raw mode: restore it, then
+ * die of the same signal so the exit status tells what happened. */
+static void explorer_on_fatal_signal(int sig)
+{
+    if (explorer_curses_on)
+        endwin();
+    signal(sig, SIG_DFL);
+    raise(sig);
+}
+
+static void explorer_catch_signals(void)
+{
+    static const int sigs[] = { SIGINT, SIGTERM, SIGHUP, SIGQUIT, SIGABRT };
+    struct sigaction sa;
+    memset(&sa, 0, sizeof sa);
+    sa.sa_handler = explorer_on_fatal_signal;
+    sigemptyset(&sa.sa_mask);
+    for (size_t i = 0; i < sizeof sigs / sizeof sigs[0]; i++)
+        sigaction(sigs[i], &sa, NULL);
+}
+
+static int explorer_term_start(explorer_app *app)
+{
+    if (!isatty(STDIN_FILENO) || !isatty(STDOUT_FILENO)) {
+        fprintf(stderr, "nilstep: the explorer needs a terminal "
+                        "(nilstep report FILE writes the analysis as text)\n");
+        return 1;
+    }
+    if (initscr() == NULL) {
+        fprintf(stderr, "nilstep: cannot initialise the terminal\n");
+        return 1;
+    }
+    explorer_curses_on = 1;
+    explorer_catch_signals();
+    cbreak();
+    noecho();
+    nonl();
+    keypad(stdscr, TRUE);
+    set_escdelay(25); /* Esc cancels: do not wait long for a sequence */
+    curs_set(0);
+    const char *cs = nl_langinfo(CODESET);
+    app->utf8 = cs != NULL && (strcmp(cs, "UTF-8") == 0 || strcmp(cs, "utf8") == 0);
+    paint_set_ascii(!app->utf8);
+    paint_init(!paint_no_color_requested());
+    return 0;
+}
+
+static void explorer_term_stop(void)
+{
+    if (explorer_curses_on) {
+        endwin();
+        explorer_curses_on = 0;
+    }
+}
+
+/* ---- drawing: the frame is always painted whole from the state -------- */
+
+void app_draw_header(explorer_app *app, const char *where)
+{
+    paint_fill(0, 0, COLS, ROLE_BAR);
+    char right[600];
+    const char *file = app->path ? app->path : defaults_session_name();
+    snprintf(right, sizeof right, "%s%s ", file, app->vm->dirty ? " [modified]" : "");
+    int rw = (int)strlen(right) > COLS / 2 ? COLS / 2 : (int)strlen(right);
+    int lw = paint_textf(0, 0, COLS - rw - 1, ROLE_BAR, " nilstep %s %s", app->utf8 ? "\xE2\x80\xA2" : "|",
+                         where);
+    (void)lw;
+    paint_text(0, COLS - rw, rw, ROLE_BAR, right);
+}
+
+void app_draw_status(explorer_app *app)
+{
+    int y = LINES - 2;
+    paint_fill(y, 0, COLS, ROLE_NORMAL);
+    if (app->status[0] == '\0')
+        return;
+    if (app->status_error) {
+        int w = paint_text(y, 0, COLS, ROLE_ERROR, "error: ");
+        paint_text(y, w, COLS - w, ROLE_ERROR, app->status);
+    } else {
+        paint_text(y, 0, COLS, ROLE_GOOD, app->status);
+    }
+}
+
+void app_draw_hints(explorer_app *app, const ui_keymap *km)
+{
+    (void)app;
+    int y = LINES - 1, x = 0;
+    paint_fill(y, 0, COLS, ROLE_NORMAL);
+    for (size_t i = 0; i < km->n; i++) {
+        const ui_binding *b = &km->bindings[i];
+        if (b->hint == NULL)
+            continue;
+        /* "key label": the key is the part before the first blank */
+        const char *sp = strchr(b->hint, ' ');
+        size_t klen = sp ? (size_t)(sp - b->hint) : strlen(b->hint);
+        int need = (int)lineedit_utf8_ncols(b->hint);
+        if (x + need > COLS)
+            break;
+        char key[32];
+        snprintf(key, sizeof key, "%.*s", (int)klen, b->hint);
+        x += paint_text(y, x, COLS - x, ROLE_KEY, key);
+        x += paint_text(y, x, COLS - x, ROLE_NORMAL, sp ? sp : "");
+        x += 2;
+    }
+}
+
+static void explorer_draw_too_small(explorer_app *app)
+{
+    int y = LINES / 2 - 1;
+    if (y < 0)
+        y = 0;
+    paint_textf(y, 0, COLS, ROLE_ERROR, "Terminal too small: %dx%d.", COLS, LINES);
+    paint_textf(y + 1, 0, COLS, ROLE_NORMAL, "nilstep needs at least %dx%d.", EXPLORER_MIN_COLS,
+                EXPLORER_MIN_LINES);
+    paint_text(y + 2, 0, COLS, ROLE_DIM,
+               app->vm->dirty ? "Enlarge it to go on (unsaved changes)." : "Enlarge it, or q to quit.");
+}
+
+static int explorer_too_small(void)
+{
+    return COLS < EXPLORER_MIN_COLS || LINES < EXPLORER_MIN_LINES;
+}
+
+static void explorer_draw(explorer_app *app)
+{
+    erase();
+    curs_set(0);
+    if (explorer_too_small()) {
+        explorer_draw_too_small(app);
+    } else {
+        switch (app->screen) {
+        case SCREEN_MAIN:
+            screen_main_draw(app);
+            break;
+        case SCREEN_LAYER:
+            screen_layer_draw(app);
+            break;
+        case SCREEN_HELP:
+            screen_help_draw(app);
+            break;
+        }
+        if (app->prompt != PROMPT_NONE)
+            prompt_draw(app); /* places the cursor last */
+    }
+    refresh();
+}
+
+/* ---- progress and cancel during long computations --------------------- */
+
+typedef struct {
+    explorer_app *app;
+    const char *what;
+    struct timespec last;
+    int drawn;
+    int cancelled;
+} explorer_progress;
+
+static double explorer_seconds_since(const struct timespec *t)
+{
+    struct timespec now;
+    clock_gettime(CLOCK_MONOTONIC, &now);
+    return (double)(now.tv_sec - t->tv_sec) + 1e-9 * (double)(now.tv_nsec - t->tv_nsec);
+}
+
+/* Called by the engine from inside the computation: redraws a progress
+ * line now and then and polls the keyboard without blocking, so that Esc
+ * cancels and a resize repaints, all without threads. */
+static int explorer_progress_cb(void *ctx, const char *stage, double fraction)
+{
+    explorer_progress *p = ctx;
+    if (p->drawn && explorer_seconds_since(&p->last) < 0.05)
+        return p->cancelled;
+    clock_gettime(CLOCK_MONOTONIC, &p->last);
+    p->drawn = 1;
+    wint_t ch;
+    int r;
+    explorer_app *app = p->app;
+    while ((r = get_wch(&ch)) != ERR) {
+        if (r == OK && ch == UIKEY_ESC)
+            p->cancelled = 1;
+        else if (r == KEY_CODE_YES && ch == KEY_RESIZE)
+            explorer_draw(app);
+        else if (app->ntypeahead < (int)(sizeof app->typeahead / sizeof app->typeahead[0]))
+            app->typeahead[app->ntypeahead++] = r == KEY_CODE_YES ? UIKEY_FN((int)ch) : (int)ch;
+    }
+    if (!explorer_too_small()) {
+        int y = LINES - 2;
+        paint_fill(y, 0, COLS, ROLE_NORMAL);
+        char bar[24] = "";
+        if (fraction >= 0 && fraction <= 1) {
+            int k = (int)(fraction * 20 + 0.5);
+            for (int i = 0; i < 20; i++)
+                bar[i] = i < k ? '#' : '.';
+            bar[20] = '\0';
+        }
+        paint_textf(y, 0, COLS, ROLE_MARKER, "%s: %s %s%s%s  %s", p->what, stage ? stage : "",
+                    bar[0] ? "[" : "", bar, bar[0] ? "]" : "",
+                    p->cancelled ? "cancelling..." : "(Esc cancels)");
+        refresh();
+    }
+    return p->cancelled;
+}
+
+static void explorer_progress_begin(explorer_progress *p, ns_progress_t *hook, explorer_app *app,
+                                    const char *what)
+{
+    memset(p, 0, sizeof *p);
+    p->app = app;
+    p->what = what;
+    hook->fn = explorer_progress_cb;
+    hook->ctx = p;
+    if (explorer_curses_on) {
+        nodelay(stdscr, TRUE);
+        explorer_progress_cb(p, "starting", -1);
+    } else {
+        hook->fn = NULL;
+    }
+}
+
+static void explorer_progress_end(void)
+{
+    if (explorer_curses_on)
+        nodelay(stdscr, FALSE);
+}
+
+/* ---- the document ------------------------------------------------------ */
+
+/* What a session file turns into before anything is computed. */
+typedef struct {
+    pres_t pres;
+    char *group_text;  /* one line, as pres_get_str prints it */
+    slong cls;
+    size_t ngens;
+    char **names;
+    char **images;
+    char *title;
+} explorer_parts;
+
+static void explorer_parts_init(explorer_parts *p)
+{
+    memset(p, 0, sizeof *p);
+    pres_init(p->pres);
+}
+
+static void explorer_parts_clear(explorer_parts *p)
+{
+    pres_clear(p->pres);
+    for (size_t i = 0; i < p->ngens; i++) {
+        free(p->names[i]);
+        free(p->images[i]);
+    }
+    free(p->names);
+    free(p->images);
+    free(p->group_text);
+    free(p->title);
+    memset(p, 0, sizeof *p);
+}
+
+/* Parses the group and the map of s (in the file's coordinates) and prints
+ * each image back, so the explorer edits one image per generator. */
+static ns_status explorer_parts_from_session(explorer_parts *p, const session_t s, nserr_t err)
+{
+    if (s->group.text == NULL || s->cls <= 0)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "the session has no group or no class");
+    ns_status st = pres_parse(p->pres, s->group.text, s->group.line, s->group.col, err);
+    if (st != NS_OK)
+        return st;
+    char *g = pres_get_str(p->pres);
+    p->group_text = explorer_strdup(g);
+    flint_free(g);
+    p->cls = s->cls;
+    p->title = explorer_strdup(s->title.text ? s->title.text : "untitled");
+    for (char *c = p->title; *c; c++)
+        if (*c == '\n')
+            *c = ' ';
+    slong X = p->pres->gens->n;
+    p->ngens = (size_t)X;
+    p->names = calloc(p->ngens ? p->ngens : 1, sizeof(char *));
+    p->images = calloc(p->ngens ? p->ngens : 1, sizeof(char *));
+    if (p->names == NULL || p->images == NULL)
+        abort();
+    for (slong x = 0; x < X; x++)
+        p->names[x] = explorer_strdup(p->pres->gens->name[x]);
+    if (s->map.text == NULL)
+        return NS_OK; /* the identity, which the view model fills in */
+    expr_struct *im = flint_malloc(FLINT_MAX(X, 1) * sizeof(expr_struct));
+    for (slong x = 0; x < X; x++)
+        expr_init(im + x);
+    st = pres_parse_map(im, p->pres, s->map.text, s->map.line, s->map.col, err);
+    if (st == NS_OK) {
+        for (slong x = 0; x < X; x++) {
+            char *t = expr_get_str(im + x, p->pres->gens);
+            p->images[x] = explorer_strdup(t);
+            flint_free(t);
+        }
+    }
+    for (slong x = 0; x < X; x++)
+        expr_clear(im + x);
+    flint_free(im);
+    return st;
+}
+
+static analysis_struct *explorer_analysis_new(void)
+{
+    analysis_struct *A = malloc(sizeof *A);
+    if (A == NULL)
+        abort();
+    analysis_init(A);
+    return A;
+}
+
+static void explorer_analysis_free(analysis_struct *A)
+{
+    if (A) {
+        analysis_clear(A);
+        free(A);
+    }
+}
+
+/* Computes the class-cls quotient of G into a new analysis; NULL (and err
+ * set) on failure or cancel, so the caller can keep what it had. */
+static analysis_struct *explorer_compute_group(explorer_app *app, const pres_t G, slong cls,
+                                               nserr_t err)
+{
+    char what[64];
+    snprintf(what, sizeof what, "class-%ld quotient", (long)cls);
+    explorer_progress pr;
+    ns_progress_t hook;
+    explorer_progress_begin(&pr, &hook, app, what);
+    analysis_struct *B = explorer_analysis_new();
+    ns_status st = analysis_set_group(B, G, cls, &hook, err);
+    explorer_progress_end();
+    if (st != NS_OK) {
+        explorer_analysis_free(B);
+        app->ntypeahead = 0; /* keys typed for a result that will not come */
+        return NULL;
+    }
+    return B;
+}
+
+/* Analyses the current images; a failure leaves the analysis without a
+ * map and says why in place of the numbers. */
+static void explorer_apply_map(explorer_app *app)
+{
+    if (!app->A->has_group)
+        return;
+    char *text = viewmodel_map_text(app->vm, 0, NULL);
+    nserr_t err;
+    nserr_init(err);
+    explorer_progress pr;
+    ns_progress_t hook;
+    explorer_progress_begin(&pr, &hook, app, "analysing the map");
+    ns_status st = analysis_set_map_text(app->A, text, 1, 1, &hook, err);
+    explorer_progress_end();
+    if (st != NS_OK) {
+        analysis_clear_map(app->A);
+        snprintf(app->group_problem, sizeof app->group_problem, "map not analysed: %s", err->msg);
+        app_status(app, 1, "map not analysed: %s", err->msg);
+    } else {
+        app->group_problem[0] = '\0';
+    }
+    free(text);
+    nserr_clear(err);
+}
+
+/* Puts the new analysis A (may be NULL: no group) in place. */
+static void explorer_adopt_analysis(explorer_app *app, analysis_struct *A)
+{
+    explorer_analysis_free(app->A);
+    app->A = A ? A : explorer_analysis_new();
+    viewmodel_set_nlayers(app->vm, app->A->has_group ? (size_t)app->A->nlayers : 0);
+    app->table_top = 0;
+    app->detail_scroll = 0;
+}
+
+/* Makes parts the open document (taking over its contents); A may be
+ * NULL when the quotient could not be computed. */
+static void explorer_adopt_parts(explorer_app *app, explorer_parts *p, analysis_struct *A)
+{
+    pres_set(app->pres, p->pres);
+    free(app->group_text);
+    app->group_text = p->group_text;
+    p->group_text = NULL;
+    free(app->title);
+    app->title = p->title;
+    p->title = NULL;
+    app->cls = p->cls;
+    viewmodel_set_generators(app->vm, p->ngens, (const char *const *)p->names,
+                             (const char *const *)p->images);
+    viewmodel_mark_saved(app->vm);
+    app->group_edited = app->map_edited = app->title_edited = 0;
+    explorer_adopt_analysis(app, A);
+    app->screen = SCREEN_MAIN;
+}
+
+/* Recomputes the quotient for app->pending_group / pending_cls.  On
+ * failure or cancel the old group, class and numbers stay. */
+static void explorer_do_group(explorer_app *app)
+{
+    char *text = app->pending_group ? app->pending_group : explorer_strdup(app->group_text);
+    app->pending_group = NULL;
+    slong cls = app->pending_cls > 0 ? app->pending_cls : app->cls;
+    app->pending_cls = 0;
+    nserr_t err;
+    nserr_init(err);
+    pres_t G;
+    pres_init(G);
+    if (pres_parse(G, text, 1, 1, err) != NS_OK) {
+        app_status(app, 1, "presentation: %d:%d: %s", err->line, err->col, err->msg);
+        goto done;
+    }
+    analysis_struct *B = explorer_compute_group(app, G, cls, err);
+    if (B == NULL) {
+        app_status(app, 1, "class %ld not computed (%s); kept class %ld", (long)cls, err->msg,
+                   (long)app->cls);
+        goto done;
+    }
+    int changed = strcmp(text, app->group_text) != 0 || cls != app->cls;
+    const char **names = malloc((size_t)FLINT_MAX(G->gens->n, 1) * sizeof(char *));
+    if (names == NULL)
+        abort();
+    for (slong x = 0; x < G->gens->n; x++)
+        names[x] = G->gens->name[x];
+    if (!viewmodel_same_generators(app->vm, (size_t)G->gens->n, names)) {
+        viewmodel_set_generators(app->vm, (size_t)G->gens->n, names, NULL);
+        app_status(app, 0, "new generators: every image reset to the identity");
+        app->map_edited = 1;
+    } else {
+        app_status(app, 0, "class %ld: Hirsch length %ld", (long)cls, (long)B->nq->hirsch_length);
+    }
+    free(names);
+    pres_set(app->pres, G);
+    free(app->group_text);
+    app->group_text = text;
+    text = NULL;
+    app->cls = cls;
+    explorer_adopt_analysis(app, B);
+    app->group_problem[0] = '\0';
+    if (changed) {
+        app->group_edited = 1;
+        viewmodel_mark_dirty(app->vm);
+    }
+    explorer_apply_map(app);
+done:
+    free(text);
+    pres_clear(G);
+    nserr_clear(err);
+}
+
+/* Opens app->pending_doc (loaded by the open prompt).  Nothing changes
+ * unless the new quotient is computed. */
+static void explorer_do_open(explorer_app *app)
+{
+    nserr_t err;
+    nserr_init(err);
+    explorer_parts p;
+    explorer_parts_init(&p);
+    char *path = app->pending_path;
+    app->pending_path = NULL;
+    app->has_pending_doc = 0;
+    if (explorer_parts_from_session(&p, app->pending_doc, err) != NS_OK) {
+        char buf[700];
+        nserr_format(buf, sizeof buf, err, path);
+        app_status(app, 1, "%s", buf);
+        goto done;
+    }
+    analysis_struct *B = explorer_compute_group(app, p.pres, p.cls, err);
+    if (B == NULL) {
+        app_status(app, 1, "%s not opened: %s", path, err->msg);
+        goto done;
+    }
+    session_swap(app->doc, app->pending_doc);
+    explorer_adopt_parts(app, &p, B);
+    viewmodel_set_cursor(app->vm, app->doc->cursor_layer, app->doc->cursor_image);
+    free(app->path);
+    app->path = path;
+    path = NULL;
+    app->group_problem[0] = '\0';
+    explorer_apply_map(app);
+    if (!app->status_error || app->status[0] == '\0')
+        app_status(app, 0, "opened %s", app->path);
+done:
+    session_clear(app->pending_doc);
+    free(path);
+    explorer_parts_clear(&p);
+    nserr_clear(err);
+}
+
+/* Writes the session to pending_path (save as) or app->path. */
+static void explorer_do_save(explorer_app *app)
+{
+    char *path = app->pending_path ? app->pending_path : app->path;
+    if (path == NULL) {
+        prompt_open(app, PROMPT_SAVE_AS, "");
+        return;
+    }
+    nserr_t err;
+    nserr_init(err);
+    session_t s;
+    session_init(s);
+    session_set(s, app->doc);
+    /* Keys the user did not touch keep their text from the file (layout,
+     * comments in continuation lines); changed ones are written fresh. */
+    if (app->title_edited || s->title.text == NULL)
+        session_set_title(s, app->title);
+    if (app->group_edited || s->group.text == NULL)
+        session_set_group(s, app->group_text);
+    session_set_class(s, (int)app->cls, err);
+    if (app->map_edited || app->group_edited || s->map.text == NULL) {
+        char *m = viewmodel_map_text(app->vm, 0, NULL);
+        session_set_map(s, m);
+        free(m);
+    }
+    long layer, image;
+    viewmodel_get_cursor(app->vm, &layer, &image);
+    session_set_cursor(s, layer, image);
+    if (session_save(s, path, err) != NS_OK) {
+        app_status(app, 1, "not saved: %s", err->msg);
+    } else {
+        session_swap(app->doc, s);
+        viewmodel_mark_saved(app->vm);
+        if (app->pending_path) {
+            free(app->path);
+            app->path = app->pending_path;
+            app->pending_path = NULL;
+        }
+        app_status(app, 0, "saved %s", app->path);
+    }
+    free(app->pending_path);
+    app->pending_path = NULL;
+    session_clear(s);
+    nserr_clear(err);
+}
+
+/* ---- key dispatch ------------------------------------------------------ */
+
+static const ui_keymap *explorer_keymap(const explorer_app *app)
+{
+    switch (app->screen) {
+    case SCREEN_LAYER:
+        return screen_layer_keys();
+    case SCREEN_HELP:
+        return screen_help_keys();
+    case SCREEN_MAIN:
+        break;
+    }
+    return screen_main_keys();
+}
+
+static int explorer_key(explorer_app *app, int key)
+{
+    if (key == UIKEY_FN(KEY_RESIZE) || key == UIKEY_CTRL('l'))
+        return ACT_REDRAW; /* resizing is handled here only: every frame is drawn whole */
+    if (explorer_too_small()) {
+        if (key == 'q' && !app->vm->dirty)
+            return ACT_QUIT;
+        return ACT_NONE;
+    }
+    if (app->prompt != PROMPT_NONE)
+        return prompt_key(app, key);
+    const ui_keymap *km = explorer_keymap(app);
+    for (size_t i = 0; i < km->n; i++)
+        if (km->bindings[i].key == key && km->bindings[i].action)
+            return km->bindings[i].action(app);
+    return ACT_NONE;
+}
+
+/* Reads one key: a character as its code point, a function key as
+ * UIKEY_FN(code). */
+static int explorer_read_key(explorer_app *app)
+{
+    if (app->ntypeahead > 0) {
+        int key = app->typeahead[0];
+        app->ntypeahead--;
+        memmove(app->typeahead, app->typeahead + 1, (size_t)app->ntypeahead * sizeof app->typeahead[0]);
+        return key;
+    }
+    wint_t ch;
+    int r = get_wch(&ch);
+    if (r == ERR)
+        return -1;
+    if (r == KEY_CODE_YES)
+        return UIKEY_FN((int)ch);
+    return (int)ch;
+}
+
+static void explorer_loop(explorer_app *app)
+{
+    int flags = ACT_REDRAW;
+    while (app->running) {
+        if (flags & ACT_REDRAW)
+            explorer_draw(app);
+        int key = explorer_read_key(app);
+        if (key < 0)
+            continue;
+        flags = explorer_key(app, key);
+        if (flags & ACT_QUIT)
+            break;
+        if (flags & ACT_OPEN)
+            explorer_do_open(app);
+        if (flags & ACT_GROUP)
+            explorer_do_group(app);
+        else if (flags & ACT_MAP) {
+            explorer_apply_map(app);
+        }
+        if (flags & ACT_SAVE)
+            explorer_do_save(app);
+        if (flags & (ACT_OPEN | ACT_GROUP | ACT_MAP | ACT_SAVE))
+            flags |= ACT_REDRAW;
+    }
+}
+
+/* ---- entry point -------------------------------------------------------- */
+
+static void explorer_app_init(explorer_app *app)
+{
+    memset(app, 0, sizeof *app);
+    session_init(app->doc);
+    session_init(app->pending_doc);
+    pres_init(app->pres);
+    viewmodel_init(app->vm);
+    lineedit_init(app->edit);
+    app->A = explorer_analysis_new();
+    app->title = explorer_strdup("untitled");
+    app->group_text = explorer_strdup("<a>");
+    app->cls = 1;
+    app->running = 1;
+}
+
+static void explorer_app_clear(explorer_app *app)
+{
+    session_clear(app->doc);
+    session_clear(app->pending_doc);
+    pres_clear(app->pres);
+    viewmodel_clear(app->vm);
+    lineedit_clear(app->edit);
+    explorer_analysis_free(app->A);
+    free(app->path);
+    free(app->title);
+    free(app->group_text);
+    free(app->pending_group);
+    free(app->pending_path);
+}
+
+int explorer_run(const char *path)
+{
+    setlocale(LC_ALL, "");
+    explorer_app app;
+    explorer_app_init(&app);
+    nserr_t err;
+    nserr_init(err);
+    int status = 0;
+    int is_new = path != NULL && access(path, F_OK) != 0;
+    ns_status st;
+    if (path == NULL || is_new)
+        st = session_parse(app.doc, defaults_session_text(), err);
+    else
+        st = session_load(app.doc, path, err);
+    explorer_parts p;
+    explorer_parts_init(&p);
+    if (st == NS_OK)
+        st = explorer_parts_from_session(&p, app.doc, err);
+    if (st != NS_OK) {
+        char buf[700];
+        nserr_format(buf, sizeof buf, err, path && !is_new ? path : defaults_session_name());
+        fprintf(stderr, "nilstep: %s\n", buf);
+        status = 2;
+        goto done;
+    }
+    if (path)
+        app.path = explorer_strdup(path);
+    if (explorer_term_start(&app) != 0) {
+        status = 1;
+        goto done;
+    }
+    explorer_adopt_parts(&app, &p, NULL);
+    explorer_draw(&app);
+    analysis_struct *B = explorer_compute_group(&app, app.pres, app.cls, err);
+    if (B == NULL)
+        snprintf(app.group_problem, sizeof app.group_problem,
+                 "the class-%ld quotient was not computed: %s", (long)app.cls, err->msg);
+    explorer_adopt_analysis(&app, B);
+    viewmodel_set_cursor(app.vm, app.doc->cursor_layer, app.doc->cursor_image);
+    explorer_apply_map(&app);
+    if (is_new)
+        app_status(&app, 0, "%s is a new file: s saves this scenario there", path);
+    explorer_loop(&app);
+    explorer_term_stop();
+done:
+    explorer_parts_clear(&p);
+    explorer_app_clear(&app);
+    nserr_clear(err);
+    return status;
+}

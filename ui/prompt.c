@@ -1,0 +1,375 @@
+/* prompt.c — the prompts in front of a screen: a line editor for an image,
+ * the presentation, the title or a path, and the yes/no questions.  Text
+ * being typed is parsed at every keystroke (parsing only; the analysis
+ * runs when Enter applies it) and an error is pointed at with a caret
+ * under its column. */
+#include <curses.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "app.h"
+#include "paint.h"
+
+#define PROMPT_ROWS 4
+
+static char *prompt_strdup(const char *s)
+{
+    size_t n = strlen(s) + 1;
+    char *d = malloc(n);
+    if (d == NULL)
+        abort();
+    memcpy(d, s, n);
+    return d;
+}
+
+static int prompt_is_text(prompt_kind k)
+{
+    return k == PROMPT_IMAGE || k == PROMPT_GROUP || k == PROMPT_TITLE || k == PROMPT_SAVE_AS
+           || k == PROMPT_OPEN;
+}
+
+void prompt_open(explorer_app *app, prompt_kind kind, const char *text)
+{
+    app->prompt = kind;
+    app->edit_scroll = 0;
+    lineedit_set_text(app->edit, text ? text : "");
+    prompt_check(app);
+}
+
+/* Parses the image being typed within the whole map, so that every error
+ * the engine would report is found; the column comes back into the image. */
+static void check_image(explorer_app *app, const char *text)
+{
+    slong X = app->pres->gens->n;
+    char *map = viewmodel_map_text(app->vm, app->edit_index, text);
+    expr_struct *im = flint_malloc(FLINT_MAX(X, 1) * sizeof(expr_struct));
+    for (slong x = 0; x < X; x++)
+        expr_init(im + x);
+    nserr_t err;
+    nserr_init(err);
+    /* The image alone first, so that positions inside the message ("opened
+     * at 1:5") count in the image's own columns too; then the whole map. */
+    expr_t alone;
+    expr_init(alone);
+    ns_status st = expr_parse(alone, text, 1, 1, app->pres->gens, err);
+    expr_clear(alone);
+    if (st != NS_OK && err->line == 1 && err->col > 0) {
+        app->edit_ok = 0;
+        app->edit_caret = err->col;
+        snprintf(app->edit_msg, sizeof app->edit_msg, "column %d: %s", err->col, err->msg);
+    } else if (pres_parse_map(im, app->pres, map, 1, 1, err) == NS_OK) {
+        app->edit_ok = 1;
+        snprintf(app->edit_msg, sizeof app->edit_msg, "parses; Enter applies it, Esc leaves it as it was");
+    } else {
+        size_t img = (size_t)-1;
+        int col = 0;
+        app->edit_ok = 0;
+        if (err->col > 0
+            && viewmodel_locate_column(app->vm, app->edit_index, text, err->col, &img, &col)
+            && img == app->edit_index) {
+            app->edit_caret = col;
+            snprintf(app->edit_msg, sizeof app->edit_msg, "column %d: %s", col, err->msg);
+        } else if (err->col > 0 && img < app->vm->ngens) {
+            snprintf(app->edit_msg, sizeof app->edit_msg, "in the image of %s: %s", app->vm->names[img],
+                     err->msg);
+        } else {
+            snprintf(app->edit_msg, sizeof app->edit_msg, "%s", err->msg);
+        }
+    }
+    for (slong x = 0; x < X; x++)
+        expr_clear(im + x);
+    flint_free(im);
+    free(map);
+    nserr_clear(err);
+}
+
+static void check_group(explorer_app *app, const char *text)
+{
+    pres_t G;
+    pres_init(G);
+    nserr_t err;
+    nserr_init(err);
+    if (pres_parse(G, text, 1, 1, err) == NS_OK) {
+        app->edit_ok = 1;
+        snprintf(app->edit_msg, sizeof app->edit_msg,
+                 "parses: %ld generators, %ld relations; Enter computes the quotient",
+                 (long)G->gens->n, (long)G->nrels);
+    } else {
+        app->edit_ok = 0;
+        if (err->line == 1 && err->col > 0) {
+            app->edit_caret = err->col;
+            snprintf(app->edit_msg, sizeof app->edit_msg, "column %d: %s", err->col, err->msg);
+        } else {
+            snprintf(app->edit_msg, sizeof app->edit_msg, "%s", err->msg);
+        }
+    }
+    pres_clear(G);
+    nserr_clear(err);
+}
+
+void prompt_check(explorer_app *app)
+{
+    const char *text = lineedit_get_text(app->edit);
+    app->edit_caret = 0;
+    app->edit_ok = 1;
+    app->edit_msg[0] = '\0';
+    switch (app->prompt) {
+    case PROMPT_IMAGE:
+        check_image(app, text);
+        break;
+    case PROMPT_GROUP:
+        check_group(app, text);
+        break;
+    case PROMPT_TITLE:
+        snprintf(app->edit_msg, sizeof app->edit_msg, "Enter sets the title, Esc leaves it");
+        break;
+    case PROMPT_SAVE_AS:
+    case PROMPT_OPEN:
+        app->edit_ok = text[0] != '\0';
+        snprintf(app->edit_msg, sizeof app->edit_msg, "%s",
+                 app->edit_ok ? (app->prompt == PROMPT_OPEN ? "Enter opens this file, Esc cancels"
+                                                            : "Enter saves there, Esc cancels")
+                              : "type a file name");
+        break;
+    default:
+        break;
+    }
+}
+
+/* ---- drawing ----------------------------------------------------------- */
+
+static void prompt_label(explorer_app *app, char *label, size_t n, char *prefix, size_t pn)
+{
+    const char *arrow = app->utf8 ? "\xE2\x86\xA6" : "->";
+    switch (app->prompt) {
+    case PROMPT_IMAGE:
+        snprintf(label, n, "Image of %s", app->vm->names[app->edit_index]);
+        snprintf(prefix, pn, "%s %s ", app->vm->names[app->edit_index], arrow);
+        break;
+    case PROMPT_GROUP:
+        snprintf(label, n, "Presentation <generators | relations>");
+        snprintf(prefix, pn, "group ");
+        break;
+    case PROMPT_TITLE:
+        snprintf(label, n, "Title of the session");
+        snprintf(prefix, pn, "title ");
+        break;
+    case PROMPT_SAVE_AS:
+        snprintf(label, n, "Save the session as");
+        snprintf(prefix, pn, "file ");
+        break;
+    case PROMPT_OPEN:
+        snprintf(label, n, "Open a session file");
+        snprintf(prefix, pn, "file ");
+        break;
+    default:
+        label[0] = prefix[0] = '\0';
+        break;
+    }
+}
+
+void prompt_draw(explorer_app *app)
+{
+    int y0 = LINES - 2 - PROMPT_ROWS;
+    for (int r = 0; r < PROMPT_ROWS; r++)
+        paint_fill(y0 + r, 0, COLS, ROLE_NORMAL);
+    if (app->prompt == PROMPT_CONFIRM_QUIT || app->prompt == PROMPT_CONFIRM_OPEN) {
+        paint_fill(LINES - 1, 0, COLS, ROLE_NORMAL);
+        int hx = paint_text(LINES - 1, 0, COLS, ROLE_KEY, "y");
+        hx += paint_text(LINES - 1, hx, COLS - hx, ROLE_NORMAL, " yes  ");
+        hx += paint_text(LINES - 1, hx, COLS - hx, ROLE_KEY, "other keys");
+        paint_text(LINES - 1, hx, COLS - hx, ROLE_NORMAL, " no");
+        paint_fill(y0 + 1, 0, COLS, ROLE_BAR);
+        paint_text(y0 + 1, 1, COLS - 1, ROLE_BAR, "There are unsaved changes.");
+        paint_text(y0 + 2, 1, COLS - 1, ROLE_MARKER,
+                   app->prompt == PROMPT_CONFIRM_QUIT
+                       ? "Quit without saving? y quits; any other key stays (then s saves)."
+                       : "Open another file without saving? y goes on; any other key stays.");
+        return;
+    }
+    app_draw_hints(app, prompt_keys());
+    char label[128], prefix[128];
+    prompt_label(app, label, sizeof label, prefix, sizeof prefix);
+    paint_fill(y0, 0, COLS, ROLE_BAR);
+    int x = paint_textf(y0, 1, COLS - 1, ROLE_BAR, "%s", label);
+    paint_text(y0, x + 3, COLS - x - 3, ROLE_BAR, "Enter applies, Esc cancels");
+
+    int px = 1 + paint_text(y0 + 1, 1, COLS - 1, ROLE_HEADING, prefix);
+    int fw = COLS - px - 1;
+    /* Keep the cursor inside the visible window of the text. */
+    size_t cur = lineedit_cursor_col(app->edit);
+    if (cur < app->edit_scroll)
+        app->edit_scroll = cur;
+    if (cur >= app->edit_scroll + (size_t)fw)
+        app->edit_scroll = cur - (size_t)fw + 1;
+    const char *text = lineedit_get_text(app->edit);
+    const char *from = text + lineedit_utf8_offset(text, app->edit_scroll);
+    size_t shown = lineedit_utf8_ncols(from);
+    char *win = prompt_strdup(from);
+    win[lineedit_utf8_offset(win, (size_t)fw)] = '\0';
+    attrset(A_NORMAL);
+    mvaddstr(y0 + 1, px, win);
+    free(win);
+    if (app->edit_scroll > 0)
+        paint_text(y0 + 1, px - 1, 1, ROLE_MARKER, "<");
+    if (shown > (size_t)fw)
+        paint_text(y0 + 1, COLS - 1, 1, ROLE_MARKER, ">");
+
+    if (app->edit_caret > 0) {
+        long cx = (long)px + app->edit_caret - 1 - (long)app->edit_scroll;
+        if (cx >= px && cx < COLS)
+            paint_text(y0 + 2, (int)cx, 1, ROLE_MARKER, "^");
+    }
+    if (app->edit_ok) {
+        paint_text(y0 + 3, 1, COLS - 1, ROLE_GOOD, app->edit_msg);
+    } else {
+        int w = paint_text(y0 + 3, 1, COLS - 1, ROLE_ERROR, "error: ");
+        paint_text(y0 + 3, 1 + w, COLS - 1 - w, ROLE_ERROR, app->edit_msg);
+    }
+    curs_set(1);
+    move(y0 + 1, px + (int)(cur - app->edit_scroll));
+}
+
+/* ---- keys -------------------------------------------------------------- */
+
+static int edit_cmd(explorer_app *app, lineedit_cmd cmd)
+{
+    if (lineedit_apply(app->edit, cmd))
+        prompt_check(app);
+    return ACT_REDRAW;
+}
+
+static int act_left(explorer_app *app) { return edit_cmd(app, LINEEDIT_LEFT); }
+static int act_right(explorer_app *app) { return edit_cmd(app, LINEEDIT_RIGHT); }
+static int act_home(explorer_app *app) { return edit_cmd(app, LINEEDIT_HOME); }
+static int act_end(explorer_app *app) { return edit_cmd(app, LINEEDIT_END); }
+static int act_backspace(explorer_app *app) { return edit_cmd(app, LINEEDIT_BACKSPACE); }
+static int act_delete(explorer_app *app) { return edit_cmd(app, LINEEDIT_DELETE); }
+static int act_kill(explorer_app *app) { return edit_cmd(app, LINEEDIT_KILL_LINE); }
+static int act_kill_end(explorer_app *app) { return edit_cmd(app, LINEEDIT_KILL_TO_END); }
+
+static int act_cancel(explorer_app *app)
+{
+    app->prompt = PROMPT_NONE;
+    app_status(app, 0, "cancelled");
+    return ACT_REDRAW;
+}
+
+static int act_apply(explorer_app *app)
+{
+    const char *text = lineedit_get_text(app->edit);
+    prompt_check(app);
+    if (!app->edit_ok) {
+        beep();
+        return ACT_REDRAW;
+    }
+    prompt_kind kind = app->prompt;
+    app->prompt = PROMPT_NONE;
+    switch (kind) {
+    case PROMPT_IMAGE:
+        if (!viewmodel_set_image(app->vm, app->edit_index, text)) {
+            app_status(app, 0, "image unchanged");
+            return ACT_REDRAW;
+        }
+        app->map_edited = 1;
+        app_status(app, 0, "image of %s applied (u undoes)", app->vm->names[app->edit_index]);
+        return ACT_MAP | ACT_REDRAW;
+    case PROMPT_GROUP:
+        if (strcmp(text, app->group_text) == 0) {
+            app_status(app, 0, "presentation unchanged");
+            return ACT_REDRAW;
+        }
+        free(app->pending_group);
+        app->pending_group = prompt_strdup(text);
+        app->pending_cls = app->cls;
+        return ACT_GROUP | ACT_REDRAW;
+    case PROMPT_TITLE:
+        free(app->title);
+        app->title = prompt_strdup(text[0] ? text : "untitled");
+        app->title_edited = 1;
+        viewmodel_mark_dirty(app->vm);
+        return ACT_REDRAW;
+    case PROMPT_SAVE_AS:
+        free(app->pending_path);
+        app->pending_path = prompt_strdup(text);
+        return ACT_SAVE | ACT_REDRAW;
+    case PROMPT_OPEN: {
+        nserr_t err;
+        nserr_init(err);
+        session_clear(app->pending_doc);
+        if (session_load(app->pending_doc, text, err) != NS_OK) {
+            char buf[700];
+            nserr_format(buf, sizeof buf, err, text);
+            app_status(app, 1, "%s", buf);
+            nserr_clear(err);
+            return ACT_REDRAW;
+        }
+        nserr_clear(err);
+        app->has_pending_doc = 1;
+        free(app->pending_path);
+        app->pending_path = prompt_strdup(text);
+        return ACT_OPEN | ACT_REDRAW;
+    }
+    default:
+        return ACT_REDRAW;
+    }
+}
+
+static const ui_binding prompt_bindings[] = {
+    { '\r', act_apply, "Enter", "apply the text (only when it parses)", "Enter apply" },
+    { '\n', act_apply, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_ENTER), act_apply, NULL, NULL, NULL },
+    { UIKEY_ESC, act_cancel, "Esc", "cancel: leave everything as it was", "Esc cancel" },
+    { UIKEY_FN(KEY_LEFT), act_left, "Left / Right", "move the cursor one character", NULL },
+    { UIKEY_FN(KEY_RIGHT), act_right, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_HOME), act_home, "Home / Ctrl-A", "to the start of the line", "Home/End" },
+    { UIKEY_CTRL('a'), act_home, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_END), act_end, "End / Ctrl-E", "to the end of the line", NULL },
+    { UIKEY_CTRL('e'), act_end, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_BACKSPACE), act_backspace, "Backspace", "delete the character before the cursor",
+      NULL },
+    { 127, act_backspace, NULL, NULL, NULL },
+    { UIKEY_CTRL('h'), act_backspace, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_DC), act_delete, "Delete / Ctrl-D", "delete the character under the cursor", NULL },
+    { UIKEY_CTRL('d'), act_delete, NULL, NULL, NULL },
+    { UIKEY_CTRL('u'), act_kill, "Ctrl-U", "clear the whole line", "Ctrl-U clear" },
+    { UIKEY_CTRL('k'), act_kill_end, "Ctrl-K", "delete from the cursor to the end", NULL },
+};
+
+static const ui_keymap prompt_keymap = {
+    "Line editor (images, presentation, title, file names)", prompt_bindings,
+    sizeof prompt_bindings / sizeof prompt_bindings[0]
+};
+
+const ui_keymap *prompt_keys(void)
+{
+    return &prompt_keymap;
+}
+
+int prompt_key(explorer_app *app, int key)
+{
+    if (app->prompt == PROMPT_CONFIRM_QUIT || app->prompt == PROMPT_CONFIRM_OPEN) {
+        prompt_kind kind = app->prompt;
+        app->prompt = PROMPT_NONE;
+        if (key != 'y' && key != 'Y') {
+            app_status(app, 0, "nothing lost: still here");
+            return ACT_REDRAW;
+        }
+        if (kind == PROMPT_CONFIRM_QUIT)
+            return ACT_QUIT;
+        prompt_open(app, PROMPT_OPEN, "");
+        return ACT_REDRAW;
+    }
+    if (!prompt_is_text(app->prompt))
+        return ACT_NONE;
+    for (size_t i = 0; i < prompt_keymap.n; i++)
+        if (prompt_bindings[i].key == key)
+            return prompt_bindings[i].action(app);
+    if (key >= 0x20 && key < 0x200000) {
+        if (lineedit_insert(app->edit, (uint32_t)key))
+            prompt_check(app);
+        return ACT_REDRAW;
+    }
+    return ACT_NONE;
+}

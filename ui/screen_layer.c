@@ -1,0 +1,279 @@
+/* screen_layer.c — one layer in full: its basis as commutators, the matrix
+ * of the map on its free part, the factored characteristic polynomial, the
+ * eigenvalues with their moduli, det and det(I - M), with every digit the
+ * engine gives.  The text is built as a list of lines and scrolled. */
+#include <curses.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "app.h"
+#include "paint.h"
+
+typedef struct {
+    paint_role role;
+    char *text;
+} detail_line;
+
+typedef struct {
+    detail_line *v;
+    int n, cap;
+} detail_text;
+
+static void detail_add(detail_text *t, paint_role role, const char *fmt, ...)
+    __attribute__((format(printf, 3, 4)));
+
+static void detail_add(detail_text *t, paint_role role, const char *fmt, ...)
+{
+    if (t->n == t->cap) {
+        t->cap = t->cap ? 2 * t->cap : 64;
+        t->v = realloc(t->v, (size_t)t->cap * sizeof *t->v);
+        if (t->v == NULL)
+            abort();
+    }
+    va_list ap;
+    va_start(ap, fmt);
+    int len = vsnprintf(NULL, 0, fmt, ap);
+    va_end(ap);
+    char *s = malloc((size_t)len + 1);
+    if (s == NULL)
+        abort();
+    va_start(ap, fmt);
+    vsnprintf(s, (size_t)len + 1, fmt, ap);
+    va_end(ap);
+    t->v[t->n].role = role;
+    t->v[t->n].text = s;
+    t->n++;
+}
+
+static void detail_free(detail_text *t)
+{
+    for (int i = 0; i < t->n; i++)
+        free(t->v[i].text);
+    free(t->v);
+}
+
+static const char *sym(const explorer_app *app, const char *utf8, const char *ascii)
+{
+    return app->utf8 ? utf8 : ascii;
+}
+
+/* A matrix as right-aligned rows "[ 2  1 ]". */
+static void detail_matrix(detail_text *t, const fmpz_mat_t M)
+{
+    slong r = fmpz_mat_nrows(M), c = fmpz_mat_ncols(M);
+    if (r == 0 || c == 0) {
+        detail_add(t, ROLE_NUMBER, "  (the zero space)");
+        return;
+    }
+    int *w = calloc((size_t)c, sizeof *w);
+    if (w == NULL)
+        abort();
+    for (slong j = 0; j < c; j++)
+        for (slong i = 0; i < r; i++) {
+            int len = (int)fmpz_sizeinbase(fmpz_mat_entry(M, i, j), 10) + 1;
+            if (len > w[j])
+                w[j] = len;
+        }
+    for (slong i = 0; i < r; i++) {
+        size_t cap = 16;
+        for (slong j = 0; j < c; j++)
+            cap += (size_t)w[j] + 2;
+        char *row = malloc(cap);
+        if (row == NULL)
+            abort();
+        size_t k = (size_t)snprintf(row, cap, "  [");
+        for (slong j = 0; j < c; j++) {
+            char *s = fmpz_get_str(NULL, 10, fmpz_mat_entry(M, i, j));
+            k += (size_t)snprintf(row + k, cap - k, " %*s", w[j], s);
+            flint_free(s);
+        }
+        snprintf(row + k, cap - k, " ]");
+        detail_add(t, ROLE_NUMBER, "%s", row);
+        free(row);
+    }
+    free(w);
+}
+
+static void detail_build(explorer_app *app, detail_text *t)
+{
+    const analysis_struct *A = app->A;
+    if (!A->has_group || app->vm->sel_layer >= (size_t)A->nlayers) {
+        detail_add(t, ROLE_ERROR, "No layer to show.");
+        return;
+    }
+    slong j = (slong)app->vm->sel_layer + 1;
+    const analysis_layer_struct *L = A->layers + j - 1;
+    const char *rho = sym(app, "\xCF\x81", "rho");
+    const char *gam = sym(app, "\xCE\xB3", "gamma");
+
+    detail_add(t, ROLE_HEADING, "Layer %ld = %s%ld / %s%ld  %s  %s", (long)j, gam, (long)j, gam, (long)(j + 1),
+               sym(app, "\xE2\x89\x85", "="), L->group_str ? L->group_str : "?");
+    detail_add(t, ROLE_NORMAL, "  %ld pc generators, free rank %ld, %ld torsion factors", (long)L->npc,
+               (long)L->free_rank, (long)L->ntors);
+    detail_add(t, ROLE_NORMAL, "%s", "");
+    detail_add(t, ROLE_HEADING, "Basis of the free part, as commutators");
+    if (L->free_rank == 0)
+        detail_add(t, ROLE_NORMAL, "  (no free part)");
+    for (slong k = 0; k < L->free_rank; k++)
+        detail_add(t, ROLE_NORMAL, "  e%ld = %s", (long)(k + 1), L->basis[k]);
+    detail_add(t, ROLE_NORMAL, "%s", "");
+
+    if (!A->has_map) {
+        detail_add(t, ROLE_ERROR, "No map analysed: %s", app->group_problem);
+        return;
+    }
+    if (!A->valid) {
+        detail_add(t, ROLE_ERROR, "The images do not define an endomorphism of the class-%ld quotient,",
+                   (long)app->cls);
+        detail_add(t, ROLE_ERROR, "so the map induces no matrix here (the main screen lists the failing relators).");
+        return;
+    }
+    detail_add(t, ROLE_HEADING, "Matrix M%ld (column k holds the image of e_k)", (long)j);
+    detail_matrix(t, L->matrix);
+    if (L->ntors > 0) {
+        detail_add(t, ROLE_NORMAL, "%s", "");
+        detail_add(t, ROLE_HEADING, "Action on the layer's %ld pc generators, torsion included", (long)L->npc);
+        detail_matrix(t, L->action);
+    }
+    detail_add(t, ROLE_NORMAL, "%s", "");
+    detail_add(t, ROLE_HEADING, "Characteristic polynomial");
+    detail_add(t, ROLE_NUMBER, "  %s", L->charpoly_str ? L->charpoly_str : "-");
+    detail_add(t, ROLE_NORMAL, "  factored over Z: %s", L->charpoly_factored_str ? L->charpoly_factored_str : "-");
+    detail_add(t, ROLE_NORMAL, "%s", "");
+    detail_add(t, ROLE_HEADING, "Spectral radius");
+    detail_add(t, ROLE_NUMBER, "  %s%ld = %s%s", rho, (long)j, L->rho_str ? L->rho_str : "-",
+               A->upper_layer == j ? "   U: attains the upper bound" : "");
+    if (L->rho_minpoly_str)
+        detail_add(t, ROLE_NORMAL, "  a root of %s", L->rho_minpoly_str);
+    detail_add(t, ROLE_NUMBER, "  %s%ld^(1/%ld) = %s%s", rho, (long)j, (long)j,
+               L->root_bound_str ? L->root_bound_str : "-",
+               A->lower_layer == j ? "   L: attains the lower bound" : "");
+    detail_add(t, ROLE_NORMAL, "%s", "");
+    detail_add(t, ROLE_HEADING, "Eigenvalues, with multiplicity, by decreasing modulus");
+    if (L->nev == 0)
+        detail_add(t, ROLE_NORMAL, "  (none)");
+    const char *lam = sym(app, "\xCE\xBB", "lambda");
+    for (slong k = 0; k < L->nev; k++)
+        detail_add(t, ROLE_NUMBER, "  %s%-3ld %-44s |%s%ld| = %s", lam, (long)(k + 1), L->ev_str[k], lam,
+                   (long)(k + 1), L->ev_abs_str[k]);
+    detail_add(t, ROLE_NORMAL, "  %ld of modulus > 1, %ld of modulus exactly 1 (decided exactly)",
+               (long)L->n_above_one, (long)L->n_unimodular);
+    detail_add(t, ROLE_NORMAL, "%s", "");
+    char *d = fmpz_get_str(NULL, 10, L->det);
+    char *e = fmpz_get_str(NULL, 10, L->det_i_minus);
+    detail_add(t, ROLE_HEADING, "Determinants");
+    detail_add(t, ROLE_NUMBER, "  det M%ld       = %s", (long)j, d);
+    detail_add(t, ROLE_NUMBER, "  det(I %s M%ld) = %s", sym(app, "\xE2\x88\x92", "-"), (long)j, e);
+    flint_free(d);
+    flint_free(e);
+    if (L->entropy_str)
+        detail_add(t, ROLE_NORMAL, "  entropy of this layer: sum of log|%s| over |%s| > 1 = %s", lam, lam,
+                   L->entropy_str);
+}
+
+void screen_layer_draw(explorer_app *app)
+{
+    char where[96];
+    snprintf(where, sizeof where, "layer %zu of %zu", app->vm->sel_layer + 1, app->vm->nlayers);
+    app_draw_header(app, where);
+    detail_text t = { 0 };
+    detail_build(app, &t);
+    int rows = LINES - 3;
+    if (app->detail_scroll > t.n - rows)
+        app->detail_scroll = t.n - rows;
+    if (app->detail_scroll < 0)
+        app->detail_scroll = 0;
+    for (int r = 0; r < rows && app->detail_scroll + r < t.n; r++) {
+        const detail_line *l = &t.v[app->detail_scroll + r];
+        paint_text(1 + r, 1, COLS - 1, l->role, l->text);
+    }
+    if (t.n > rows)
+        paint_textf(LINES - 2, COLS - 24, 24, ROLE_DIM, "lines %d-%d of %d", app->detail_scroll + 1,
+                    app->detail_scroll + rows < t.n ? app->detail_scroll + rows : t.n, t.n);
+    detail_free(&t);
+    if (app->status[0])
+        app_draw_status(app);
+    app_draw_hints(app, screen_layer_keys());
+}
+
+/* ---- actions ----------------------------------------------------------- */
+
+static int act_back(explorer_app *app)
+{
+    app->screen = SCREEN_MAIN;
+    return ACT_REDRAW;
+}
+
+static int act_up(explorer_app *app)
+{
+    app->detail_scroll--;
+    return ACT_REDRAW;
+}
+
+static int act_down(explorer_app *app)
+{
+    app->detail_scroll++;
+    return ACT_REDRAW;
+}
+
+static int act_page_up(explorer_app *app)
+{
+    app->detail_scroll -= LINES - 4;
+    return ACT_REDRAW;
+}
+
+static int act_page_down(explorer_app *app)
+{
+    app->detail_scroll += LINES - 4;
+    return ACT_REDRAW;
+}
+
+static int act_prev_layer(explorer_app *app)
+{
+    app->detail_scroll = 0;
+    return viewmodel_move_layer(app->vm, -1) ? ACT_REDRAW : ACT_NONE;
+}
+
+static int act_next_layer(explorer_app *app)
+{
+    app->detail_scroll = 0;
+    return viewmodel_move_layer(app->vm, 1) ? ACT_REDRAW : ACT_NONE;
+}
+
+static int act_help(explorer_app *app)
+{
+    app->help_return = app->screen;
+    app->screen = SCREEN_HELP;
+    app->help_scroll = 0;
+    return ACT_REDRAW;
+}
+
+static const ui_binding layer_bindings[] = {
+    { UIKEY_ESC, act_back, "Esc / q", "back to the main screen", "Esc back" },
+    { 'q', act_back, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_BACKSPACE), act_back, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_LEFT), act_prev_layer, "Left / h", "the previous layer", "h/l layer" },
+    { 'h', act_prev_layer, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_RIGHT), act_next_layer, "Right / l", "the next layer", NULL },
+    { 'l', act_next_layer, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_UP), act_up, "Up / k", "scroll up one line", "j/k scroll" },
+    { 'k', act_up, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_DOWN), act_down, "Down / j", "scroll down one line", NULL },
+    { 'j', act_down, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_PPAGE), act_page_up, "PgUp / b", "scroll up one page", NULL },
+    { 'b', act_page_up, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_NPAGE), act_page_down, "PgDn / Space", "scroll down one page", NULL },
+    { ' ', act_page_down, NULL, NULL, NULL },
+    { '?', act_help, "?", "this help", "? help" },
+};
+
+static const ui_keymap layer_keymap = {
+    "Layer detail", layer_bindings, sizeof layer_bindings / sizeof layer_bindings[0]
+};
+
+const ui_keymap *screen_layer_keys(void)
+{
+    return &layer_keymap;
+}

@@ -1,0 +1,521 @@
+/* screen_main.c — the main screen: the group, the generator images, the
+ * table of layers with the bounds and the growth rate, the invariants.
+ *
+ *   row 0            header bar: title, file, [modified]
+ *   rows 1-2         the presentation; class, Hirsch length
+ *   middle           images (one per generator), then the layer table;
+ *                    both scroll to keep their selection in view
+ *   bottom block     bounds and growth rate; the invariants panel
+ *                    (or the failing relators, or why nothing is shown)
+ *   LINES-2          messages;  LINES-1  keys */
+#include <curses.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "app.h"
+#include "numfmt.h"
+#include "paint.h"
+
+#define SIG_DIGITS 10   /* significant digits of radii in the table */
+#define BOTTOM_ROWS 6   /* the bounds and invariants block */
+
+/* Table columns (start, width); they add up to 79 so the table fits 80. */
+enum {
+    COL_J = 2, W_J = 3,
+    COL_LAYER = 6, W_LAYER = 18,
+    COL_RHO = 25, W_RHO = 14,
+    COL_ROOT = 40, W_ROOT = 14,
+    COL_DET = 55, W_DET = 11,
+    COL_DIM = 67, W_DIM = 12,
+    COL_BASIS = 81
+};
+
+static const char *sym(const explorer_app *app, const char *utf8, const char *ascii)
+{
+    return app->utf8 ? utf8 : ascii;
+}
+
+static int map_valid(const analysis_struct *A)
+{
+    return A->has_group && A->has_map && A->valid;
+}
+
+/* Rows given to the images and to the table. */
+static void main_layout(const explorer_app *app, int *img_y, int *ni, int *tab_y, int *nt)
+{
+    int budget = (LINES - 2 - BOTTOM_ROWS) - 4 - 3; /* minus headings and a blank */
+    int ngens = (int)app->vm->ngens, nl = (int)app->vm->nlayers;
+    if (nl < 1)
+        nl = 1;
+    if (ngens + nl <= budget) {
+        *ni = ngens;
+    } else {
+        *ni = budget / 3;
+        if (*ni < 1)
+            *ni = 1;
+        if (*ni > ngens)
+            *ni = ngens;
+    }
+    *nt = budget - *ni;
+    *img_y = 5;
+    *tab_y = *img_y + *ni + 2;
+}
+
+static void keep_in_view(int *top, int sel, int rows)
+{
+    if (sel < *top)
+        *top = sel;
+    if (sel >= *top + rows)
+        *top = sel - rows + 1;
+    if (*top < 0)
+        *top = 0;
+}
+
+static void draw_group(explorer_app *app)
+{
+    const analysis_struct *A = app->A;
+    paint_text(1, 0, 9, ROLE_HEADING, "Group");
+    paint_text(1, 9, COLS - 9, ROLE_NORMAL, app->group_text);
+    if (A->has_group) {
+        char extra[160] = "";
+        if (A->nq->stabilised && A->nq->class_reached < app->cls)
+            snprintf(extra, sizeof extra, "   series stable from class %ld",
+                     (long)A->nq->class_reached);
+        paint_textf(2, 9, COLS - 9, ROLE_NORMAL, "class %ld   Hirsch length %ld   %ld pc generators%s",
+                    (long)app->cls, (long)A->nq->hirsch_length, (long)A->nq->pcp->n, extra);
+    } else {
+        paint_textf(2, 9, COLS - 9, ROLE_NORMAL, "class %ld   (quotient not computed)", (long)app->cls);
+    }
+}
+
+static void draw_images(explorer_app *app, int y0, int rows)
+{
+    const analysis_struct *A = app->A;
+    viewmodel_struct *vm = app->vm;
+    int x = paint_text(y0 - 1, 0, COLS, ROLE_HEADING, "Images of the generators");
+    if (vm->ngens > (size_t)rows)
+        paint_textf(y0 - 1, x, COLS - x, ROLE_DIM, "  (%zu of %zu shown)", (size_t)rows, vm->ngens);
+    keep_in_view(&app->image_top, (int)vm->sel_image, rows);
+    for (int r = 0; r < rows; r++) {
+        size_t i = (size_t)(app->image_top + r);
+        if (i >= vm->ngens)
+            break;
+        int y = y0 + r, sel = i == vm->sel_image;
+        paint_role role = sel ? ROLE_SELECTED : ROLE_NORMAL;
+        if (sel)
+            paint_fill(y, 0, COLS, role);
+        int cx = paint_text(y, 0, 2, role, sel ? "> " : "  ");
+        cx += paint_textf(y, cx, COLS - cx, role, "%s %s ", vm->names[i], sym(app, "\xE2\x86\xA6", "->"));
+        int room = COLS - cx;
+        /* the normal form in the pc labels, when it says something new */
+        const char *nf = A->has_map && A->gen_image_str ? A->gen_image_str[i] : NULL;
+        if (nf && strcmp(nf, vm->images[i]) != 0 && room > 40) {
+            int w = paint_text(y, cx, room - 24, role, vm->images[i]);
+            paint_textf(y, cx + w + 3, COLS - cx - w - 3, sel ? role : ROLE_DIM, "= %s", nf);
+        } else {
+            paint_text(y, cx, room, role, vm->images[i]);
+        }
+    }
+}
+
+static void table_header(explorer_app *app, int y)
+{
+    paint_text(y - 1, 0, COLS, ROLE_HEADING, "Layers of the lower central series");
+    paint_fill(y, 0, COLS, ROLE_NORMAL);
+    paint_text(y, COL_J, W_J, ROLE_HEADING, "  j");
+    paint_text(y, COL_LAYER, W_LAYER, ROLE_HEADING, "layer");
+    paint_text(y, COL_RHO, W_RHO, ROLE_HEADING, sym(app, "\xCF\x81j", "rho_j"));
+    paint_text(y, COL_ROOT, W_ROOT, ROLE_HEADING, sym(app, "\xCF\x81j^(1/j)", "rho_j^(1/j)"));
+    paint_text(y, COL_DET, W_DET, ROLE_HEADING, "det Mj");
+    paint_text(y, COL_DIM, W_DIM, ROLE_HEADING, sym(app, "det(I\xE2\x88\x92Mj)", "det(I-Mj)"));
+    if (COLS > COL_BASIS + 10)
+        paint_text(y, COL_BASIS, COLS - COL_BASIS, ROLE_HEADING, "basis");
+}
+
+/* A number cell: the value cut to SIG_DIGITS, then a marker letter. */
+static void number_cell(int y, int x, int w, paint_role role, const char *dec, const char *marker)
+{
+    char num[64];
+    numfmt_decimal(num, sizeof num, dec, SIG_DIGITS);
+    int k = paint_text(y, x, w - 2, role == ROLE_SELECTED ? role : ROLE_NUMBER, num);
+    if (marker)
+        paint_text(y, x + k + 1, 1, role == ROLE_SELECTED ? role : ROLE_MARKER, marker);
+}
+
+static void integer_cell(int y, int x, int w, paint_role role, const fmpz_t v)
+{
+    char *s = fmpz_get_str(NULL, 10, v);
+    paint_text(y, x, w - 1, role == ROLE_SELECTED ? role : ROLE_NUMBER, s);
+    flint_free(s);
+}
+
+static void draw_table(explorer_app *app, int y0, int rows)
+{
+    const analysis_struct *A = app->A;
+    table_header(app, y0);
+    if (!A->has_group) {
+        paint_text(y0 + 1, 2, COLS - 2, ROLE_ERROR, "No quotient to show.");
+        paint_text(y0 + 2, 2, COLS - 2, ROLE_NORMAL, app->group_problem);
+        paint_text(y0 + 3, 2, COLS - 2, ROLE_DIM,
+                   "c computes it again, -/+ change the class, p edits the presentation.");
+        return;
+    }
+    rows -= 1;
+    keep_in_view(&app->table_top, (int)app->vm->sel_layer, rows);
+    int valid = map_valid(A);
+    for (int r = 0; r < rows; r++) {
+        slong j = app->table_top + r; /* 0-based */
+        if (j >= A->nlayers)
+            break;
+        const analysis_layer_struct *L = A->layers + j;
+        int y = y0 + 1 + r, sel = (size_t)j == app->vm->sel_layer;
+        paint_role role = sel ? ROLE_SELECTED : ROLE_NORMAL;
+        if (sel)
+            paint_fill(y, 0, COLS, role);
+        paint_text(y, 0, 2, role, sel ? "> " : "  ");
+        paint_textf(y, COL_J, W_J, role, "%3ld", (long)(j + 1));
+        paint_text(y, COL_LAYER, W_LAYER - 1, role, L->group_str ? L->group_str : "?");
+        if (valid && L->rho_str) {
+            number_cell(y, COL_RHO, W_RHO, role, L->rho_str, A->upper_layer == j + 1 ? "U" : NULL);
+            number_cell(y, COL_ROOT, W_ROOT, role, L->root_bound_str,
+                        A->lower_layer == j + 1 ? "L" : NULL);
+            integer_cell(y, COL_DET, W_DET, role, L->det);
+            integer_cell(y, COL_DIM, W_DIM, role, L->det_i_minus);
+        } else {
+            paint_text(y, COL_RHO, W_RHO, role, "-");
+            paint_text(y, COL_ROOT, W_ROOT, role, "-");
+            paint_text(y, COL_DET, W_DET, role, "-");
+            paint_text(y, COL_DIM, W_DIM, role, "-");
+        }
+        if (COLS > COL_BASIS + 10 && L->basis && L->free_rank > 0) {
+            char basis[512] = "";
+            size_t k = 0;
+            for (slong b = 0; b < L->free_rank && k + 2 < sizeof basis; b++)
+                k += (size_t)snprintf(basis + k, sizeof basis - k, "%s%s", b ? ", " : "", L->basis[b]);
+            paint_text(y, COL_BASIS, COLS - COL_BASIS, sel ? role : ROLE_DIM, basis);
+        }
+    }
+    if (A->nlayers > rows)
+        paint_textf(y0 - 1, 36, COLS - 36, ROLE_DIM, "(rows %d-%ld of %ld)", app->table_top + 1,
+                    (long)FLINT_MIN(A->nlayers, app->table_top + rows), (long)A->nlayers);
+}
+
+static const char *yes_no(int v)
+{
+    return v ? "yes" : "no";
+}
+
+static void draw_bounds_and_invariants(explorer_app *app, int y)
+{
+    const analysis_struct *A = app->A;
+    char lo[64], up[64], gr[64];
+    numfmt_decimal(lo, sizeof lo, A->lower_bound_str, SIG_DIGITS);
+    numfmt_decimal(up, sizeof up, A->upper_bound_str, SIG_DIGITS);
+    numfmt_decimal(gr, sizeof gr, A->growth_str, SIG_DIGITS);
+    const char *le = sym(app, "\xE2\x89\xA4", "<=");
+    int x = paint_text(y, 0, COLS, ROLE_HEADING, "Growth  ");
+    x += paint_text(y, x, COLS - x, ROLE_MARKER, "L ");
+    x += paint_textf(y, x, COLS - x, ROLE_NUMBER, "%s", lo);
+    x += paint_textf(y, x, COLS - x, ROLE_DIM, " (j=%ld)  %s  ", (long)A->lower_layer, le);
+    x += paint_text(y, x, COLS - x, ROLE_NORMAL, "rate ");
+    x += paint_text(y, x, COLS - x, ROLE_NUMBER, gr);
+    x += paint_textf(y, x, COLS - x, ROLE_DIM, "  %s  ", le);
+    x += paint_text(y, x, COLS - x, ROLE_MARKER, "U ");
+    x += paint_text(y, x, COLS - x, ROLE_NUMBER, up);
+    paint_textf(y, x, COLS - x, ROLE_DIM, " (j=%ld)", (long)A->upper_layer);
+    paint_textf(y + 1, 8, COLS - 8, ROLE_DIM, "%s", A->growth_reason ? A->growth_reason : "");
+
+    paint_text(y + 2, 0, COLS, ROLE_HEADING, "Invariants");
+    char ent[64] = "-", lg[64] = "-";
+    if (A->entropy_str)
+        numfmt_decimal(ent, sizeof ent, A->entropy_str, SIG_DIGITS);
+    if (A->log_growth_str)
+        numfmt_decimal(lg, sizeof lg, A->log_growth_str, SIG_DIGITS);
+    paint_textf(y + 3, 2, COLS - 2, ROLE_NORMAL, "entropy %s   log growth rate %s (%s entropy of any map inducing it)", ent, lg,
+                sym(app, "\xE2\x89\xA4", "<="));
+    if (A->lefschetz_defined) {
+        char *l = fmpz_get_str(NULL, 10, A->lefschetz);
+        char *n = fmpz_get_str(NULL, 10, A->nielsen);
+        char r[128];
+        if (A->reid_kind == ANALYSIS_REID_INFINITE)
+            snprintf(r, sizeof r, "%s", sym(app, "\xE2\x88\x9E", "infinite"));
+        else if (A->reid_kind == ANALYSIS_REID_FINITE) {
+            char *rs = fmpz_get_str(NULL, 10, A->reidemeister);
+            snprintf(r, sizeof r, "%.100s", rs);
+            flint_free(rs);
+        } else
+            snprintf(r, sizeof r, "not defined");
+        paint_textf(y + 4, 2, COLS - 2, ROLE_NORMAL, "Lefschetz %.60s   Nielsen %.60s   Reidemeister %s", l,
+                    n, r);
+        flint_free(l);
+        flint_free(n);
+    } else {
+        paint_textf(y + 4, 2, COLS - 2, ROLE_NORMAL, "Lefschetz, Nielsen, Reidemeister: not defined (%s)",
+                    A->undefined_reason ? A->undefined_reason : "see the report");
+    }
+    char idx[80] = "-";
+    if (A->index_defined) {
+        char *s = fmpz_get_str(NULL, 10, A->image_index);
+        snprintf(idx, sizeof idx, "%.70s", s);
+        flint_free(s);
+    }
+    paint_textf(y + 5, 2, COLS - 2, ROLE_NORMAL,
+                "automorphism %s   injective %s   index %s   hyperbolic %s   expanding %s",
+                yes_no(A->automorphism), yes_no(A->injective), idx, yes_no(A->hyperbolic),
+                yes_no(A->expanding));
+}
+
+static void draw_failures(explorer_app *app, int y)
+{
+    const analysis_struct *A = app->A;
+    paint_textf(y, 0, COLS, ROLE_ERROR,
+                "Not well defined: these relators do not map to 1 in the class-%ld quotient.",
+                (long)app->cls);
+    int room = BOTTOM_ROWS - 1;
+    for (slong k = 0; k < A->nfail && k < room; k++) {
+        if (k == room - 1 && A->nfail > room) {
+            paint_textf(y + 1 + (int)k, 2, COLS - 2, ROLE_DIM, "... and %ld more (nilstep report lists all)",
+                        (long)(A->nfail - k));
+            break;
+        }
+        int x = 2 + paint_textf(y + 1 + (int)k, 2, COLS - 2, ROLE_NORMAL, "%s  %s  ", A->fail_relator[k],
+                                sym(app, "\xE2\x86\xA6", "->"));
+        paint_text(y + 1 + (int)k, x, COLS - x, ROLE_NUMBER, A->fail_image[k]);
+    }
+}
+
+void screen_main_draw(explorer_app *app)
+{
+    const analysis_struct *A = app->A;
+    app_draw_header(app, app->title);
+    draw_group(app);
+    int img_y, ni, tab_y, nt;
+    main_layout(app, &img_y, &ni, &tab_y, &nt);
+    draw_images(app, img_y, ni);
+    draw_table(app, tab_y, nt + 1);
+    /* the bottom block follows the table when the table is short */
+    int used = A->has_group ? (int)FLINT_MIN(A->nlayers, nt) : 3;
+    int by = tab_y + 1 + used + 1;
+    if (by > LINES - 2 - BOTTOM_ROWS)
+        by = LINES - 2 - BOTTOM_ROWS;
+    if (!A->has_group) {
+        /* draw_table said why */
+    } else if (!A->has_map) {
+        paint_text(by, 0, COLS, ROLE_ERROR, "No map analysed.");
+        paint_text(by + 1, 2, COLS - 2, ROLE_NORMAL, app->group_problem);
+    } else if (!A->valid) {
+        draw_failures(app, by);
+    } else {
+        draw_bounds_and_invariants(app, by);
+    }
+    app_draw_status(app);
+    app_draw_hints(app, screen_main_keys());
+}
+
+/* ---- actions ----------------------------------------------------------- */
+
+static int act_layer_prev(explorer_app *app)
+{
+    return viewmodel_move_layer(app->vm, -1) ? ACT_REDRAW : ACT_NONE;
+}
+
+static int act_layer_next(explorer_app *app)
+{
+    return viewmodel_move_layer(app->vm, 1) ? ACT_REDRAW : ACT_NONE;
+}
+
+static int act_layer_first(explorer_app *app)
+{
+    return viewmodel_select_layer(app->vm, 0) ? ACT_REDRAW : ACT_NONE;
+}
+
+static int act_layer_last(explorer_app *app)
+{
+    return app->vm->nlayers && viewmodel_select_layer(app->vm, app->vm->nlayers - 1) ? ACT_REDRAW
+                                                                                     : ACT_NONE;
+}
+
+static int act_image_prev(explorer_app *app)
+{
+    return viewmodel_move_image(app->vm, -1) ? ACT_REDRAW : ACT_NONE;
+}
+
+static int act_image_next(explorer_app *app)
+{
+    return viewmodel_move_image(app->vm, 1) ? ACT_REDRAW : ACT_NONE;
+}
+
+static int act_detail(explorer_app *app)
+{
+    if (!app->A->has_group || app->vm->nlayers == 0) {
+        app_status(app, 1, "no layers to show");
+        return ACT_REDRAW;
+    }
+    app->screen = SCREEN_LAYER;
+    app->detail_scroll = 0;
+    return ACT_REDRAW;
+}
+
+static int act_edit_image(explorer_app *app)
+{
+    if (app->vm->ngens == 0)
+        return ACT_NONE;
+    app->edit_index = app->vm->sel_image;
+    prompt_open(app, PROMPT_IMAGE, viewmodel_get_image(app->vm, app->edit_index));
+    return ACT_REDRAW;
+}
+
+static int act_identity_image(explorer_app *app)
+{
+    size_t i = app->vm->sel_image;
+    if (i >= app->vm->ngens || !viewmodel_set_image(app->vm, i, app->vm->names[i]))
+        return ACT_NONE;
+    app->map_edited = 1;
+    app_status(app, 0, "%s now maps to itself", app->vm->names[i]);
+    return ACT_MAP | ACT_REDRAW;
+}
+
+static int act_undo(explorer_app *app)
+{
+    if (!viewmodel_undo(app->vm)) {
+        app_status(app, 0, "nothing to undo");
+        return ACT_REDRAW;
+    }
+    app->map_edited = 1;
+    app_status(app, 0, "undone: image of %s", app->vm->names[app->vm->sel_image]);
+    return ACT_MAP | ACT_REDRAW;
+}
+
+static int act_redo(explorer_app *app)
+{
+    if (!viewmodel_redo(app->vm)) {
+        app_status(app, 0, "nothing to redo");
+        return ACT_REDRAW;
+    }
+    app->map_edited = 1;
+    app_status(app, 0, "redone: image of %s", app->vm->names[app->vm->sel_image]);
+    return ACT_MAP | ACT_REDRAW;
+}
+
+static int change_class(explorer_app *app, slong to)
+{
+    if (to < 1 || to > NQ_MAX_CLASS) {
+        app_status(app, 1, "the class must be between 1 and %d", NQ_MAX_CLASS);
+        return ACT_REDRAW;
+    }
+    app->pending_cls = to;
+    return ACT_GROUP;
+}
+
+static int act_class_down(explorer_app *app)
+{
+    return change_class(app, app->cls - 1);
+}
+
+static int act_class_up(explorer_app *app)
+{
+    return change_class(app, app->cls + 1);
+}
+
+static int act_recompute(explorer_app *app)
+{
+    app->pending_cls = app->cls;
+    return ACT_GROUP;
+}
+
+static int act_edit_group(explorer_app *app)
+{
+    prompt_open(app, PROMPT_GROUP, app->group_text);
+    return ACT_REDRAW;
+}
+
+static int act_edit_title(explorer_app *app)
+{
+    prompt_open(app, PROMPT_TITLE, app->title);
+    return ACT_REDRAW;
+}
+
+static int act_save(explorer_app *app)
+{
+    if (app->path == NULL) {
+        prompt_open(app, PROMPT_SAVE_AS, "");
+        return ACT_REDRAW;
+    }
+    return ACT_SAVE;
+}
+
+static int act_save_as(explorer_app *app)
+{
+    prompt_open(app, PROMPT_SAVE_AS, app->path ? app->path : "");
+    return ACT_REDRAW;
+}
+
+static int act_open(explorer_app *app)
+{
+    prompt_open(app, app->vm->dirty ? PROMPT_CONFIRM_OPEN : PROMPT_OPEN, "");
+    return ACT_REDRAW;
+}
+
+static int act_help(explorer_app *app)
+{
+    app->help_return = app->screen;
+    app->screen = SCREEN_HELP;
+    app->help_scroll = 0;
+    return ACT_REDRAW;
+}
+
+static int act_quit(explorer_app *app)
+{
+    if (app->vm->dirty) {
+        prompt_open(app, PROMPT_CONFIRM_QUIT, "");
+        return ACT_REDRAW;
+    }
+    return ACT_QUIT;
+}
+
+/* Hints come first in the order the bottom line shows them. */
+static const ui_binding main_bindings[] = {
+    { '?', act_help, "?", "this help: every key", "? help" },
+    { 'q', act_quit, "q", "quit (asks first when there are unsaved changes)", "q quit" },
+    { '\r', act_detail, "Enter", "open the selected layer: basis, matrix, polynomial, eigenvalues",
+      "Enter detail" },
+    { '\n', act_detail, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_ENTER), act_detail, NULL, NULL, NULL },
+    { 'e', act_edit_image, "e", "edit the image of the selected generator", "e edit" },
+    { 'u', act_undo, "u", "undo the last change of an image", "u/r undo/redo" },
+    { 'r', act_redo, "r", "redo what u undid", NULL },
+    { '-', act_class_down, "-", "lower the class by one (recomputes the quotient)", "-/+ class" },
+    { '+', act_class_up, "+ / =", "raise the class by one (recomputes the quotient; Esc cancels)",
+      NULL },
+    { '=', act_class_up, NULL, NULL, NULL },
+    { 'p', act_edit_group, "p", "edit the presentation of the group", "p group" },
+    { 's', act_save, "s", "save the session to its file", "s save" },
+    { UIKEY_FN(KEY_UP), act_layer_prev, "Up / k", "select the previous layer", NULL },
+    { 'k', act_layer_prev, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_DOWN), act_layer_next, "Down / j", "select the next layer", NULL },
+    { 'j', act_layer_next, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_HOME), act_layer_first, "Home / g", "select the first layer", NULL },
+    { 'g', act_layer_first, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_END), act_layer_last, "End / G", "select the last layer", NULL },
+    { 'G', act_layer_last, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_LEFT), act_image_prev, "Left / Shift-Tab", "select the previous generator's image",
+      NULL },
+    { UIKEY_FN(KEY_BTAB), act_image_prev, NULL, NULL, NULL },
+    { UIKEY_FN(KEY_RIGHT), act_image_next, "Right / Tab", "select the next generator's image", NULL },
+    { '\t', act_image_next, NULL, NULL, NULL },
+    { 'i', act_identity_image, "i", "map the selected generator to itself", NULL },
+    { 'c', act_recompute, "c", "compute the quotient again (after a cancel)", NULL },
+    { 't', act_edit_title, "t", "edit the title of the session", NULL },
+    { 'w', act_save_as, "w", "save as: write the session to a new path", NULL },
+    { 'o', act_open, "o", "open another session file", NULL },
+    { UIKEY_CTRL('l'), NULL, "Ctrl-L", "paint the screen again", NULL },
+};
+
+static const ui_keymap main_keymap = {
+    "Main screen", main_bindings, sizeof main_bindings / sizeof main_bindings[0]
+};
+
+const ui_keymap *screen_main_keys(void)
+{
+    return &main_keymap;
+}
