@@ -14,6 +14,9 @@
 #define HEISENBERG_MAX 100
 #define SURFACE_MAX_GENUS 500
 #define UNITRIANGULAR_MAX 16
+/* Generators written out in <...> or raag(...): names are found by linear
+ * search, and no nilpotent quotient of a larger group is within reach. */
+#define PRES_MAX_GENS 1000
 
 /* ------------------------------------------------------------------------ */
 /* Storage                                                                   */
@@ -50,14 +53,19 @@ static char *dup_str(const char *s)
     return d;
 }
 
-/* Appends a relator; takes root and text (flint_malloc'd). */
+/* Appends a relator; takes root and text (flint_malloc'd).  Only used on
+ * presentations this file built from pres_init, whose arrays have room for
+ * the next power of two of relations. */
 static void pres_push_rel(pres_t p, expr_node *root, char *text, int line, int col)
 {
     slong n = p->nrels + 1;
-    p->rels = flint_realloc(p->rels, sizeof(expr_struct) * n);
-    p->text = flint_realloc(p->text, sizeof(char *) * n);
-    p->line = flint_realloc(p->line, sizeof(int) * n);
-    p->col = flint_realloc(p->col, sizeof(int) * n);
+    if ((p->nrels & (p->nrels - 1)) == 0) {
+        slong cap = p->nrels ? 2 * p->nrels : 1;
+        p->rels = flint_realloc(p->rels, sizeof(expr_struct) * cap);
+        p->text = flint_realloc(p->text, sizeof(char *) * cap);
+        p->line = flint_realloc(p->line, sizeof(int) * cap);
+        p->col = flint_realloc(p->col, sizeof(int) * cap);
+    }
     p->rels[n - 1].root = root;
     p->text[n - 1] = text;
     p->line[n - 1] = line;
@@ -215,6 +223,11 @@ static ns_status parse_angle(pres_t p, expr_scan_t s, nserr_t err)
             st = nserr_set(err, NS_ERR_INPUT, t.line, t.col,
                            "generator '%.*s' listed twice (first at %d:%d)", short_len(t.len),
                            t.start, gline[prev], gcol[prev]);
+            goto done;
+        }
+        if (p->gens->n >= PRES_MAX_GENS) {
+            st = nserr_set(err, NS_ERR_LIMIT, t.line, t.col, "more than %d generators",
+                           PRES_MAX_GENS);
             goto done;
         }
         {
@@ -463,6 +476,7 @@ static ns_status parse_raag(pres_t p, expr_scan_t s, const expr_tok_struct *open
     long nedges = 0;
     slong *eu = NULL, *ev = NULL;
     int *el = NULL, *ec = NULL;
+    long *seen = NULL; /* seen[u n + v] = 1 + index of the edge u-v, or 0 */
     ns_status st = NS_OK;
 
     while (s->tok.kind == EXPR_TOK_NAME) {
@@ -472,6 +486,11 @@ static ns_status parse_raag(pres_t p, expr_scan_t s, const expr_tok_struct *open
             st = nserr_set(err, NS_ERR_INPUT, t.line, t.col,
                            "vertex '%.*s' listed twice (first at %d:%d)", short_len(t.len),
                            t.start, vl[prev], vc[prev]);
+            goto done;
+        }
+        if (p->gens->n >= PRES_MAX_GENS) {
+            st = nserr_set(err, NS_ERR_LIMIT, t.line, t.col, "more than %d vertices",
+                           PRES_MAX_GENS);
             goto done;
         }
         char *name = flint_malloc(t.len + 1);
@@ -524,17 +543,23 @@ static ns_status parse_raag(pres_t p, expr_scan_t s, const expr_tok_struct *open
                                "an edge joins two different vertices");
                 goto done;
             }
-            for (long e = 0; e < nedges; e++)
-                if ((eu[e] == u && ev[e] == v) || (eu[e] == v && ev[e] == u)) {
-                    st = nserr_set(err, NS_ERR_INPUT, a.line, a.col,
-                                   "edge %s-%s listed twice (first at %d:%d)", p->gens->name[u],
-                                   p->gens->name[v], el[e], ec[e]);
-                    goto done;
-                }
-            eu = flint_realloc(eu, sizeof(slong) * (nedges + 1));
-            ev = flint_realloc(ev, sizeof(slong) * (nedges + 1));
-            el = flint_realloc(el, sizeof(int) * (nedges + 1));
-            ec = flint_realloc(ec, sizeof(int) * (nedges + 1));
+            if (seen == NULL)
+                seen = flint_calloc((size_t)(p->gens->n * p->gens->n), sizeof(long));
+            if (seen[u * p->gens->n + v] > 0) {
+                long e = seen[u * p->gens->n + v] - 1;
+                st = nserr_set(err, NS_ERR_INPUT, a.line, a.col,
+                               "edge %s-%s listed twice (first at %d:%d)", p->gens->name[u],
+                               p->gens->name[v], el[e], ec[e]);
+                goto done;
+            }
+            seen[u * p->gens->n + v] = seen[v * p->gens->n + u] = nedges + 1;
+            if ((nedges & (nedges - 1)) == 0) { /* grow at powers of two */
+                long cap = nedges ? 2 * nedges : 1;
+                eu = flint_realloc(eu, sizeof(slong) * cap);
+                ev = flint_realloc(ev, sizeof(slong) * cap);
+                el = flint_realloc(el, sizeof(int) * cap);
+                ec = flint_realloc(ec, sizeof(int) * cap);
+            }
             eu[nedges] = u;
             ev[nedges] = v;
             el[nedges] = a.line;
@@ -566,6 +591,7 @@ done:
     flint_free(ev);
     flint_free(el);
     flint_free(ec);
+    flint_free(seen);
     return st;
 }
 

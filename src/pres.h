@@ -26,7 +26,7 @@ void pres_swap(pres_t a, pres_t b);
  * duplicate or malformed generator names, unknown generators, unbalanced
  * brackets, trailing text, each with its line and column.
  *
- * Details: at least one generator; relations are separated by commas (no
+ * Details: at least one and at most 1000 generators; relations are separated by commas (no
  * comma after the last); words follow expr.h; blanks, line breaks and '#'
  * comments may stand between tokens, and only those may follow the '>'.
  * text[i] is the relation as written with each run of blanks, line breaks
@@ -52,6 +52,7 @@ void pres_swap(pres_t a, pres_t b);
  *                     source); 2 <= n <= 16.
  *   raag(V; E)        right-angled Artin group: generators the vertex names
  *                     V, a relator [u,v] for each edge u-v of E, in order.
+ *                     At most 1000 vertices.
  *                     Example raag(a b c d; a-b b-c c-d); commas between
  *                     items are optional; "; E" may be left out (no edges).
  *                     Repeated vertices or edges, loops u-u and unknown

@@ -230,7 +230,10 @@ void session_clear(session_t s)
 
 static void push_note(session_struct *s, const char *text, size_t n, int line, int col)
 {
-    s->notes = flint_realloc(s->notes, sizeof(session_text_struct) * (s->nnotes + 1));
+    /* notes has room for the next power of two of entries (see session.h) */
+    if ((s->nnotes & (s->nnotes - 1)) == 0)
+        s->notes = flint_realloc(s->notes,
+                                 sizeof(session_text_struct) * (s->nnotes ? 2 * s->nnotes : 1));
     s->notes[s->nnotes].text = NULL;
     text_set(&s->notes[s->nnotes], text, n, line, col);
     s->nnotes++;

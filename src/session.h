@@ -74,7 +74,9 @@ typedef struct {
     session_text_struct map;    /* raw, as in the file */
     int cls;                    /* nilpotency class 1..64; 0 = absent */
     slong nnotes;
-    session_text_struct *notes; /* nnotes free texts, owned */
+    session_text_struct *notes; /* nnotes free texts, owned; change them
+                                   only with session_add_note and
+                                   session_clear_notes */
     slong cursor_layer;         /* -1 = absent */
     slong cursor_image;         /* -1 = absent */
     session_text_struct iterate_word; /* raw, as in the file */

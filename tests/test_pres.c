@@ -259,6 +259,32 @@ static void parse_should_reject_malformed_presentations_with_location(void **sta
                       "expected a presentation such as <a, b | [a,b]>");
 }
 
+static void parse_should_limit_the_number_of_generators(void **state)
+{
+    size_t cap = 1002 * 8 + 16, len = 0;
+    char *text = malloc(cap);
+    pres_t p;
+    nserr_t err;
+    (void)state;
+
+    len += (size_t)snprintf(text + len, cap - len, "<");
+    for (int i = 1; i <= 1001; i++)
+        len += (size_t)snprintf(text + len, cap - len, "%sg%d", i > 1 ? "," : "", i);
+    snprintf(text + len, cap - len, ">");
+    pres_init(p);
+    nserr_init(err);
+    assert_int_equal(pres_parse(p, text, 1, 1, err), NS_ERR_LIMIT);
+    assert_int_equal(err->col, (int)(strstr(text, "g1001") - text) + 1);
+    assert_string_equal(err->msg, "more than 1000 generators");
+    /* 1000 are fine */
+    *strstr(text, ",g1001") = '>';
+    *(strstr(text, "g1000>") + 6) = '\0';
+    assert_int_equal(pres_parse(p, text, 1, 1, err), NS_OK);
+    assert_int_equal(p->gens->n, 1000);
+    pres_clear(p);
+    free(text);
+}
+
 static void parse_should_report_positions_in_the_callers_coordinates(void **state)
 {
     pres_t p;
@@ -544,6 +570,23 @@ static void raag_should_add_one_commutator_per_edge(void **state)
     assert_int_equal(p->nrels, 0);
     parse_pres_ok(p, "raag(u v w; u-v, w-u)");
     assert_int_equal(p->nrels, 2);
+    /* a complete graph: the free abelian group; many edges stay fast */
+    {
+        size_t cap = 1000000, len = 0;
+        char *t = malloc(cap);
+        int nv = 300;
+        len += (size_t)snprintf(t + len, cap - len, "raag(");
+        for (int i = 0; i < nv; i++)
+            len += (size_t)snprintf(t + len, cap - len, "v%d ", i);
+        len += (size_t)snprintf(t + len, cap - len, ";");
+        for (int i = 0; i < nv; i++)
+            for (int j = i + 1; j < nv; j++)
+                len += (size_t)snprintf(t + len, cap - len, " v%d-v%d", i, j);
+        snprintf(t + len, cap - len, ")");
+        parse_pres_ok(p, t);
+        assert_int_equal(p->nrels, nv * (nv - 1) / 2);
+        free(t);
+    }
     pres_clear(p);
 }
 
@@ -718,6 +761,7 @@ int main(void)
         cmocka_unit_test(parse_should_keep_relation_text_on_one_line),
         cmocka_unit_test(parse_should_reject_duplicate_generators_with_both_locations),
         cmocka_unit_test(parse_should_reject_malformed_presentations_with_location),
+        cmocka_unit_test(parse_should_limit_the_number_of_generators),
         cmocka_unit_test(parse_should_report_positions_in_the_callers_coordinates),
         cmocka_unit_test(get_str_should_print_a_presentation_that_parses_back),
         cmocka_unit_test(get_str_should_print_relations_as_written),
