@@ -883,5 +883,7 @@ int main(void)
         cmocka_unit_test(deep_trees_should_copy_print_and_free_without_recursion),
         cmocka_unit_test(names_should_find_exact_matches_only),
     };
-    return cmocka_run_group_tests(tests, NULL, NULL);
+    int failed = cmocka_run_group_tests(tests, NULL, NULL);
+    flint_cleanup_master(); /* FLINT's cache of big integers, for valgrind */
+    return failed;
 }

@@ -780,5 +780,7 @@ int main(void)
         cmocka_unit_test(map_should_reject_malformed_text_with_location),
         cmocka_unit_test(map_failure_should_leave_images_unchanged),
     };
-    return cmocka_run_group_tests(tests, NULL, NULL);
+    int failed = cmocka_run_group_tests(tests, NULL, NULL);
+    flint_cleanup_master(); /* FLINT's cache of big integers, for valgrind */
+    return failed;
 }
