@@ -133,7 +133,9 @@ void session_add_note(session_t s, const char *text);
 void session_clear_notes(session_t s);
 /* Negative values mean absent; values above SESSION_MAX_INDEX are clamped. */
 void session_set_cursor(session_t s, slong layer, slong image);
-/* word NULL: no word; steps negative: no steps. */
+/* word NULL: no word; steps negative: no steps.  (A word set without steps
+ * that itself ends in "steps N", possible only with a generator named
+ * steps, would read back as a steps clause.) */
 void session_set_iterate(session_t s, const char *word, slong steps);
 
 #endif
