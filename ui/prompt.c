@@ -48,26 +48,28 @@ static void check_image(explorer_app *app, const char *text)
         expr_init(im + x);
     nserr_t err;
     nserr_init(err);
-    /* The image alone first, so that positions inside the message ("opened
-     * at 1:5") count in the image's own columns too; then the whole map. */
-    expr_t alone;
-    expr_init(alone);
-    ns_status st = expr_parse(alone, text, 1, 1, app->pres->gens, err);
-    expr_clear(alone);
-    if (st != NS_OK && err->line == 1 && err->col > 0) {
-        app->edit_ok = 0;
-        app->edit_caret = err->col;
-        snprintf(app->edit_msg, sizeof app->edit_msg, "column %d: %s", err->col, err->msg);
-    } else if (pres_parse_map(im, app->pres, map, 1, 1, err) == NS_OK) {
+    ns_status st = pres_parse_map(im, app->pres, map, 1, 1, err);
+    if (st == NS_OK) {
         app->edit_ok = 1;
         snprintf(app->edit_msg, sizeof app->edit_msg, "parses; Enter applies it, Esc leaves it as it was");
     } else {
+        app->edit_ok = 0;
+        /* The image alone, so that positions inside the message ("opened
+         * at 1:5") count in the image's own columns too. */
+        nserr_t alone_err;
+        nserr_init(alone_err);
+        expr_t alone;
+        expr_init(alone);
+        ns_status st2 = expr_parse(alone, text, 1, 1, app->pres->gens, alone_err);
+        expr_clear(alone);
         size_t img = (size_t)-1;
         int col = 0;
-        app->edit_ok = 0;
-        if (err->col > 0
-            && viewmodel_locate_column(app->vm, app->edit_index, text, err->col, &img, &col)
-            && img == app->edit_index) {
+        if (st2 != NS_OK && alone_err->line == 1 && alone_err->col > 0) {
+            app->edit_caret = alone_err->col;
+            snprintf(app->edit_msg, sizeof app->edit_msg, "column %d: %s", alone_err->col, alone_err->msg);
+        } else if (err->col > 0
+                   && viewmodel_locate_column(app->vm, app->edit_index, text, err->col, &img, &col)
+                   && img == app->edit_index) {
             app->edit_caret = col;
             snprintf(app->edit_msg, sizeof app->edit_msg, "column %d: %s", col, err->msg);
         } else if (err->col > 0 && img < app->vm->ngens) {
@@ -76,6 +78,7 @@ static void check_image(explorer_app *app, const char *text)
         } else {
             snprintf(app->edit_msg, sizeof app->edit_msg, "%s", err->msg);
         }
+        nserr_clear(alone_err);
     }
     for (slong x = 0; x < X; x++)
         expr_clear(im + x);

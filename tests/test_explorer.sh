@@ -1,0 +1,285 @@
+#!/usr/bin/env bash
+# Terminal tests of the explorer: drive the real program inside tmux at a
+# fixed size and read the screen back with capture-pane.  Every wait polls
+# the screen with a bounded timeout instead of sleeping a fixed time.
+#
+# Skipped (exit 77) without NILSTEP_BINARY (run through ctest) or tmux.
+set -u
+
+if [[ -z "${NILSTEP_BINARY:-}" ]]; then
+    echo "skipped: NILSTEP_BINARY is not set (run through ctest)"
+    exit 77
+fi
+if ! command -v tmux >/dev/null 2>&1; then
+    echo "skipped: tmux is not installed"
+    exit 77
+fi
+src=${NILSTEP_SOURCE_DIR:-$(cd "$(dirname "$0")/.." && pwd)}
+
+sock="nilstep-test-$$"
+tmp=$(mktemp -d)
+cleanup() {
+    tmux -L "$sock" kill-server >/dev/null 2>&1
+    rm -rf "$tmp"
+}
+trap cleanup EXIT
+
+# A UTF-8 locale when there is one; the explorer falls back to ASCII
+# symbols otherwise, and no check below depends on which.
+lang=C
+if locale -a 2>/dev/null | grep -qiE '^c\.utf-?8$'; then
+    lang=C.UTF-8
+fi
+
+failures=0
+current=""
+fail() {
+    echo "FAIL [$current]: $*"
+    echo "---- screen ----"
+    screen
+    echo "----------------"
+    failures=$((failures + 1))
+}
+
+screen() {
+    tmux -L "$sock" capture-pane -p -t nilstep 2>/dev/null
+}
+
+# wait_for TEXT [SECONDS]: until the screen shows TEXT (fixed string).
+wait_for() {
+    local text=$1 limit=${2:-10} i
+    for ((i = 0; i < limit * 10; i++)); do
+        if screen | grep -qF -- "$text"; then
+            return 0
+        fi
+        sleep 0.1
+    done
+    fail "timed out waiting for '$text'"
+    return 1
+}
+
+# wait_gone TEXT [SECONDS]: until TEXT is no longer on the screen.
+wait_gone() {
+    local text=$1 limit=${2:-10} i
+    for ((i = 0; i < limit * 10; i++)); do
+        if ! screen | grep -qF -- "$text"; then
+            return 0
+        fi
+        sleep 0.1
+    done
+    fail "timed out waiting for '$text' to go"
+    return 1
+}
+
+keys() {
+    tmux -L "$sock" send-keys -t nilstep "$@"
+}
+
+# Literal text (no key names).
+type_text() {
+    tmux -L "$sock" send-keys -t nilstep -l -- "$1"
+}
+
+# start COLS LINES [FILE]: a fresh program in a fresh tmux server.  The
+# shell line after it reports the exit status on the screen.
+start() {
+    local cols=$1 lines=$2
+    shift 2
+    tmux -L "$sock" kill-server >/dev/null 2>&1
+    local args=""
+    for a in "$@"; do
+        args+=" '$a'"
+    done
+    # The old server may still be going away: retry for a few seconds.
+    local i
+    for ((i = 0; i < 50; i++)); do
+        if tmux -L "$sock" -f /dev/null new-session -d -s nilstep -x "$cols" -y "$lines" \
+            "cd '$tmp' && env NO_COLOR=1 TERM=screen LANG=$lang LC_ALL=$lang '$NILSTEP_BINARY'$args; echo \"EXIT=\$?\"; sleep 600" \
+            2>/dev/null; then
+            break
+        fi
+        sleep 0.1
+    done
+    tmux -L "$sock" set-option -t nilstep -g status off >/dev/null
+}
+
+cp "$src"/scenarios/*.nilstep "$tmp"/
+
+# ---------------------------------------------------------------------------
+current="open a scenario and read the radii"
+start 100 30 hyperbolic-rank3-class2.nilstep
+wait_for "Hirsch length 6"
+wait_for "1.324717957"            # rho_1, the plastic number, cut to 10 digits
+wait_for "1.150963925"            # rho_2
+screen | grep -E '^> +1 ' | grep -q ' U ' || fail "layer 1 should carry the U mark"
+screen | grep -E '^> +1 ' | grep -q ' L ' || fail "layer 1 should carry the L mark"
+wait_for "hyperbolic yes"
+wait_for "Reidemeister 1"
+
+current="layer detail"
+keys Enter
+wait_for "Characteristic polynomial"
+wait_for "x^3 - x - 1"
+wait_for "1.32471795724474602596090885448"   # all the digits here
+keys Escape
+wait_for "Layers of the lower central series"
+
+current="quit without changes"
+keys q
+wait_for "EXIT=0"
+
+# ---------------------------------------------------------------------------
+current="edit an image and see the numbers change"
+start 100 30
+wait_for "2.618033988 U"
+keys e C-u
+type_text "a^3"
+wait_for "parses"
+keys Enter
+wait_for "9.0 U"
+wait_gone "2.618033988 U"
+wait_for "[modified]"
+
+current="undo and redo"
+keys u
+wait_for "2.618033988 U"
+keys r
+wait_for "9.0 U"
+
+current="an invalid image is located"
+keys e C-u
+type_text "a^3 (b"
+wait_for "error: column 7"
+wait_for "expected ')'"
+line=$(screen | grep -n -F -- "a^3 (b" | head -1)
+row=${line%%:*}
+field=${line#*:}
+prefix=${field%%(b*}
+caret_line=$(screen | sed -n "$((row + 1))p")
+caret_col=$(awk -v s="$caret_line" 'BEGIN { print index(s, "^") - 1 }')
+want_col=$((${#prefix} + 2))
+if [[ "$caret_col" != "$want_col" ]]; then
+    fail "caret at column $caret_col, expected $want_col (just past '(b')"
+fi
+keys Escape
+wait_for "cancelled"
+wait_for "9.0 U"                  # the committed image is untouched
+
+current="raise and lower the class"
+keys +
+wait_for "class 4   Hirsch length 8"
+keys -
+wait_for "class 3   Hirsch length 5"
+
+current="edit the presentation"
+keys p C-u
+type_text "<a, b | [a,b,a], [a,b,b]>"
+wait_for "parses: 2 generators, 2 relations"
+keys Enter
+wait_for "Hirsch length 3"
+
+current="help"
+keys '?'
+wait_for "undo the last change of an image"
+keys Space
+wait_for "Line editor"
+wait_for "Ctrl-U"
+keys Escape
+wait_for "Images of the generators"
+
+current="quit asks about unsaved changes"
+keys q
+wait_for "unsaved changes"
+keys n
+wait_for "still here"
+keys q
+wait_for "unsaved changes"
+keys y
+wait_for "EXIT=0"
+
+# ---------------------------------------------------------------------------
+current="a map that fails a relator"
+start 100 30 relator-fails.nilstep
+wait_for "Not well defined"
+wait_for "[a,b] = c"
+keys q
+wait_for "EXIT=0"
+
+# ---------------------------------------------------------------------------
+current="save, reopen, compare"
+cp "$tmp/filiform-class4.nilstep" "$tmp/copy.nilstep"
+start 100 30 copy.nilstep
+wait_for "24.0 U"
+keys Tab e C-u
+type_text "y^2"
+keys Enter
+wait_for "16.0 U"
+keys j j s
+wait_for "saved copy.nilstep"
+grep -q '^map .*y -> y^2' "$tmp/copy.nilstep" || fail "the saved map lacks the new image"
+grep -q '^cursor *layer 3 image 2' "$tmp/copy.nilstep" || fail "the saved cursor is not layer 3, image 2"
+before=$(screen | sed '$d' | sed '$d')
+keys q
+wait_for "EXIT=0"
+start 100 30 copy.nilstep
+wait_for "16.0 U"
+after=$(screen | sed '$d' | sed '$d')
+if [[ "$before" != "$after" ]]; then
+    fail "the reopened session differs from the saved one"
+    diff <(echo "$before") <(echo "$after")
+fi
+screen | grep -qE '^> +3 ' || fail "layer 3 should be selected after reopening"
+screen | grep -qE '^> y ' || fail "the image of y should be selected after reopening"
+
+current="save as and a bad path"
+keys w C-u
+type_text "$tmp/no/such/dir/x.nilstep"
+keys Enter
+wait_for "error: not saved"
+keys w C-u
+type_text "$tmp/other.nilstep"
+keys Enter
+wait_for "saved $tmp/other.nilstep"
+[[ -f "$tmp/other.nilstep" ]] || fail "save as wrote nothing"
+
+current="open a missing file"
+keys o C-u
+type_text "$tmp/missing.nilstep"
+keys Enter
+wait_for "error:"
+keys q
+wait_for "EXIT=0"
+
+# ---------------------------------------------------------------------------
+current="80x24, too small, and back"
+start 80 24 surface-genus2-class4.nilstep
+wait_for "Hirsch length 70" 30
+wait_for "46.97871376 U"
+wait_for "Invariants"
+wait_for "s save"
+tmux -L "$sock" resize-window -t nilstep -x 60 -y 20
+wait_for "Terminal too small: 60x20"
+tmux -L "$sock" resize-window -t nilstep -x 80 -y 24
+wait_for "46.97871376 U"
+wait_gone "Terminal too small"
+tmux -L "$sock" resize-window -t nilstep -x 120 -y 40
+wait_for "basis"
+keys q
+wait_for "EXIT=0"
+
+# ---------------------------------------------------------------------------
+current="no colour at all under NO_COLOR"
+start 80 24 unipotent-shear.nilstep
+wait_for "Invariants"
+if tmux -L "$sock" capture-pane -p -e -t nilstep | grep -qE $'\e\\[[0-9;]*(3[0-7]|4[0-7]|38|48)[;m]'; then
+    fail "colour escape sequences on the screen although NO_COLOR is set"
+fi
+keys q
+wait_for "EXIT=0"
+
+if ((failures > 0)); then
+    echo "$failures check(s) failed"
+    exit 1
+fi
+echo "all explorer checks passed"
+exit 0
