@@ -2,32 +2,7 @@
 #include <stdio.h>
 #include <string.h>
 #include "cli.h"
-#if __has_include("explorer.h")
 #include "explorer.h"
-#else
-/* Until the explorer lands, `nilstep` prints the default scenario's report. */
-#include <stdlib.h>
-#include "defaults.h"
-#include "session.h"
-static int explorer_run(const char *path)
-{
-    if (path) {
-        char *argv[] = {"report", (char *)path, NULL};
-        return cli_report(2, argv);
-    }
-    char tmpl[] = "/tmp/nilstep-default-XXXXXX";
-    int fd = mkstemp(tmpl);
-    if (fd < 0)
-        return 2;
-    FILE *f = fdopen(fd, "w");
-    fputs(defaults_session_text(), f);
-    fclose(f);
-    char *argv[] = {"report", tmpl, NULL};
-    int st = cli_report(2, argv);
-    remove(tmpl);
-    return st;
-}
-#endif
 
 #ifndef NILSTEP_VERSION
 #define NILSTEP_VERSION "unknown"
