@@ -1,0 +1,793 @@
+/* test_analysis.c — the analysis of a map (analysis.h) checked against
+ * published formulas and values computed here by other means.
+ *
+ *  - tori Z^n: Lefschetz number det(I - M) and Reidemeister number
+ *    |det(I - M)| (infinite when 0), with det from FLINT on I - M;
+ *  - free nilpotent groups: the trace of every layer matrix against
+ *    Brandt's formula, the free ranks against Witt's formula;
+ *  - the 3-dimensional Heisenberg group: the central layer is multiplied
+ *    by det M1, so no automorphism is hyperbolic;
+ *  - the R-infinity property of N(2,4) (Dekimpe and Goncalves 2014) and a
+ *    finite Reidemeister number on N(2,3);
+ *  - the growth rate in its four cases, and validity of maps.
+ *
+ * Matrices act on column vectors: column k of M_j holds the coordinates of
+ * the image of basis element k (DESIGN §2).  A map is built from a matrix
+ * M as "x_k -> prod_i x_i^M[i][k]", so that M1 = M.
+ *
+ * Random tests print their seed; NILSTEP_SEED replays one, NILSTEP_ITER
+ * multiplies the number of cases. */
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <setjmp.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <cmocka.h>
+
+#include <flint/flint.h>
+#include <flint/fmpz.h>
+#include <flint/fmpz_mat.h>
+#include <flint/ulong_extras.h>
+
+#include "analysis.h"
+
+/* ------------------------------------------------------------------------ */
+/* Random numbers, seeds, iteration counts                                   */
+
+static uint64_t rng_state;
+
+static uint64_t rng_next(void)
+{
+    /* splitmix64 (S. Vigna) */
+    uint64_t z = (rng_state += 0x9E3779B97F4A7C15ULL);
+    z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ULL;
+    z = (z ^ (z >> 27)) * 0x94D049BB133111EBULL;
+    return z ^ (z >> 31);
+}
+
+static long rnd(long lo, long hi)
+{
+    return lo + (long)(rng_next() % (uint64_t)(hi - lo + 1));
+}
+
+static void seed(const char *test)
+{
+    const char *e = getenv("NILSTEP_SEED");
+    rng_state = e ? strtoull(e, NULL, 0) : 20261201ULL;
+    printf("# %s: seed %llu (NILSTEP_SEED replays it)\n", test, (unsigned long long)rng_state);
+}
+
+static long iters(long n)
+{
+    const char *e = getenv("NILSTEP_ITER");
+    long k = e ? atol(e) : 1;
+    return n * (k > 0 ? k : 1);
+}
+
+/* ------------------------------------------------------------------------ */
+/* Setting up groups and maps                                               */
+
+static void set_group(analysis_t A, const char *pres, slong c)
+{
+    pres_t G;
+    nserr_t err;
+    pres_init(G);
+    nserr_init(err);
+    if (pres_parse(G, pres, 1, 1, err) != NS_OK)
+        fail_msg("pres_parse(%s): %s", pres, err->msg);
+    if (analysis_set_group(A, G, c, NULL, err) != NS_OK)
+        fail_msg("analysis_set_group(%s, %ld): %s", pres, (long)c, err->msg);
+    pres_clear(G);
+    nserr_clear(err);
+}
+
+static void set_map(analysis_t A, const char *map)
+{
+    nserr_t err;
+    nserr_init(err);
+    if (analysis_set_map_text(A, map, 1, 1, NULL, err) != NS_OK)
+        fail_msg("analysis_set_map_text(%s): %s", map, err->msg);
+    nserr_clear(err);
+}
+
+static const char *gen_name(const analysis_t A, slong i)
+{
+    return A->nq->pres->gens->name[i];
+}
+
+/* Appends "x_0^M[0][k] x_1^M[1][k] ..." (zero exponents left out, "1" for
+ * the zero column) to buf. */
+static void append_column_word(char *buf, size_t cap, const analysis_t A, const fmpz_mat_t M,
+                               slong k)
+{
+    int any = 0;
+    for (slong i = 0; i < fmpz_mat_nrows(M); i++) {
+        const fmpz *e = fmpz_mat_entry(M, i, k);
+        if (fmpz_is_zero(e))
+            continue;
+        char *s = fmpz_get_str(NULL, 10, e);
+        size_t len = strlen(buf);
+        snprintf(buf + len, cap - len, "%s%s^%s", any ? " " : "", gen_name(A, i), s);
+        flint_free(s);
+        any = 1;
+    }
+    if (!any) {
+        size_t len = strlen(buf);
+        snprintf(buf + len, cap - len, "1");
+    }
+}
+
+/* The map x_k -> (column k of M) tail[k]; tail may be NULL or hold NULLs. */
+static void map_text_from_matrix(char *buf, size_t cap, const analysis_t A, const fmpz_mat_t M,
+                                 const char *const *tail)
+{
+    buf[0] = '\0';
+    for (slong k = 0; k < fmpz_mat_ncols(M); k++) {
+        size_t len = strlen(buf);
+        snprintf(buf + len, cap - len, "%s%s -> ", k ? ", " : "", gen_name(A, k));
+        append_column_word(buf, cap, A, M, k);
+        if (tail && tail[k]) {
+            len = strlen(buf);
+            snprintf(buf + len, cap - len, " %s", tail[k]);
+        }
+    }
+    if (strlen(buf) + 1 >= cap)
+        fail_msg("map text buffer too small");
+}
+
+static void random_matrix(fmpz_mat_t M, long lo, long hi)
+{
+    for (slong i = 0; i < fmpz_mat_nrows(M); i++)
+        for (slong k = 0; k < fmpz_mat_ncols(M); k++)
+            fmpz_set_si(fmpz_mat_entry(M, i, k), rnd(lo, hi));
+}
+
+/* A random element of GL2(Z): a product of elementary matrices, with a
+ * random sign change of one column (so det = +1 or -1). */
+static void random_gl2(fmpz_mat_t M)
+{
+    fmpz_mat_one(M);
+    fmpz_mat_t E, T;
+    fmpz_mat_init(E, 2, 2);
+    fmpz_mat_init(T, 2, 2);
+    long steps = rnd(1, 4);
+    for (long s = 0; s < steps; s++) {
+        fmpz_mat_one(E);
+        long t = rnd(1, 2) * (rnd(0, 1) ? 1 : -1);
+        fmpz_set_si(fmpz_mat_entry(E, s % 2, 1 - s % 2), t);
+        fmpz_mat_mul(T, M, E);
+        fmpz_mat_swap(T, M);
+    }
+    if (rnd(0, 1)) {
+        fmpz_neg(fmpz_mat_entry(M, 0, 1), fmpz_mat_entry(M, 0, 1));
+        fmpz_neg(fmpz_mat_entry(M, 1, 1), fmpz_mat_entry(M, 1, 1));
+    }
+    fmpz_mat_clear(E);
+    fmpz_mat_clear(T);
+}
+
+/* A random product of commutators of the generators (in gamma_2), or NULL
+ * for none: tails that leave every layer matrix unchanged. */
+static const char *random_tail(char *buf, size_t cap, const analysis_t A)
+{
+    slong X = A->nq->pres->gens->n;
+    long parts = rnd(0, 2);
+    if (parts == 0)
+        return NULL;
+    buf[0] = '\0';
+    for (long p = 0; p < parts; p++) {
+        size_t len = strlen(buf);
+        const char *x = gen_name(A, rnd(0, X - 1)), *y = gen_name(A, rnd(0, X - 1));
+        if (rnd(0, 1))
+            snprintf(buf + len, cap - len, "%s[%s,%s]^%ld", p ? " " : "", x, y, rnd(-2, 2));
+        else
+            snprintf(buf + len, cap - len, "%s[%s,%s,%s]", p ? " " : "", x, y,
+                     gen_name(A, rnd(0, X - 1)));
+    }
+    return buf;
+}
+
+static char *mat_str(const fmpz_mat_t M)
+{
+    static char buf[2048];
+    buf[0] = '\0';
+    for (slong i = 0; i < fmpz_mat_nrows(M); i++) {
+        size_t len = strlen(buf);
+        snprintf(buf + len, sizeof buf - len, "%s[", i ? " " : "");
+        for (slong k = 0; k < fmpz_mat_ncols(M); k++) {
+            char *s = fmpz_get_str(NULL, 10, fmpz_mat_entry(M, i, k));
+            len = strlen(buf);
+            snprintf(buf + len, sizeof buf - len, "%s%s", k ? " " : "", s);
+            flint_free(s);
+        }
+        len = strlen(buf);
+        snprintf(buf + len, sizeof buf - len, "]");
+    }
+    return buf;
+}
+
+/* det(I - M) by FLINT's determinant of the matrix I - M. */
+static void det_one_minus(fmpz_t d, const fmpz_mat_t M)
+{
+    slong n = fmpz_mat_nrows(M);
+    fmpz_mat_t T;
+    fmpz_mat_init(T, n, n);
+    fmpz_mat_one(T);
+    fmpz_mat_sub(T, T, M);
+    fmpz_mat_det(d, T);
+    fmpz_mat_clear(T);
+}
+
+static void assert_fmpz_eq(const fmpz_t got, const fmpz_t want, const char *what, const char *map)
+{
+    if (!fmpz_equal(got, want)) {
+        char *g = fmpz_get_str(NULL, 10, got), *w = fmpz_get_str(NULL, 10, want);
+        fail_msg("%s: got %s, expected %s (map %s)", what, g, w, map);
+    }
+}
+
+/* ------------------------------------------------------------------------ */
+/* 1. Tori                                                                  */
+
+/* For a map of the torus T^n = R^n / Z^n with matrix M on pi_1 = Z^n,
+ * L(f) = det(I - M) (classical; e.g. R. F. Brown, The Lefschetz Fixed
+ * Point Theorem, 1971 — from memory) and R(f) = |det(I - M)|, or infinity
+ * when det(I - M) = 0 (the cokernel of I - M; classical, from memory).
+ * The class-c quotient of Z^n is Z^n for every c: the series must stop
+ * after layer 1. */
+static void torus_lefschetz_and_reidemeister(void **state)
+{
+    (void)state;
+    static const char *pres[] = {
+        "<a | >",
+        "<a, b | [a,b]>",
+        "<a, b, c | [a,b], [a,c], [b,c]>",
+        "<a, b, c, d | [a,b], [a,c], [a,d], [b,c], [b,d], [c,d]>",
+    };
+    seed("torus_lefschetz_and_reidemeister");
+    long cases = iters(40), infinite = 0, finite = 0;
+    for (long t = 0; t < cases; t++) {
+        slong n = rnd(1, 4), c = rnd(1, 3);
+        analysis_t A;
+        analysis_init(A);
+        set_group(A, pres[n - 1], c);
+        assert_int_equal(A->nq->class_reached, 1);
+        if (c > 1)
+            assert_true(A->nq->stabilised);
+        assert_int_equal(A->nq->hirsch_length, n);
+        for (slong j = 2; j <= c; j++)
+            assert_int_equal(A->layers[j - 1].free_rank, 0);
+
+        fmpz_mat_t M;
+        fmpz_mat_init(M, n, n);
+        /* small entries make det(I - M) = 0 frequent enough to test both */
+        random_matrix(M, t % 2 ? -3 : -1, t % 2 ? 3 : 1);
+        char map[1024];
+        map_text_from_matrix(map, sizeof map, A, M, NULL);
+        set_map(A, map);
+        assert_true(A->valid);
+        assert_true(fmpz_mat_equal(A->layers[0].matrix, M));
+
+        fmpz_t d, ad;
+        fmpz_init(d);
+        fmpz_init(ad);
+        det_one_minus(d, M);
+        fmpz_abs(ad, d);
+        assert_true(A->lefschetz_defined);
+        assert_fmpz_eq(A->lefschetz, d, "Lefschetz number", map);
+        assert_fmpz_eq(A->nielsen, ad, "Nielsen number", map);
+        if (fmpz_is_zero(d)) {
+            infinite++;
+            if (A->reid_kind != ANALYSIS_REID_INFINITE)
+                fail_msg("Reidemeister number should be infinite (map %s)", map);
+        } else {
+            finite++;
+            if (A->reid_kind != ANALYSIS_REID_FINITE)
+                fail_msg("Reidemeister number should be finite (map %s)", map);
+            assert_fmpz_eq(A->reidemeister, ad, "Reidemeister number", map);
+        }
+        fmpz_clear(d);
+        fmpz_clear(ad);
+        fmpz_mat_clear(M);
+        analysis_clear(A);
+    }
+    printf("# %ld finite, %ld infinite Reidemeister numbers\n", finite, infinite);
+    assert_true(finite > 0 && infinite > 0);
+}
+
+/* ------------------------------------------------------------------------ */
+/* 2. Free nilpotent groups: Brandt's and Witt's formulas                     */
+
+/* sum_{d | j} mu(d) f(d)^(j/d) / j, with f(d) given for d = 1..j. */
+static void necklace_sum(fmpz_t out, const fmpz *f, ulong j)
+{
+    fmpz_t s, p;
+    fmpz_init(s);
+    fmpz_init(p);
+    for (ulong d = 1; d <= j; d++) {
+        if (j % d)
+            continue;
+        int mu = n_moebius_mu(d);
+        if (!mu)
+            continue;
+        fmpz_pow_ui(p, f + d - 1, j / d);
+        if (mu > 0)
+            fmpz_add(s, s, p);
+        else
+            fmpz_sub(s, s, p);
+    }
+    if (!fmpz_divisible_si(s, (slong)j))
+        fail_msg("necklace sum not divisible by %lu", j);
+    fmpz_divexact_ui(out, s, j);
+    fmpz_clear(s);
+    fmpz_clear(p);
+}
+
+/* The induced map on the free Lie ring's degree-j part L_j, which is
+ * gamma_j F / gamma_(j+1) F for the free group F (W. Magnus 1937; E. Witt,
+ * "Treue Darstellung Liescher Ringe", J. reine angew. Math. 177, 1937),
+ * has trace tr(A|L_j) = (1/j) sum_{d|j} mu(d) (tr A^d)^(j/d)
+ * (A. Brandt, "The free Lie ring and Lie representations of the full
+ * linear group", Trans. AMS 56, 1944).  At A = I it is Witt's dimension
+ * formula (1/j) sum_{d|j} mu(d) r^(j/d). */
+static void free_nilpotent_brandt_traces(void **state)
+{
+    (void)state;
+    static const struct { const char *pres; slong r, c; long cases; } g[] = {
+        {"free(2)", 2, 6, 12},
+        {"free(3)", 3, 4, 8},
+        {"<x, y, z, w | >", 4, 3, 4},
+    };
+    seed("free_nilpotent_brandt_traces");
+    for (size_t gi = 0; gi < sizeof g / sizeof g[0]; gi++) {
+        analysis_t A;
+        analysis_init(A);
+        set_group(A, g[gi].pres, g[gi].c);
+        slong r = g[gi].r, c = g[gi].c;
+        fmpz *f = _fmpz_vec_init(c);
+        fmpz_t want, got;
+        fmpz_init(want);
+        fmpz_init(got);
+        /* Witt */
+        for (slong d = 0; d < c; d++)
+            fmpz_set_si(f + d, r);
+        for (slong j = 1; j <= c; j++) {
+            necklace_sum(want, f, (ulong)j);
+            if (fmpz_get_si(want) != A->layers[j - 1].free_rank || A->layers[j - 1].ntors)
+                fail_msg("%s layer %ld: free rank %ld (+%ld torsion), Witt's formula gives %ld",
+                         g[gi].pres, (long)j, (long)A->layers[j - 1].free_rank,
+                         (long)A->layers[j - 1].ntors, fmpz_get_si(want));
+        }
+        /* Brandt */
+        fmpz_mat_t M, P;
+        fmpz_mat_init(M, r, r);
+        fmpz_mat_init(P, r, r);
+        for (long t = 0; t < iters(g[gi].cases); t++) {
+            random_matrix(M, -2, 2);
+            const char *tail[4] = {NULL, NULL, NULL, NULL};
+            char tb[4][128], map[1024];
+            for (slong k = 0; k < r; k++)
+                tail[k] = random_tail(tb[k], sizeof tb[k], A);
+            map_text_from_matrix(map, sizeof map, A, M, tail);
+            set_map(A, map);
+            assert_true(A->valid);
+            assert_true(fmpz_mat_equal(A->layers[0].matrix, M));
+            for (slong d = 1; d <= c; d++) {
+                fmpz_mat_pow(P, M, (ulong)d);
+                fmpz_mat_trace(f + d - 1, P);
+            }
+            for (slong j = 1; j <= c; j++) {
+                necklace_sum(want, f, (ulong)j);
+                fmpz_mat_trace(got, A->layers[j - 1].matrix);
+                if (!fmpz_equal(got, want))
+                    fail_msg("%s layer %ld: trace %ld, Brandt's formula gives %ld (map %s)",
+                             g[gi].pres, (long)j, fmpz_get_si(got), fmpz_get_si(want), map);
+                /* the charpoly's x^(r-1) coefficient is -trace */
+                slong rk = A->layers[j - 1].free_rank;
+                fmpz_neg(got, A->layers[j - 1].charpoly + rk - 1);
+                assert_fmpz_eq(got, want, "minus the subleading charpoly coefficient", map);
+            }
+        }
+        fmpz_mat_clear(M);
+        fmpz_mat_clear(P);
+        fmpz_clear(want);
+        fmpz_clear(got);
+        _fmpz_vec_clear(f, c);
+        analysis_clear(A);
+    }
+}
+
+/* ------------------------------------------------------------------------ */
+/* 3. The 3-dimensional Heisenberg group                                     */
+
+/* In the Heisenberg group [x^p y^r, x^q y^s] = [x,y]^(ps - qr) modulo
+ * nothing (the commutator is bilinear and alternating on the abelianised
+ * group when the commutator subgroup is central): the central layer is
+ * multiplied by det M1 (common practice; e.g. any text on nilmanifolds —
+ * from memory).  Hence an automorphism (det = +-1) has the unimodular
+ * eigenvalue +-1 on the centre and is never hyperbolic (Anosov). */
+static void heisenberg_centre_times_det(void **state)
+{
+    (void)state;
+    seed("heisenberg_centre_times_det");
+    analysis_t A, H;
+    analysis_init(A);
+    analysis_init(H);
+    set_group(A, "<x, y | [x,y,x], [x,y,y]>", 3);
+    assert_int_equal(A->nq->class_reached, 2);
+    assert_true(A->nq->stabilised);
+    assert_int_equal(A->layers[1].free_rank, 1);
+    set_group(H, "heisenberg(1)", 2);
+    assert_int_equal(H->layers[0].free_rank, 2);
+    assert_int_equal(H->layers[1].free_rank, 1);
+
+    fmpz_mat_t M;
+    fmpz_t d;
+    fmpz_mat_init(M, 2, 2);
+    fmpz_init(d);
+    char map[1024], w0[256], w1[256], hmap[1100];
+    for (long t = 0; t < iters(60); t++) {
+        int aut = t % 2;
+        if (aut)
+            random_gl2(M);
+        else
+            random_matrix(M, -4, 4);
+        fmpz_mat_det(d, M);
+        map_text_from_matrix(map, sizeof map, A, M, NULL);
+        set_map(A, map);
+        assert_true(A->valid);
+        assert_int_equal(fmpz_mat_nrows(A->layers[1].matrix), 1);
+        assert_fmpz_eq(fmpz_mat_entry(A->layers[1].matrix, 0, 0), d, "central layer", map);
+        if (aut) {
+            if (!A->automorphism || A->hyperbolic || A->layers[1].n_unimodular != 1)
+                fail_msg("automorphism %s: automorphism %d, hyperbolic %d, unimodular on the "
+                         "centre %ld (expected 1, 0, 1)",
+                         map, A->automorphism, A->hyperbolic, (long)A->layers[1].n_unimodular);
+        }
+
+        /* the same on the built-in family, z -> [x1', y1'] */
+        w0[0] = w1[0] = '\0';
+        append_column_word(w0, sizeof w0, H, M, 0);
+        append_column_word(w1, sizeof w1, H, M, 1);
+        snprintf(hmap, sizeof hmap, "x1 -> %s, y1 -> %s, z -> [%s, %s]", w0, w1, w0, w1);
+        set_map(H, hmap);
+        if (!H->valid)
+            fail_msg("heisenberg(1): %s should be well defined", hmap);
+        assert_fmpz_eq(fmpz_mat_entry(H->layers[1].matrix, 0, 0), d, "centre of heisenberg(1)",
+                       hmap);
+        if (aut && H->hyperbolic)
+            fail_msg("heisenberg(1): automorphism %s reported hyperbolic", hmap);
+
+        /* z -> z^k is well defined exactly when k = det M1 */
+        long k = fmpz_get_si(d) + (t % 3 == 0 ? 0 : rnd(1, 2));
+        snprintf(hmap, sizeof hmap, "x1 -> %s, y1 -> %s, z -> z^%ld", w0, w1, k);
+        set_map(H, hmap);
+        if (H->valid != (k == fmpz_get_si(d)))
+            fail_msg("heisenberg(1): %s reported valid = %d, det M1 = %ld", hmap, H->valid,
+                     fmpz_get_si(d));
+    }
+    fmpz_clear(d);
+    fmpz_mat_clear(M);
+    analysis_clear(A);
+    analysis_clear(H);
+}
+
+/* ------------------------------------------------------------------------ */
+/* 4. The R-infinity property                                                */
+
+/* K. Dekimpe and D. Goncalves, "The R-infinity property for free groups,
+ * free nilpotent groups and free solvable groups", Bull. LMS 46 (2014):
+ * the free nilpotent group N(r,c) has R-infinity when c >= 2r; for r = 2
+ * that is c >= 4, so every automorphism of N(2,4) has R = infinity. */
+static void free_nilpotent_rank2_class4_r_infinity(void **state)
+{
+    (void)state;
+    seed("free_nilpotent_rank2_class4_r_infinity");
+    analysis_t A;
+    analysis_init(A);
+    set_group(A, "free(2)", 4);
+    fmpz_mat_t M;
+    fmpz_mat_init(M, 2, 2);
+    char map[1024], tb[2][128];
+    for (long t = 0; t < iters(40); t++) {
+        random_gl2(M);
+        const char *tail[2] = {random_tail(tb[0], sizeof tb[0], A),
+                               random_tail(tb[1], sizeof tb[1], A)};
+        map_text_from_matrix(map, sizeof map, A, M, tail);
+        set_map(A, map);
+        assert_true(A->valid);
+        if (!A->automorphism)
+            fail_msg("%s (M1 %s) should be an automorphism", map, mat_str(M));
+        if (A->reid_kind != ANALYSIS_REID_INFINITE)
+            fail_msg("%s: Reidemeister number should be infinite on N(2,4)", map);
+    }
+    fmpz_mat_clear(M);
+    analysis_clear(A);
+}
+
+/* On N(2,3) R can be finite.  The search runs over the matrices with
+ * entries in [-2, 2] and det +-1 in a fixed order and takes the first with
+ * finite R; its value must be |prod_j det(I - M_j)| computed here from the
+ * layer matrices.  Our own cross-check (derived from L_2 = Lambda^2 V and
+ * L_3 = V (x) Lambda^2 V for V = L_1 of rank 2, which follow from Witt's
+ * dimensions and Brandt's characters): R is finite exactly when det M1 =
+ * -1 and tr M1 = t != 0, and then R = |(-t) * 2 * t| = 2 t^2. */
+static void free_nilpotent_rank2_class3_finite_reidemeister(void **state)
+{
+    (void)state;
+    analysis_t A;
+    analysis_init(A);
+    set_group(A, "free(2)", 3);
+    fmpz_mat_t M;
+    fmpz_mat_init(M, 2, 2);
+    fmpz_t d, tr, prod, dj;
+    fmpz_init(d);
+    fmpz_init(tr);
+    fmpz_init(prod);
+    fmpz_init(dj);
+    char map[1024];
+    long found = 0, checked = 0;
+    for (long e = 0; e < 625; e++) {
+        long v = e;
+        for (int i = 0; i < 4; i++) {
+            fmpz_set_si(fmpz_mat_entry(M, i / 2, i % 2), v % 5 - 2);
+            v /= 5;
+        }
+        fmpz_mat_det(d, M);
+        if (!fmpz_is_pm1(d))
+            continue;
+        fmpz_mat_trace(tr, M);
+        map_text_from_matrix(map, sizeof map, A, M, NULL);
+        set_map(A, map);
+        assert_true(A->valid && A->automorphism);
+        checked++;
+        int predicted_finite = fmpz_equal_si(d, -1) && !fmpz_is_zero(tr);
+        if (predicted_finite != (A->reid_kind == ANALYSIS_REID_FINITE))
+            fail_msg("%s (det %ld, trace %ld): Reidemeister %s, expected %s", map,
+                     fmpz_get_si(d), fmpz_get_si(tr),
+                     A->reid_kind == ANALYSIS_REID_FINITE ? "finite" : "not finite",
+                     predicted_finite ? "finite" : "infinite");
+        if (!predicted_finite)
+            continue;
+        fmpz_one(prod);
+        for (slong j = 0; j < 3; j++) {
+            det_one_minus(dj, A->layers[j].matrix);
+            fmpz_mul(prod, prod, dj);
+        }
+        fmpz_abs(prod, prod);
+        assert_fmpz_eq(A->reidemeister, prod, "R on N(2,3) vs |prod det(I - M_j)|", map);
+        fmpz_mul(dj, tr, tr);
+        fmpz_mul_ui(dj, dj, 2);
+        assert_fmpz_eq(A->reidemeister, dj, "R on N(2,3) vs 2 tr^2", map);
+        if (!found++) {
+            char *s = fmpz_get_str(NULL, 10, A->reidemeister);
+            printf("# first automorphism of N(2,3) with finite R: %s (M1 %s), R = %s\n", map,
+                   mat_str(M), s);
+            flint_free(s);
+        }
+    }
+    printf("# %ld automorphisms of N(2,3) checked, %ld with finite R\n", checked, found);
+    assert_true(found > 0);
+    fmpz_clear(d);
+    fmpz_clear(tr);
+    fmpz_clear(prod);
+    fmpz_clear(dj);
+    fmpz_mat_clear(M);
+    analysis_clear(A);
+}
+
+/* The example named in the report: a -> a b, b -> a has M1 = [[1,1],[1,0]],
+ * det -1, trace 1, so R = 2 by the count above; by hand: det(I - M1) = -1,
+ * M2 = (-1) with det(I - M2) = 2, M3 with eigenvalues -phi, 1/phi and
+ * det(I - M3) = (1 + phi)(1 - 1/phi) = 1. */
+static void free_nilpotent_rank2_class3_example(void **state)
+{
+    (void)state;
+    analysis_t A;
+    analysis_init(A);
+    set_group(A, "free(2)", 3);
+    set_map(A, "a -> a b, b -> a");
+    assert_true(A->valid && A->automorphism);
+    assert_int_equal(fmpz_get_si(A->layers[0].det_i_minus), -1);
+    assert_int_equal(fmpz_get_si(A->layers[1].det_i_minus), 2);
+    assert_int_equal(fmpz_get_si(A->layers[2].det_i_minus), 1);
+    assert_int_equal(A->reid_kind, ANALYSIS_REID_FINITE);
+    assert_int_equal(fmpz_get_si(A->reidemeister), 2);
+    assert_int_equal(fmpz_get_si(A->lefschetz), -2);
+    analysis_clear(A);
+}
+
+/* ------------------------------------------------------------------------ */
+/* 5. Growth rate                                                            */
+
+/* GR = rho_1 whenever rho_1 >= 1 (T. Koberda, Contemp. Math. 590, 2013;
+ * A. Fel'shtyn, J. H. Jo and J. B. Lee, arXiv:1411.6360, 2014), and
+ * rho_j^(1/j) <= rho_1 because every eigenvalue on layer j is a product of
+ * j eigenvalues on layer 1 (layer j is a quotient of L1 (x) ... (x) L1), so
+ * the lower bound is attained on layer 1.  Every map of the generators is
+ * well defined on these quotients: free nilpotent groups, the Heisenberg
+ * group (free nilpotent of class 2), Z^3, and a group whose relator lies
+ * in gamma_3, taken at class 2. */
+static void growth_rate_is_rho1(void **state)
+{
+    (void)state;
+    static const struct { const char *pres; slong r, c; } g[] = {
+        {"free(2)", 2, 4},
+        {"free(3)", 3, 3},
+        {"<x, y | [x,y,x], [x,y,y]>", 2, 3},
+        {"<a, b, c | [a,b], [a,c], [b,c]>", 3, 2},
+        {"<a, b, c, d | [a,b,c]>", 4, 2},
+    };
+    seed("growth_rate_is_rho1");
+    long checked = 0;
+    for (size_t gi = 0; gi < sizeof g / sizeof g[0]; gi++) {
+        analysis_t A;
+        analysis_init(A);
+        set_group(A, g[gi].pres, g[gi].c);
+        fmpz_mat_t M;
+        fmpz_mat_init(M, g[gi].r, g[gi].r);
+        char map[1024];
+        for (long t = 0; t < iters(10); t++) {
+            random_matrix(M, -2, 2);
+            map_text_from_matrix(map, sizeof map, A, M, NULL);
+            set_map(A, map);
+            if (!A->valid)
+                fail_msg("%s: %s should be well defined", g[gi].pres, map);
+            if (spectrum_radius_cmp_one(A->layers[0].spectrum) < 0)
+                continue;
+            checked++;
+            if (strcmp(A->growth_str, A->layers[0].rho_str))
+                fail_msg("%s, %s: growth rate %s, rho_1 %s", g[gi].pres, map, A->growth_str,
+                         A->layers[0].rho_str);
+            if (A->lower_layer != 1)
+                fail_msg("%s, %s: lower bound attained on layer %ld, expected layer 1",
+                         g[gi].pres, map, (long)A->lower_layer);
+        }
+        fmpz_mat_clear(M);
+        analysis_clear(A);
+    }
+    printf("# %ld maps with rho_1 >= 1 checked\n", checked);
+    assert_true(checked >= 20);
+}
+
+/* a -> b, b -> 1 on N(2,3): alpha^2 kills both generators, hence every
+ * element; the growth rate is 0. */
+static void growth_rate_nilpotent_map(void **state)
+{
+    (void)state;
+    analysis_t A;
+    analysis_init(A);
+    set_group(A, "free(2)", 3);
+    set_map(A, "a -> b, b -> 1");
+    assert_true(A->valid);
+    assert_string_equal(A->layers[0].rho_str, "0");
+    assert_string_equal(A->growth_str, "0");
+    /* check the premise: alpha != 1 but alpha^2 = 1 on the generators */
+    endo_t P;
+    nserr_t err;
+    endo_init(P);
+    nserr_init(err);
+    slong n = A->nq->pcp->n;
+    assert_false(_fmpz_vec_is_zero(A->endo->gen_img, 2 * n));
+    assert_int_equal(endo_pow(P, A->endo, 2, A->nq, NULL, err), NS_OK);
+    assert_true(_fmpz_vec_is_zero(P->gen_img, 2 * n));
+    endo_clear(P);
+    nserr_clear(err);
+    analysis_clear(A);
+}
+
+/* a -> a b, b -> b is unipotent (M1 = [[1,0],[1,1]]): alpha^n(a) = a b^n
+ * has length n + 1, so the growth rate is 1. */
+static void growth_rate_unipotent_map(void **state)
+{
+    (void)state;
+    analysis_t A;
+    analysis_init(A);
+    set_group(A, "free(2)", 4);
+    set_map(A, "a -> a b, b -> b");
+    assert_true(A->valid);
+    assert_string_equal(A->layers[0].rho_str, "1");
+    assert_string_equal(A->growth_str, "1");
+    assert_string_equal(A->upper_bound_str, "1");
+    analysis_clear(A);
+}
+
+/* G = <a, t | t^2, [a,t]> = Z x Z/2.  The map a -> t, t -> t respects both
+ * relators (t^2 -> t^2 = 1, [a,t] -> [t,t] = 1).  On the free part Z of the
+ * abelianisation it is 0 (a goes to torsion), so rho_1 = 0; but alpha^n(t)
+ * = t for all n, a nontrivial element of length 1, so the word lengths of
+ * the iterates neither grow nor die out: the growth rate is 1.  With
+ * t -> 1 instead, alpha^2 = 1 and the growth rate is 0. */
+static void growth_rate_torsion_keeps_it_one(void **state)
+{
+    (void)state;
+    analysis_t A;
+    analysis_init(A);
+    set_group(A, "<a, t | t^2, [a,t]>", 2);
+    assert_int_equal(A->layers[0].free_rank, 1);
+    assert_int_equal(A->layers[0].ntors, 1);
+    set_map(A, "a -> t, t -> t");
+    assert_true(A->valid);
+    assert_string_equal(A->layers[0].rho_str, "0");
+    assert_string_equal(A->growth_str, "1");
+    assert_true(A->undefined_reason != NULL); /* torsion: invariants not defined */
+    set_map(A, "a -> t, t -> 1");
+    assert_true(A->valid);
+    assert_string_equal(A->layers[0].rho_str, "0");
+    assert_string_equal(A->growth_str, "0");
+    analysis_clear(A);
+}
+
+/* ------------------------------------------------------------------------ */
+/* 6. Validity                                                               */
+
+/* G = <a, b | [a,b,a]>: the relator lies in gamma_3 of the free group, so
+ * every map is an endomorphism of the class-2 quotient N(2,2).  The swap
+ * a <-> b sends the relator to [b,a,b], which is not trivial in G/gamma_4
+ * (layer 3 of N(2,3) has basis [b,a,a], [b,a,b] and the relator kills only
+ * [a,b,a] = [b,a,a]^-1 there), so it fails at class 3. */
+static void validity_relator_in_gamma3(void **state)
+{
+    (void)state;
+    analysis_t A;
+    analysis_init(A);
+    set_group(A, "<a, b | [a,b,a]>", 2);
+    set_map(A, "a -> b, b -> a");
+    assert_true(A->valid);
+    assert_int_equal(A->nfail, 0);
+
+    set_group(A, "<a, b | [a,b,a]>", 3);
+    assert_int_equal(A->layers[2].free_rank, 1);
+    set_map(A, "a -> b, b -> a");
+    assert_false(A->valid);
+    assert_int_equal(A->nfail, 1);
+    assert_string_equal(A->fail_relator[0], "[a,b,a]");
+    /* the image [[b,a],b] is the pc generator labelled [b,a,b] itself */
+    printf("# failing relator %s -> %s\n", A->fail_relator[0], A->fail_image[0]);
+    assert_string_equal(A->fail_image[0], "[b,a,b]");
+
+    /* an endomorphism of G itself stays valid: a -> a^2, b -> b^3 maps
+     * [a,b,a] to [a^2,b^3,a^2], a power of [a,b,a] modulo gamma_4 */
+    set_map(A, "a -> a^2, b -> b^3");
+    assert_true(A->valid);
+    analysis_clear(A);
+}
+
+/* G = <a, b | a^2> = Z/2 * Z: a -> b sends a^2 to b^2, which is not
+ * trivial already in the abelianisation Z/2 + Z. */
+static void validity_fails_in_abelianisation(void **state)
+{
+    (void)state;
+    analysis_t A;
+    analysis_init(A);
+    set_group(A, "<a, b | a^2>", 1);
+    set_map(A, "a -> b, b -> a");
+    assert_false(A->valid);
+    assert_int_equal(A->nfail, 1);
+    assert_string_equal(A->fail_relator[0], "a^2");
+    assert_string_equal(A->fail_image[0], "b^2");
+    set_map(A, "a -> a, b -> a b^-1");
+    assert_true(A->valid);
+    analysis_clear(A);
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(torus_lefschetz_and_reidemeister),
+        cmocka_unit_test(free_nilpotent_brandt_traces),
+        cmocka_unit_test(heisenberg_centre_times_det),
+        cmocka_unit_test(free_nilpotent_rank2_class4_r_infinity),
+        cmocka_unit_test(free_nilpotent_rank2_class3_finite_reidemeister),
+        cmocka_unit_test(free_nilpotent_rank2_class3_example),
+        cmocka_unit_test(growth_rate_is_rho1),
+        cmocka_unit_test(growth_rate_nilpotent_map),
+        cmocka_unit_test(growth_rate_unipotent_map),
+        cmocka_unit_test(growth_rate_torsion_keeps_it_one),
+        cmocka_unit_test(validity_relator_in_gamma3),
+        cmocka_unit_test(validity_fails_in_abelianisation),
+    };
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}

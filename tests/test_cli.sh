@@ -1,0 +1,286 @@
+#!/usr/bin/env bash
+# test_cli.sh — the command line of `nilstep report` (DESIGN §6): located
+# syntax errors and exit statuses, the JSON keys, Witt's formula for the
+# free ranks of free(2) at class 10, the LaTeX table.
+#
+# Every expected column is computed here from the text: the error position
+# is marked by the prefix that precedes it, and the column is the length of
+# that prefix plus one.  Exit 77 (skipped) when NILSTEP_BINARY is unset.
+set -u
+
+if [[ -z ${NILSTEP_BINARY:-} ]]; then
+    echo "NILSTEP_BINARY is not set: skipped"
+    exit 77
+fi
+NS=$NILSTEP_BINARY
+PY=/usr/bin/python3
+tmp=$(mktemp -d "${TMPDIR:-/tmp}/nilstep-cli.XXXXXX")
+trap 'rm -rf "$tmp"' EXIT
+
+failures=0
+checks=0
+fail() {
+    echo "FAIL: $*"
+    failures=$((failures + 1))
+}
+ok() {
+    checks=$((checks + 1))
+}
+
+# run: runs nilstep with the given arguments; sets rc, out, err.
+run() {
+    "$NS" "$@" >"$tmp/out" 2>"$tmp/err"
+    rc=$?
+    out=$(cat "$tmp/out")
+    err=$(cat "$tmp/err")
+}
+
+# expect_status WANT DESCRIPTION ARGS...
+expect_status() {
+    local want=$1 what=$2
+    shift 2
+    run "$@"
+    if [[ $rc != "$want" ]]; then
+        fail "$what: exit status $rc, expected $want (stderr: $err)"
+    else
+        ok
+    fi
+}
+
+# expect_located WHERE LINE PREFIX WORD DESCRIPTION ARGS...
+# The first line of stderr must start "WHERE:LINE:COL: error: " with
+# COL = ${#PREFIX} + 1 and contain WORD; exit status 2.
+expect_located() {
+    local where=$1 line=$2 prefix=$3 word=$4 what=$5
+    shift 5
+    local col=$(( ${#prefix} + 1 ))
+    run "$@"
+    local want="$where:$line:$col: error: "
+    local first=${err%%$'\n'*}
+    if [[ $rc != 2 ]]; then
+        fail "$what: exit status $rc, expected 2 (stderr: $err)"
+    elif [[ $first != "$want"* ]]; then
+        fail "$what: stderr '$first', expected it to start with '$want'"
+    elif [[ $first != *"$word"* ]]; then
+        fail "$what: stderr '$first' does not mention '$word'"
+    elif [[ -n $out ]]; then
+        fail "$what: a report was printed despite the error"
+    else
+        ok
+    fi
+}
+
+# ---------------------------------------------------------------------------
+# Syntax errors in --group and --map
+
+g='<a,b|[a,d]>'
+expect_located --group 1 '<a,b|[a,' "'d'" "unknown generator in --group" \
+    report --group "$g" --class 2
+g='<a, b | [a,b>'
+expect_located --group 1 '<a, b | [a,b' "']'" "unbalanced bracket in --group" \
+    report --group "$g" --class 2
+g='<a, b | (a b>'
+expect_located --group 1 '<a, b | (a b' "')'" "unbalanced parenthesis in --group" \
+    report --group "$g" --class 2
+g='<a, b | a^1.5>'
+expect_located --group 1 '<a, b | a^' "integer" "fractional exponent in --group" \
+    report --group "$g" --class 2
+g='<a, b | a^-b>'
+expect_located --group 1 '<a, b | a^-' "" "non-integer exponent after ^- in --group" \
+    report --group "$g" --class 2
+g='<a, b | a,, b>'
+expect_located --group 1 '<a, b | a,' "" "empty relation in --group" \
+    report --group "$g" --class 2
+g='<a, b, a | >'
+expect_located --group 1 '<a, b, ' "'a'" "duplicate generator in --group" \
+    report --group "$g" --class 2
+m='a -> b a^2'
+expect_located --map 1 "$m" "'b'" "missing image in --map (reported at the end)" \
+    report --group '<a, b | >' --class 2 --map "$m"
+m='a -> , b -> a'
+expect_located --map 1 'a -> ' "" "empty image in --map" \
+    report --group '<a, b | >' --class 2 --map "$m"
+m='a -> b, b -> a, a -> a'
+expect_located --map 1 'a -> b, b -> a, ' "'a'" "repeated image in --map" \
+    report --group '<a, b | >' --class 2 --map "$m"
+m='a -> b, b -> [a, c]'
+expect_located --map 1 'a -> b, b -> [a, ' "'c'" "unknown generator in --map" \
+    report --group '<a, b | >' --class 2 --map "$m"
+m='a -> b, c -> a'
+expect_located --map 1 'a -> b, ' "'c'" "image of an unknown generator in --map" \
+    report --group '<a, b | >' --class 2 --map "$m"
+
+# ---------------------------------------------------------------------------
+# Syntax errors in session files (line and column in the file)
+
+session() { # session NAME LINES...
+    local f="$tmp/$1"
+    shift
+    printf '%s\n' "$@" >"$f"
+    echo "$f"
+}
+f=$(session unknown_key.nilstep 'nilstep session 1' 'group   <a, b>' 'class   2' 'colour  red')
+expect_located "$f" 4 '' "'colour'" "unknown session key" report "$f"
+f=$(session bad_class.nilstep 'nilstep session 1' 'group   <a, b>' 'class   two')
+expect_located "$f" 3 'class   ' "class" "class not a number" report "$f"
+f=$(session zero_class.nilstep 'nilstep session 1' 'group   <a, b>' 'class   0')
+expect_located "$f" 3 'class   ' "class" "class 0" report "$f"
+f=$(session big_class.nilstep 'nilstep session 1' 'group   <a, b>' 'class   65')
+expect_located "$f" 3 'class   ' "class" "class 65 (above 64)" report "$f"
+f=$(session gen.nilstep 'nilstep session 1' 'group   <a, b |' '   [a,b,a], [a,d]>' 'class   2')
+expect_located "$f" 3 '   [a,b,a], [a,' "'d'" "unknown generator on a continuation line" report "$f"
+f=$(session exp.nilstep 'nilstep session 1' 'group   <a, b | a^2.5>' 'class   2')
+expect_located "$f" 2 'group   <a, b | a^' "integer" "bad exponent in a session" report "$f"
+f=$(session brk.nilstep 'nilstep session 1' 'group   <a, b>' 'class   2' 'map     a -> [a, b, b -> a')
+expect_located "$f" 4 'map     a -> [a, b, b ' "" "unbalanced bracket in a session map" report "$f"
+f=$(session dup.nilstep 'nilstep session 1' 'group   <x, y, x | >' 'class   2')
+expect_located "$f" 2 'group   <x, y, ' "'x'" "duplicate generator in a session" report "$f"
+f=$(session miss.nilstep 'nilstep session 1' 'group   <a, b>' 'class   3' 'map     a -> a^2 b')
+expect_located "$f" 4 'map     a -> a^2 b' "'b'" "missing image in a session" report "$f"
+
+# ---------------------------------------------------------------------------
+# Usage errors, help, version
+
+expect_status 2 "report without arguments" report
+expect_status 2 "unknown option" report --frobnicate
+expect_status 2 "--group without --class" report --group '<a, b>'
+expect_status 2 "--class 0" report --group '<a, b>' --class 0
+expect_status 2 "--class not a number" report --group '<a, b>' --class three
+expect_status 2 "--class 65" report --group '<a, b>' --class 65
+expect_status 2 "--format xml" report --group '<a, b>' --class 2 --format xml
+expect_status 2 "option without its value" report --group '<a, b>' --class
+expect_status 2 "FILE and --group together" report "$tmp/gen.nilstep" --group '<a, b>' --class 2
+expect_status 2 "two FILEs" report "$tmp/gen.nilstep" "$tmp/exp.nilstep"
+expect_status 2 "a FILE that does not exist" report "$tmp/does-not-exist.nilstep"
+[[ -n $err ]] || fail "no message for a missing FILE"
+expect_status 0 "--help" --help
+[[ $out == *"[x,y] = x^-1 y^-1 x y"* ]] || fail "--help does not state the commutator convention"
+expect_status 0 "--version" --version
+[[ $out =~ [0-9]+\.[0-9]+ ]] || fail "--version prints no version number: '$out'"
+
+# ---------------------------------------------------------------------------
+# A map that is not well defined: exit 1 with the report (the swap a <-> b
+# sends [a,b,a] to [b,a,b], not trivial at class 3)
+
+expect_status 1 "non-endomorphism at class 3" \
+    report --group '<a, b | [a,b,a]>' --class 3 --map 'a -> b, b -> a' --format json
+$PY -c '
+import json, sys
+m = json.load(open(sys.argv[1]))["map"]
+assert m["valid"] is False, m["valid"]
+assert m["failures"] == [{"relator": "[a,b,a]", "image": "[b,a,b]"}], m["failures"]
+' "$tmp/out" || fail "the failing relator is not listed as expected"
+expect_status 0 "the same map at class 2 is an endomorphism of the quotient" \
+    report --group '<a, b | [a,b,a]>' --class 2 --map 'a -> b, b -> a'
+f=$(session bad_map.nilstep 'nilstep session 1' 'group   <a, b | a^2>' 'class   1' 'map     a -> b, b -> a')
+expect_status 1 "non-endomorphism from a session file" report "$f"
+
+# ---------------------------------------------------------------------------
+# free(2) at class 10: free ranks by Witt's formula
+# (E. Witt, J. reine angew. Math. 177, 1937), computed here.
+
+expect_status 0 "free(2) class 10" report --group '<a,b|>' --class 10 --format json
+$PY - "$tmp/out" <<'EOF' || fail "free ranks of free(2) class 10 differ from Witt's formula"
+import json, sys
+def mobius(n):
+    m, p = 1, 2
+    while p * p <= n:
+        if n % p == 0:
+            n //= p
+            if n % p == 0:
+                return 0
+            m = -m
+        p += 1
+    return -m if n > 1 else m
+def witt(r, j):
+    return sum(mobius(d) * r ** (j // d) for d in range(1, j + 1) if j % d == 0) // j
+g = json.load(open(sys.argv[1]))["group"]
+got = [L["free_rank"] for L in g["layers"]]
+want = [witt(2, j) for j in range(1, 11)]
+print("# free ranks", got, "Witt", want)
+assert want == [2, 1, 2, 3, 6, 9, 18, 30, 56, 99], want
+assert got == want, (got, want)
+assert [L["weight"] for L in g["layers"]] == list(range(1, 11))
+assert all(L["torsion"] == [] for L in g["layers"])
+assert g["hirsch_length"] == sum(want), g["hirsch_length"]
+EOF
+ok
+
+# ---------------------------------------------------------------------------
+# The JSON keys of DESIGN §6
+
+expect_status 0 "JSON report with a map" \
+    report --group '<a, b | [a,b,a], [a,b,b]>' --class 2 --map 'a -> a^2 b, b -> a b' --format json
+$PY - "$tmp/out" <<'EOF' || fail "JSON report lacks keys of DESIGN §6 or has wrong types"
+import json, sys
+r = json.load(open(sys.argv[1]))
+def need(obj, keys, where):
+    missing = [k for k in keys if k not in obj]
+    assert not missing, f"{where}: missing {missing}"
+need(r, ["format", "version", "group", "map"], "top level")
+assert r["format"] == "nilstep-report" and r["version"] == 1
+g = r["group"]
+need(g, ["generators", "class", "hirsch_length", "pc_generators", "layers"], "group")
+assert g["generators"] == ["a", "b"] and g["class"] == 2 and g["hirsch_length"] == 3
+for L in g["layers"]:
+    need(L, ["weight", "free_rank", "torsion", "basis"], "group layer")
+    assert len(L["basis"]) == L["free_rank"]
+m = r["map"]
+need(m, ["valid", "failures", "layers", "lower_bound", "upper_bound", "growth_rate",
+         "entropy", "lefschetz", "nielsen", "reidemeister", "automorphism",
+         "injective", "hyperbolic", "expanding", "image_index"], "map")
+assert m["valid"] is True and m["failures"] == []
+for L in m["layers"]:
+    need(L, ["weight", "matrix", "charpoly", "spectral_radius", "root_bound"], "map layer")
+    assert L["charpoly"][-1] == 1 and len(L["charpoly"]) == len(L["matrix"]) + 1
+    assert isinstance(L["spectral_radius"], str) and isinstance(L["root_bound"], str)
+for k in ["lower_bound", "upper_bound", "growth_rate", "entropy"]:
+    assert isinstance(m[k], str), k
+    float(m[k])
+assert isinstance(m["lefschetz"], int) and isinstance(m["nielsen"], int)
+assert m["reidemeister"] == "infinite" or isinstance(m["reidemeister"], int)
+for k in ["automorphism", "injective", "hyperbolic", "expanding"]:
+    assert isinstance(m[k], bool), k
+# the Heisenberg map with det 1: centre fixed, so L = 0 and R infinite
+assert m["lefschetz"] == 0 and m["reidemeister"] == "infinite"
+assert m["layers"][1]["matrix"] == [[1]]
+EOF
+ok
+expect_status 0 "JSON report without a map" report --group '<a, b | [a,b]>' --class 2 --format json
+$PY -c '
+import json, sys
+r = json.load(open(sys.argv[1]))
+assert "map" not in r, "map key present without a map"
+assert [L["free_rank"] for L in r["group"]["layers"]] == [2, 0]
+' "$tmp/out" || fail "JSON report without a map"
+expect_status 0 "JSON report with torsion" \
+    report --group '<a, t | t^2, [a,t]>' --class 2 --map 'a -> a t, t -> t' --format json
+$PY -c '
+import json, sys
+r = json.load(open(sys.argv[1]))
+assert r["group"]["layers"][0]["torsion"] == [2], r["group"]["layers"][0]
+m = r["map"]
+assert m["lefschetz"] is None and m["nielsen"] is None and m["reidemeister"] is None, m
+' "$tmp/out" || fail "JSON report with torsion: invariants should be null"
+
+# ---------------------------------------------------------------------------
+# LaTeX and text
+
+expect_status 0 "LaTeX report" report --group 'free(2)' --class 3 --map 'a -> a^2 b, b -> a b' --format latex
+[[ $out == *'\begin{tabular}'* ]] || fail "LaTeX report has no \\begin{tabular}"
+[[ $out == *'\end{tabular}'* ]] || fail "LaTeX report has no \\end{tabular}"
+expect_status 0 "text report" report --group 'free(2)' --class 3 --map 'a -> a^2 b, b -> a b'
+[[ $out == *"Hirsch length"* ]] || fail "text report does not show the Hirsch length"
+
+f=$(session good.nilstep 'nilstep session 1' 'title   Doubling' 'group   <a, b | [a,b,a], [a,b,b]>' \
+    'class   3' 'map     a -> a^2, b -> b^2')
+expect_status 0 "session file report" report --format json "$f"
+$PY -c '
+import json, sys
+m = json.load(open(sys.argv[1]))["map"]
+assert m["expanding"] is True and m["growth_rate"] == "2", m
+assert m["lefschetz"] == -3 and m["reidemeister"] == 3, m
+' "$tmp/out" || fail "session file report: doubling on the Heisenberg group"
+
+echo "# $checks checks passed, $failures failed"
+(( failures == 0 ))
