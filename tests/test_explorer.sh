@@ -103,6 +103,21 @@ start() {
     tmux -L "$sock" set-option -t nilstep -g status off >/dev/null
 }
 
+# The first child process of a pid, from /proc (no procps needed).
+child_of() {
+    local parent=$1 f rest
+    for f in /proc/[0-9]*/stat; do
+        rest=$(cat "$f" 2>/dev/null) || continue
+        rest=${rest##*) }              # the fields after "(comm) "
+        set -- $rest
+        if [[ "${2:-}" == "$parent" ]]; then
+            f=${f#/proc/}
+            echo "${f%/stat}"
+            return
+        fi
+    done
+}
+
 cp "$src"/scenarios/*.nilstep "$tmp"/
 
 # ---------------------------------------------------------------------------
@@ -251,6 +266,26 @@ keys q
 wait_for "EXIT=0"
 
 # ---------------------------------------------------------------------------
+current="Esc cancels a long computation"
+cat >"$tmp/long.nilstep" <<'END'
+nilstep session 1
+title   Four letters, zero map
+group   <a, b, c, d>
+class   6
+map     a -> 1, b -> 1, c -> 1, d -> 1
+END
+start 100 30 long.nilstep
+wait_for "class 6   Hirsch length 964" 120
+keys +
+wait_for "class-7 quotient" 30
+keys Escape
+wait_for "class 7 not computed" 120
+wait_for "kept class 6"
+wait_for "class 6   Hirsch length 964"
+keys q
+wait_for "EXIT=0"
+
+# ---------------------------------------------------------------------------
 current="80x24, too small, and back"
 start 80 24 surface-genus2-class4.nilstep
 wait_for "Hirsch length 70" 30
@@ -266,6 +301,21 @@ tmux -L "$sock" resize-window -t nilstep -x 120 -y 40
 wait_for "basis"
 keys q
 wait_for "EXIT=0"
+
+# ---------------------------------------------------------------------------
+current="SIGTERM restores the terminal"
+start 100 30 unipotent-shear.nilstep
+wait_for "Invariants"
+shell_pid=$(tmux -L "$sock" display-message -p -t nilstep '#{pane_pid}')
+prog_pid=$(child_of "$shell_pid")
+if [[ -n "$prog_pid" ]]; then
+    kill -TERM "$prog_pid"
+    wait_for "EXIT=143"
+    # back from the explorer's screen to the shell's
+    wait_gone "Invariants"
+else
+    fail "could not find the program's process"
+fi
 
 # ---------------------------------------------------------------------------
 current="no colour at all under NO_COLOR"

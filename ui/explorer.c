@@ -405,7 +405,7 @@ static void explorer_apply_map(explorer_app *app)
     if (st != NS_OK) {
         analysis_clear_map(app->A);
         snprintf(app->group_problem, sizeof app->group_problem, "map not analysed: %s", err->msg);
-        app_status(app, 1, "map not analysed: %s", err->msg);
+        app_status(app, err->status != NS_ERR_CANCELLED, "map not analysed: %s", err->msg);
     } else {
         app->group_problem[0] = '\0';
     }
@@ -461,8 +461,9 @@ static void explorer_do_group(explorer_app *app)
     }
     analysis_struct *B = explorer_compute_group(app, G, cls, err);
     if (B == NULL) {
-        app_status(app, 1, "class %ld not computed (%s); kept class %ld", (long)cls, err->msg,
-                   (long)app->cls);
+        /* a cancel is the user's choice, not an error */
+        app_status(app, err->status != NS_ERR_CANCELLED, "class %ld not computed (%s); kept class %ld",
+                   (long)cls, err->msg, (long)app->cls);
         goto done;
     }
     int changed = strcmp(text, app->group_text) != 0 || cls != app->cls;
@@ -516,7 +517,7 @@ static void explorer_do_open(explorer_app *app)
     }
     analysis_struct *B = explorer_compute_group(app, p.pres, p.cls, err);
     if (B == NULL) {
-        app_status(app, 1, "%s not opened: %s", path, err->msg);
+        app_status(app, err->status != NS_ERR_CANCELLED, "%s not opened: %s", path, err->msg);
         goto done;
     }
     session_swap(app->doc, app->pending_doc);
