@@ -226,7 +226,7 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
     paint_textf(y + 1, 8, COLS - 8, ROLE_DIM, "%s", A->growth_reason ? A->growth_reason : "");
 
     paint_text(y + 2, 0, COLS, ROLE_HEADING, "Invariants");
-    char ent[64] = "-", lg[64] = "-";
+    char ent[64] = "not defined", lg[64] = "-";
     if (A->entropy_str)
         numfmt_decimal(ent, sizeof ent, A->entropy_str, SIG_DIGITS);
     if (A->log_growth_str)
