@@ -93,8 +93,6 @@ void analysis_clear_map(analysis_t A)
     fmpz_zero(A->reidemeister);
     fmpz_zero(A->image_index);
     A->automorphism = A->injective = A->hyperbolic = A->expanding = 0;
-    free_strs(A->inverse_str, A->inverse_str ? X : 0);
-    A->inverse_str = NULL;
     endo_clear(A->endo);
     for (slong j = 0; j < A->nlayers; j++)
         layer_map_clear(A->layers + j);
@@ -448,19 +446,6 @@ ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_pro
             fmpz_zero(A->image_index);
     }
     arb_clear(t);
-    if (A->automorphism && A->layers_torsion_free) {
-        endo_t I;
-        endo_init(I);
-        nserr_t e3;
-        nserr_init(e3);
-        if (endo_inverse(I, A->endo, Q, progress, e3) == NS_OK) {
-            A->inverse_str = malloc(FLINT_MAX(X, 1) * sizeof(char *));
-            for (slong x = 0; x < X; x++)
-                A->inverse_str[x] = own(nq_elt_get_str(Q, I->gen_img + x * n));
-        }
-        nserr_clear(e3);
-        endo_clear(I);
-    }
     return NS_OK;
 }
 
@@ -527,6 +512,27 @@ ns_status analysis_compose_map_str(char **out, const analysis_t A, const expr_st
         *out = map_text_of(A->nq, C->gen_img);
     endo_clear(B);
     endo_clear(C);
+    return st;
+}
+
+ns_status analysis_inverse_images(char ***out, const analysis_t A,
+                                  const ns_progress_t *progress, nserr_t err)
+{
+    ns_status st = need_valid(A, err);
+    if (st != NS_OK)
+        return st;
+    if (!A->automorphism)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "the map is not an automorphism");
+    endo_t I;
+    endo_init(I);
+    st = endo_inverse(I, A->endo, A->nq, progress, err);
+    if (st == NS_OK) {
+        slong X = A->nq->pres->gens->n, n = A->nq->pcp->n;
+        *out = malloc(FLINT_MAX(X, 1) * sizeof(char *));
+        for (slong x = 0; x < X; x++)
+            (*out)[x] = own(nq_elt_get_str(A->nq, I->gen_img + x * n));
+    }
+    endo_clear(I);
     return st;
 }
 

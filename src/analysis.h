@@ -101,9 +101,6 @@ typedef struct {
     int injective;               /* det M_j != 0 for all j (torsion-free case) */
     int index_defined;
     fmpz_t image_index;          /* prod |det M_j| when injective */
-    char **inverse_str;          /* for an automorphism of a quotient with
-                                    torsion-free layers: the images of the
-                                    inverse map as normal words; else NULL */
     int hyperbolic;              /* no |lambda| = 1 in any layer */
     int expanding;               /* all |lambda| > 1 in every layer */
 } analysis_struct;
@@ -143,5 +140,10 @@ ns_status analysis_compose_map_str(char **out, const analysis_t A, const expr_st
                                    const ns_progress_t *progress, nserr_t err);
 ns_status analysis_inverse_map_str(char **out, const analysis_t A,
                                    const ns_progress_t *progress, nserr_t err);
+/* The same inverse as one normal word per input generator: *out is set to
+ * an array of nq->pres->gens.n strings; free each and the array with
+ * free(). */
+ns_status analysis_inverse_images(char ***out, const analysis_t A,
+                                  const ns_progress_t *progress, nserr_t err);
 
 #endif

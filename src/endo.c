@@ -16,8 +16,100 @@ void endo_clear(endo_t E)
         _fmpz_vec_clear(E->fail_val, FLINT_MAX(E->nfail * n, 1));
     if (E->pc_img)
         _fmpz_vec_clear(E->pc_img, FLINT_MAX(n * n, 1));
+    for (slong j = 0; j < E->nlayers; j++)
+        fmpz_mat_clear(E->act + j);
+    flint_free(E->act);
     flint_free(E->fail_rel);
     endo_init(E);
+}
+
+/* The layer-j coordinates (cnt entries, added with factor f) of [a_p, a_q]
+ * for p of weight j-1 and q of weight 1, from the conjugate relation
+ * a_p^(a_q) = a_p [a_p, a_q]. */
+static void comm_coords_addmul(fmpz *v, const nq_t Q, const nq_layer_struct *L, slong p,
+                               slong q, const fmpz_t f)
+{
+    const pcp_struct *P = Q->pcp;
+    if (p == q)
+        return;
+    fmpz_t g;
+    fmpz_init_set(g, f);
+    if (p < q) {
+        slong t = p;
+        p = q;
+        q = t;
+        fmpz_neg(g, g);
+    }
+    if (p < P->ncore && !P->trivial[pcp_slot(p, q)]) {
+        const pcw_struct *w = P->conj + pcp_slot(p, q);
+        for (slong t = 0; t < w->len; t++) {
+            slong k = w->gen[t];
+            if (k >= L->start && k < L->start + L->count)
+                fmpz_addmul(v + k - L->start, g, w->exp + t);
+        }
+    }
+    fmpz_clear(g);
+}
+
+/* The actions on the layers, layer 1 from the generator images and layer j
+ * from layers j-1 and 1 by bilinearity of the commutator. */
+static void layer_actions(endo_t E, const nq_t Q)
+{
+    slong n = Q->pcp->n, c = Q->class_reached;
+    E->nlayers = c;
+    E->act = flint_malloc(FLINT_MAX(c, 1) * sizeof(fmpz_mat_struct));
+    fmpz_t f;
+    fmpz_init(f);
+    for (slong j = 0; j < c; j++) {
+        const nq_layer_struct *L = Q->layers + j;
+        fmpz_mat_init(E->act + j, L->count, L->count);
+        fmpz *col = _fmpz_vec_init(FLINT_MAX(L->count, 1));
+        for (slong k = 0; k < L->count; k++) {
+            const pcp_def_struct *d = Q->pcp->def + L->start + k;
+            _fmpz_vec_zero(col, L->count);
+            if (j == 0) {
+                _fmpz_vec_set(col, E->gen_img + d->a * n + L->start, L->count);
+            } else {
+                const nq_layer_struct *L0 = Q->layers + j - 1, *L1 = Q->layers;
+                const fmpz_mat_struct *A0 = E->act + j - 1, *A1 = E->act;
+                slong ca = d->a - L0->start, cb = d->b - L1->start;
+                for (slong p = 0; p < L0->count; p++) {
+                    if (fmpz_is_zero(fmpz_mat_entry(A0, p, ca)))
+                        continue;
+                    for (slong q = 0; q < L1->count; q++) {
+                        fmpz_mul(f, fmpz_mat_entry(A0, p, ca), fmpz_mat_entry(A1, q, cb));
+                        if (!fmpz_is_zero(f))
+                            comm_coords_addmul(col, Q, L, L0->start + p, L1->start + q, f);
+                    }
+                }
+            }
+            for (slong i = 0; i < L->count; i++)
+                fmpz_swap(fmpz_mat_entry(E->act + j, i, k), col + i);
+        }
+        _fmpz_vec_clear(col, FLINT_MAX(L->count, 1));
+    }
+    fmpz_clear(f);
+}
+
+int endo_ensure_pc_images(const endo_t E, const nq_t Q, pcp_work_t W)
+{
+    if (E->pc_img || !E->valid)
+        return W->overflow;
+    slong n = Q->pcp->n;
+    fmpz *img = _fmpz_vec_init(FLINT_MAX(n * n, 1));
+    for (slong k = 0; k < n && !W->overflow; k++) {
+        const pcp_def_struct *d = Q->pcp->def + k;
+        if (d->kind == PCP_DEF_IMAGE)
+            _fmpz_vec_set(img + k * n, E->gen_img + d->a * n, n);
+        else
+            pcp_elt_comm(W, img + k * n, img + d->a * n, img + d->b * n);
+    }
+    if (W->overflow) {
+        _fmpz_vec_clear(img, FLINT_MAX(n * n, 1));
+        return 1;
+    }
+    ((endo_struct *)E)->pc_img = img; /* the cache of a logically const E */
+    return 0;
 }
 
 static ns_status finish(endo_t E, const nq_t Q, pcp_work_t W, nserr_t err)
@@ -40,16 +132,8 @@ static ns_status finish(endo_t E, const nq_t Q, pcp_work_t W, nserr_t err)
         E->fail_val = nv;
         E->fail_rel[E->nfail++] = r;
     }
-    if (E->valid && !W->overflow) {
-        E->pc_img = _fmpz_vec_init(FLINT_MAX(n * n, 1));
-        for (slong k = 0; k < n && !W->overflow; k++) {
-            const pcp_def_struct *d = Q->pcp->def + k;
-            if (d->kind == PCP_DEF_IMAGE)
-                _fmpz_vec_set(E->pc_img + k * n, E->gen_img + d->a * n, n);
-            else
-                pcp_elt_comm(W, E->pc_img + k * n, E->pc_img + d->a * n, E->pc_img + d->b * n);
-        }
-    }
+    if (E->valid && !W->overflow)
+        layer_actions(E, Q);
     _fmpz_vec_clear(val, FLINT_MAX(n, 1));
     (void)X;
     if (W->overflow)
@@ -99,6 +183,8 @@ ns_status endo_set_elts(endo_t E, const nq_t Q, const fmpz *gen_img,
 void endo_apply(const endo_t E, const nq_t Q, fmpz *out, const fmpz *g, pcp_work_t W)
 {
     slong n = Q->pcp->n;
+    if (endo_ensure_pc_images(E, Q, W))
+        return;
     fmpz *acc = _fmpz_vec_init(FLINT_MAX(n, 1));
     fmpz *t = _fmpz_vec_init(FLINT_MAX(n, 1));
     for (slong k = 0; k < n && !W->overflow; k++) {
@@ -172,12 +258,11 @@ ns_status endo_pow(endo_t out, const endo_t a, ulong k, const nq_t Q,
 
 void endo_layer_matrices(fmpz_mat_t A, fmpz_mat_t M, const endo_t E, const layer_t L)
 {
-    slong n = E->n, s = L->start, cnt = L->count, r = L->free_rank;
+    slong cnt = L->count, r = L->free_rank;
     fmpz_mat_clear(A);
     fmpz_mat_init(A, cnt, cnt);
-    for (slong k = 0; k < cnt; k++)
-        for (slong i = 0; i < cnt; i++)
-            fmpz_set(fmpz_mat_entry(A, i, k), E->pc_img + (s + k) * n + s + i);
+    if (L->weight >= 1 && L->weight <= E->nlayers)
+        fmpz_mat_set(A, E->act + L->weight - 1);
     fmpz_mat_t T;
     fmpz_mat_init(T, r, cnt);
     fmpz_mat_clear(M);

@@ -20,7 +20,11 @@ typedef struct {
     slong nfail;
     slong *fail_rel; /* indices of relators whose image is not trivial */
     fmpz *fail_val;  /* nfail x n: those images */
-    fmpz *pc_img;    /* n x n: alpha(a_k) (valid maps only) */
+    fmpz *pc_img;    /* n x n: alpha(a_k), computed on first use (valid maps
+                        only); NULL until then */
+    slong nlayers;
+    fmpz_mat_struct *act; /* nlayers: the action on each layer's pc
+                             generators (valid maps only) */
 } endo_struct;
 typedef endo_struct endo_t[1];
 
@@ -35,6 +39,10 @@ ns_status endo_set(endo_t E, const nq_t Q, const expr_struct *images,
  * used for compositions and powers. */
 ns_status endo_set_elts(endo_t E, const nq_t Q, const fmpz *gen_img,
                         const ns_progress_t *progress, nserr_t err);
+
+/* Computes the images of all pc generators if they are not there yet (a
+ * cache: E is logically unchanged).  Returns 1 when W's budget ran out. */
+int endo_ensure_pc_images(const endo_t E, const nq_t Q, pcp_work_t W);
 
 /* out := alpha(g) for a valid map (out may alias g). */
 void endo_apply(const endo_t E, const nq_t Q, fmpz *out, const fmpz *g, pcp_work_t W);

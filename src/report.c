@@ -40,6 +40,32 @@ static char *presentation(const analysis_t A)
     return s;
 }
 
+/* The images of the inverse of an automorphism of a quotient with
+ * torsion-free layers, or NULL.  Computed here, not in the analysis,
+ * because it collects the images of every pc generator: too slow to redo at
+ * every keystroke of the explorer. */
+static char **inverse_images(const analysis_t A)
+{
+    if (!A->has_map || !A->valid || !A->automorphism || !A->layers_torsion_free)
+        return NULL;
+    char **v = NULL;
+    nserr_t err;
+    nserr_init(err);
+    if (analysis_inverse_images(&v, A, NULL, err) != NS_OK)
+        v = NULL;
+    nserr_clear(err);
+    return v;
+}
+
+static void free_images(const analysis_t A, char **v)
+{
+    if (!v)
+        return;
+    for (slong x = 0; x < A->nq->pres->gens->n; x++)
+        free(v[x]);
+    free(v);
+}
+
 /* ------------------------------------------------------------------ text */
 
 static void text_matrix(sbuf_t b, const fmpz_mat_t M, const char *indent)
@@ -161,13 +187,14 @@ static void report_text(sbuf_t b, const analysis_t A, const char *title)
     }
     sbuf_printf(b, "hyperbolic    %s\n", yes_no(A->hyperbolic));
     sbuf_printf(b, "expanding     %s\n", yes_no(A->expanding));
-    if (A->inverse_str) {
+    char **inv = inverse_images(A);
+    if (inv) {
         sbuf_puts(b, "inverse       ");
         for (slong x = 0; x < Q->pres->gens->n; x++)
-            sbuf_printf(b, "%s%s -> %s", x ? ", " : "", Q->pres->gens->name[x],
-                        A->inverse_str[x]);
+            sbuf_printf(b, "%s%s -> %s", x ? ", " : "", Q->pres->gens->name[x], inv[x]);
         sbuf_puts(b, "\n");
     }
+    free_images(A, inv);
 }
 
 /* ------------------------------------------------------------------ JSON */
@@ -332,18 +359,20 @@ static void report_json(sbuf_t b, const analysis_t A, const char *title)
                     A->hyperbolic ? "true" : "false", A->expanding ? "true" : "false");
         json_fmpz_or_null(b, A->index_defined, A->image_index);
         sbuf_puts(b, ",\n   \"inverse\": ");
-        if (A->inverse_str) {
+        char **inv = inverse_images(A);
+        if (inv) {
             sbuf_puts(b, "{");
             for (slong x = 0; x < Q->pres->gens->n; x++) {
                 if (x)
                     sbuf_puts(b, ", ");
                 sbuf_put_json_str(b, Q->pres->gens->name[x]);
                 sbuf_puts(b, ": ");
-                sbuf_put_json_str(b, A->inverse_str[x]);
+                sbuf_put_json_str(b, inv[x]);
             }
             sbuf_puts(b, "}");
         } else
             sbuf_puts(b, "null");
+        free_images(A, inv);
     }
     sbuf_puts(b, "}}\n");
 }
