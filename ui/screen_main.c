@@ -43,7 +43,10 @@ static int map_valid(const analysis_struct *A)
 /* Rows given to the images and to the table. */
 static void main_layout(const explorer_app *app, int *img_y, int *ni, int *tab_y, int *nt)
 {
-    int budget = (LINES - 2 - BOTTOM_ROWS) - 4 - 3; /* minus headings and a blank */
+    /* rows 0-4: header, group (2), blank, images heading; then the images,
+     * a blank, the table's two heading rows, its rows; the bottom block
+     * and the two bottom lines take the rest */
+    int budget = LINES - 2 - BOTTOM_ROWS - 8;
     int ngens = (int)app->vm->ngens, nl = (int)app->vm->nlayers;
     if (nl < 1)
         nl = 1;
