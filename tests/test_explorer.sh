@@ -266,6 +266,21 @@ keys q
 wait_for "EXIT=0"
 
 # ---------------------------------------------------------------------------
+current="a long table scrolls to its selection at 80x24"
+start 80 24 unipotent-shear.nilstep
+wait_for "class 3   Hirsch length 5"
+keys + + + + +
+wait_for "class 8   Hirsch length" 60
+keys G
+wait_for "rows 3-8 of 8"
+screen | grep -qE '^> +8 ' || fail "the selected last layer is not visible"
+keys g
+wait_for "rows 1-6 of 8"
+screen | grep -qE '^> +1 ' || fail "the selected first layer is not visible"
+keys q y
+wait_for "EXIT=0"
+
+# ---------------------------------------------------------------------------
 current="Esc cancels a long computation"
 cat >"$tmp/long.nilstep" <<'END'
 nilstep session 1
