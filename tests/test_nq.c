@@ -655,6 +655,38 @@ static void hidden_torsion_example(void **state)
     nq_clear(Q);
 }
 
+/* Layer torsion that does not lift (derived by hand): in
+ * <x, y, z | [y,x] = z^2, [z,x], [z,y]> the exponent sums give layer 1
+ * = Z^2 + Z/2 (z is a commutator's square root: 2z = 0), yet z has infinite
+ * order.  Proof: x -> I + E12, y -> I + E23, z -> I - E13/2 (3 x 3 upper
+ * unitriangular matrices over Z[1/2]) satisfies the relations, as
+ * [I + E23, I + E12] = I - E13, and z maps to an element of infinite order.
+ * Layer 2 = <[y,x]> = <z^2> = Z, and the group has class 2. */
+static void layer_torsion_need_not_lift(void **state)
+{
+    (void)state;
+    static const slong two[] = {2};
+    nq_t Q;
+    nq_init(Q);
+    compute(Q, "<x, y, z | [y,x] = z^2, [z,x], [z,y]>", 4);
+    check_shape(Q);
+    assert_int_equal(Q->class_reached, 2);
+    assert_int_equal(Q->stabilised, 1);
+    check_layer(Q, 1, 2, 1, two);
+    check_layer(Q, 2, 1, 0, NULL);
+    slong n = Q->pcp->n;
+    fmpz *u = _fmpz_vec_init(n), *v = _fmpz_vec_init(n);
+    eval_word(Q, u, "z^2");
+    eval_word(Q, v, "[y,x]");
+    assert_true(_fmpz_vec_equal(u, v, n));
+    assert_false(is_identity(u, n));
+    eval_word(Q, u, "z^1000000");
+    assert_false(is_identity(u, n));
+    _fmpz_vec_clear(u, n);
+    _fmpz_vec_clear(v, n);
+    nq_clear(Q);
+}
+
 /* ------------------------------------------------- perfect groups */
 
 /* [CM] The binary icosahedral group <s, t | (s t)^2 = s^3 = t^5> is perfect:
@@ -922,6 +954,7 @@ int main(void)
         cmocka_unit_test(heisenberg_mod3),
         cmocka_unit_test(unitriangular4),
         cmocka_unit_test(hidden_torsion_example),
+        cmocka_unit_test(layer_torsion_need_not_lift),
         cmocka_unit_test(binary_icosahedral_is_perfect),
         cmocka_unit_test(triangle_presentation_with_cyclic_abelianisation),
         cmocka_unit_test(labels_free_nilpotent_2_3),
