@@ -109,6 +109,7 @@ struct explorer_app_struct {
 
     /* scrolling */
     int detail_scroll;
+    int detail_hscroll;     /* code points cut from the left of each line */
     int help_scroll;
     int table_top;          /* first layer row shown */
     int image_top;          /* first image row shown */

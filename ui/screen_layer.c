@@ -197,7 +197,8 @@ void screen_layer_draw(explorer_app *app)
         app->detail_scroll = 0;
     for (int r = 0; r < rows && app->detail_scroll + r < t.n; r++) {
         const detail_line *l = &t.v[app->detail_scroll + r];
-        paint_text(1 + r, 1, COLS - 1, l->role, l->text);
+        const char *text = l->text + lineedit_utf8_offset(l->text, (size_t)app->detail_hscroll);
+        paint_text(1 + r, 1, COLS - 1, l->role, text);
     }
     if (t.n > rows)
         paint_textf(LINES - 2, COLS - 24, 24, ROLE_DIM, "lines %d-%d of %d", app->detail_scroll + 1,
@@ -240,15 +241,30 @@ static int act_page_down(explorer_app *app)
     return ACT_REDRAW;
 }
 
+static int act_scroll_left(explorer_app *app)
+{
+    app->detail_hscroll -= COLS / 2;
+    if (app->detail_hscroll < 0)
+        app->detail_hscroll = 0;
+    return ACT_REDRAW;
+}
+
+static int act_scroll_right(explorer_app *app)
+{
+    if (app->detail_hscroll < 100000)
+        app->detail_hscroll += COLS / 2;
+    return ACT_REDRAW;
+}
+
 static int act_prev_layer(explorer_app *app)
 {
-    app->detail_scroll = 0;
+    app->detail_scroll = app->detail_hscroll = 0;
     return viewmodel_move_layer(app->vm, -1) ? ACT_REDRAW : ACT_NONE;
 }
 
 static int act_next_layer(explorer_app *app)
 {
-    app->detail_scroll = 0;
+    app->detail_scroll = app->detail_hscroll = 0;
     return viewmodel_move_layer(app->vm, 1) ? ACT_REDRAW : ACT_NONE;
 }
 
@@ -276,6 +292,8 @@ static const ui_binding layer_bindings[] = {
     { 'b', act_page_up, NULL, NULL, NULL },
     { UIKEY_FN(KEY_NPAGE), act_page_down, "PgDn / Space", "scroll down one page", NULL },
     { ' ', act_page_down, NULL, NULL, NULL },
+    { '<', act_scroll_left, "< / >", "scroll wide lines (big matrices) left / right", "</> wide" },
+    { '>', act_scroll_right, NULL, NULL, NULL },
     { '?', act_help, "?", "this help", "? help" },
 };
 

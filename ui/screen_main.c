@@ -355,7 +355,7 @@ static int act_detail(explorer_app *app)
         return ACT_REDRAW;
     }
     app->screen = SCREEN_LAYER;
-    app->detail_scroll = 0;
+    app->detail_scroll = app->detail_hscroll = 0;
     return ACT_REDRAW;
 }
 
