@@ -318,6 +318,8 @@ static void report_json(sbuf_t b, const analysis_t A, const char *title)
         put_fmpz(b, L->det);
         sbuf_puts(b, ", \"det_one_minus\": ");
         put_fmpz(b, L->det_i_minus);
+        sbuf_puts(b, ", \"action\": ");
+        json_matrix(b, L->action);
         sbuf_printf(b, ", \"unimodular_eigenvalues\": %ld, \"eigenvalues\": [",
                     (long)L->n_unimodular);
         for (slong k = 0; k < L->nev; k++) {
