@@ -257,12 +257,26 @@ keys Enter
 wait_for "saved $tmp/other.nilstep"
 [[ -f "$tmp/other.nilstep" ]] || fail "save as wrote nothing"
 
-current="open a missing file"
+current="open a missing file, then another scenario"
 keys o C-u
 type_text "$tmp/missing.nilstep"
 keys Enter
 wait_for "error:"
-keys q
+keys o C-u
+type_text "$tmp/torsion-layers.nilstep"
+keys Enter
+wait_for "opened $tmp/torsion-layers.nilstep"
+wait_for "Z/6 + Z/6"
+wait_for "Lefschetz, Nielsen, Reidemeister: not defined"
+keys e C-u
+type_text "b"
+keys Enter
+wait_for "[modified]"
+keys o
+wait_for "unsaved changes"
+keys n
+wait_for "still here"
+keys q y
 wait_for "EXIT=0"
 
 # ---------------------------------------------------------------------------

@@ -107,13 +107,19 @@ static void explorer_term_stop(void)
 void app_draw_header(explorer_app *app, const char *where)
 {
     paint_fill(0, 0, COLS, ROLE_BAR);
-    char right[600];
+    /* The file name gives way from the left; "[modified]" always shows. */
     const char *file = app->path ? app->path : defaults_session_name();
-    snprintf(right, sizeof right, "%s%s ", file, app->vm->dirty ? " [modified]" : "");
-    int rw = (int)strlen(right) > COLS / 2 ? COLS / 2 : (int)strlen(right);
-    int lw = paint_textf(0, 0, COLS - rw - 1, ROLE_BAR, " nilstep %s %s", app->utf8 ? "\xE2\x80\xA2" : "|",
-                         where);
-    (void)lw;
+    const char *mod = app->vm->dirty ? " [modified] " : " ";
+    int room = COLS / 2 - (int)strlen(mod);
+    int flen = (int)lineedit_utf8_ncols(file);
+    char right[700];
+    if (flen > room)
+        snprintf(right, sizeof right, "%s%s%s", app->utf8 ? "\xE2\x80\xA6" : "~",
+                 file + lineedit_utf8_offset(file, (size_t)(flen - room + 1)), mod);
+    else
+        snprintf(right, sizeof right, "%s%s", file, mod);
+    int rw = (int)lineedit_utf8_ncols(right);
+    paint_textf(0, 0, COLS - rw - 1, ROLE_BAR, " nilstep %s %s", app->utf8 ? "\xE2\x80\xA2" : "|", where);
     paint_text(0, COLS - rw, rw, ROLE_BAR, right);
 }
 
@@ -438,6 +444,11 @@ static void explorer_adopt_parts(explorer_app *app, explorer_parts *p, analysis_
     viewmodel_set_generators(app->vm, p->ngens, (const char *const *)p->names,
                              (const char *const *)p->images);
     viewmodel_mark_saved(app->vm);
+    /* a new document starts at its first image and layer (the session's
+     * cursor, read afterwards, may say otherwise) */
+    app->vm->sel_image = 0;
+    app->vm->sel_layer = 0;
+    app->image_top = 0;
     app->group_edited = app->map_edited = app->title_edited = 0;
     explorer_adopt_analysis(app, A);
     app->screen = SCREEN_MAIN;
@@ -528,7 +539,7 @@ static void explorer_do_open(explorer_app *app)
     path = NULL;
     app->group_problem[0] = '\0';
     explorer_apply_map(app);
-    if (!app->status_error || app->status[0] == '\0')
+    if (app->group_problem[0] == '\0') /* else apply_map said what went wrong */
         app_status(app, 0, "opened %s", app->path);
 done:
     session_clear(app->pending_doc);

@@ -129,11 +129,11 @@ void prompt_check(explorer_app *app)
         break;
     case PROMPT_SAVE_AS:
     case PROMPT_OPEN:
-        app->edit_ok = text[0] != '\0';
+        /* an empty name is not an error yet, only not ready: Enter beeps */
         snprintf(app->edit_msg, sizeof app->edit_msg, "%s",
-                 app->edit_ok ? (app->prompt == PROMPT_OPEN ? "Enter opens this file, Esc cancels"
-                                                            : "Enter saves there, Esc cancels")
-                              : "type a file name");
+                 text[0] == '\0' ? "type a file name"
+                 : app->prompt == PROMPT_OPEN ? "Enter opens this file, Esc cancels"
+                                              : "Enter saves there, Esc cancels");
         break;
     default:
         break;
@@ -263,7 +263,7 @@ static int act_apply(explorer_app *app)
 {
     const char *text = lineedit_get_text(app->edit);
     prompt_check(app);
-    if (!app->edit_ok) {
+    if (!app->edit_ok || ((app->prompt == PROMPT_OPEN || app->prompt == PROMPT_SAVE_AS) && text[0] == '\0')) {
         beep();
         return ACT_REDRAW;
     }
