@@ -234,8 +234,12 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
         numfmt_decimal(ent, sizeof ent, A->entropy_str, SIG_DIGITS);
     if (A->log_growth_str)
         numfmt_decimal(lg, sizeof lg, A->log_growth_str, SIG_DIGITS);
-    paint_textf(y + 3, 2, COLS - 2, ROLE_NORMAL, "entropy %s   log growth rate %s (%s entropy of any map inducing it)", ent, lg,
-                sym(app, "\xE2\x89\xA4", "<="));
+    if (A->log_growth_str)
+        paint_textf(y + 3, 2, COLS - 2, ROLE_NORMAL,
+                    "entropy %s   log growth rate %s (%s entropy of any map inducing it)", ent, lg,
+                    sym(app, "\xE2\x89\xA4", "<="));
+    else
+        paint_textf(y + 3, 2, COLS - 2, ROLE_NORMAL, "entropy %s   (growth rate 0: no logarithm)", ent);
     if (A->lefschetz_defined) {
         char *l = fmpz_get_str(NULL, 10, A->lefschetz);
         char *n = fmpz_get_str(NULL, 10, A->nielsen);
