@@ -145,7 +145,11 @@ static void set_text_should_replace_invalid_utf8(void **state)
     lineedit_init(e);
     /* a lone continuation byte, a truncated sequence, an overlong '/',
      * an encoded surrogate, a tab */
-    lineedit_set_text(e, "a\x80" "b\xE2\x86" "c\xC0\xAF" "d\xED\xA0\x80" "e\tf");
+    lineedit_set_text(e, "a\x80"
+                         "b\xE2\x86"
+                         "c\xC0\xAF"
+                         "d\xED\xA0\x80"
+                         "e\tf");
     const char *t = lineedit_get_text(e);
     assert_null(strchr(t, '\t'));
     for (const unsigned char *p = (const unsigned char *)t; *p; p++)
@@ -179,7 +183,8 @@ static void long_text_should_grow_the_buffer(void **state)
 static void utf8_helpers_should_count_code_points(void **state)
 {
     (void)state;
-    const char *s = "a\xCE\xB1" "b";
+    const char *s = "a\xCE\xB1"
+                    "b";
     assert_int_equal(lineedit_utf8_ncols(s), 3);
     assert_int_equal(lineedit_utf8_offset(s, 0), 0);
     assert_int_equal(lineedit_utf8_offset(s, 1), 1);

@@ -11,12 +11,12 @@
 #include "../ui/lineedit.c"
 #include "../ui/viewmodel.c"
 
-static const char *const abc[] = { "a", "b", "c" };
+static const char *const abc[] = {"a", "b", "c"};
 
 static void setup3(viewmodel_t vm)
 {
     viewmodel_init(vm);
-    const char *images[] = { "a^2", NULL, "[a,b]" };
+    const char *images[] = {"a^2", NULL, "[a,b]"};
     viewmodel_set_generators(vm, 3, abc, images);
     viewmodel_set_nlayers(vm, 4);
 }
@@ -128,7 +128,7 @@ static void new_generators_should_drop_the_history(void **state)
     viewmodel_select_image(vm, 2);
     viewmodel_set_image(vm, 2, "c b");
     assert_int_equal(viewmodel_same_generators(vm, 3, abc), 1);
-    const char *const xy[] = { "x", "y" };
+    const char *const xy[] = {"x", "y"};
     assert_int_equal(viewmodel_same_generators(vm, 2, xy), 0);
     viewmodel_set_generators(vm, 2, xy, NULL);
     assert_int_equal(vm->sel_image, 1);

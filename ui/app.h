@@ -26,11 +26,11 @@
 /* What an action asks of the main loop. */
 enum {
     ACT_NONE = 0,
-    ACT_REDRAW = 1,   /* the frame must be painted again */
-    ACT_MAP = 2,      /* the images changed: analyse the map again */
-    ACT_GROUP = 4,    /* app->pending_group / pending_cls: recompute the quotient */
-    ACT_OPEN = 8,     /* app->pending_doc: open it (recomputes everything) */
-    ACT_SAVE = 16,    /* write the session to app->path */
+    ACT_REDRAW = 1, /* the frame must be painted again */
+    ACT_MAP = 2,    /* the images changed: analyse the map again */
+    ACT_GROUP = 4,  /* app->pending_group / pending_cls: recompute the quotient */
+    ACT_OPEN = 8,   /* app->pending_doc: open it (recomputes everything) */
+    ACT_SAVE = 16,  /* write the session to app->path */
     ACT_QUIT = 32
 };
 
@@ -38,8 +38,8 @@ typedef enum { SCREEN_MAIN, SCREEN_LAYER, SCREEN_HELP } screen_id;
 
 typedef enum {
     PROMPT_NONE,
-    PROMPT_IMAGE,        /* editing the image of generator edit_index */
-    PROMPT_GROUP,        /* editing the presentation */
+    PROMPT_IMAGE, /* editing the image of generator edit_index */
+    PROMPT_GROUP, /* editing the presentation */
     PROMPT_TITLE,
     PROMPT_SAVE_AS,      /* a path to save to */
     PROMPT_OPEN,         /* a path to open */
@@ -49,9 +49,9 @@ typedef enum {
 
 /* Keys: a Unicode character is its code point; a curses function key
  * (KEY_UP, KEY_RESIZE ...) is UIKEY_FN(code), above every code point. */
-#define UIKEY_FN(k) (0x200000 | (k))
-#define UIKEY_ESC 27
-#define UIKEY_CTRL(c) ((c) & 0x1f)
+#define UIKEY_FN(k)   (0x200000 | (k))
+#define UIKEY_ESC     27
+#define UIKEY_CTRL(c) ((c)&0x1f)
 
 typedef struct explorer_app_struct explorer_app;
 
@@ -75,44 +75,44 @@ typedef struct {
 
 struct explorer_app_struct {
     /* the document */
-    session_t doc;          /* the session as loaded; keys we do not edit
-                               (notes, iterate) are saved back unchanged */
-    char *path;             /* where `s` saves; NULL for the built-in scenario */
-    char *title;            /* shown in the header; never NULL */
-    char *group_text;       /* the presentation, one line */
-    pres_t pres;            /* group_text parsed */
-    slong cls;              /* the class asked for */
-    int group_edited;       /* presentation or class changed since loading */
-    int map_edited;         /* an image changed since loading */
+    session_t doc;    /* the session as loaded; keys we do not edit
+                         (notes, iterate) are saved back unchanged */
+    char *path;       /* where `s` saves; NULL for the built-in scenario */
+    char *title;      /* shown in the header; never NULL */
+    char *group_text; /* the presentation, one line */
+    pres_t pres;      /* group_text parsed */
+    slong cls;        /* the class asked for */
+    int group_edited; /* presentation or class changed since loading */
+    int map_edited;   /* an image changed since loading */
     int title_edited;
-    analysis_struct *A;     /* the current analysis, owned; may lack a group */
-    char group_problem[600];/* why A has no group or no map, or "" */
+    analysis_struct *A;      /* the current analysis, owned; may lack a group */
+    char group_problem[600]; /* why A has no group or no map, or "" */
     viewmodel_t vm;
 
     /* requests from actions to the main loop */
-    char *pending_group;    /* owned */
+    char *pending_group; /* owned */
     slong pending_cls;
-    session_t pending_doc;  /* valid when has_pending_doc */
+    session_t pending_doc; /* valid when has_pending_doc */
     int has_pending_doc;
-    char *pending_path;     /* owned */
+    char *pending_path; /* owned */
 
     /* the state machine */
     screen_id screen;
-    screen_id help_return;  /* where Esc leaves the help */
+    screen_id help_return; /* where Esc leaves the help */
     prompt_kind prompt;
-    lineedit_t edit;        /* the prompt's text */
-    size_t edit_index;      /* PROMPT_IMAGE: which image */
-    size_t edit_scroll;     /* first code point shown */
-    char edit_msg[600];     /* parse result of the text being typed */
-    int edit_ok;            /* 1: it parses */
-    int edit_caret;         /* 1-based column of the error in the text, 0 none */
+    lineedit_t edit;    /* the prompt's text */
+    size_t edit_index;  /* PROMPT_IMAGE: which image */
+    size_t edit_scroll; /* first code point shown */
+    char edit_msg[600]; /* parse result of the text being typed */
+    int edit_ok;        /* 1: it parses */
+    int edit_caret;     /* 1-based column of the error in the text, 0 none */
 
     /* scrolling */
     int detail_scroll;
-    int detail_hscroll;     /* code points cut from the left of each line */
+    int detail_hscroll; /* code points cut from the left of each line */
     int help_scroll;
-    int table_top;          /* first layer row shown */
-    int image_top;          /* first image row shown */
+    int table_top; /* first layer row shown */
+    int image_top; /* first image row shown */
 
     /* bottom line */
     char status[700];
@@ -122,7 +122,7 @@ struct explorer_app_struct {
     int typeahead[64];
     int ntypeahead;
 
-    int utf8;               /* the terminal takes UTF-8: use ρ, ↦, … */
+    int utf8; /* the terminal takes UTF-8: use ρ, ↦, … */
     int running;
 };
 

@@ -19,7 +19,7 @@
 #include "defaults.h"
 #include "paint.h"
 
-#define EXPLORER_MIN_COLS 80
+#define EXPLORER_MIN_COLS  80
 #define EXPLORER_MIN_LINES 24
 
 /* ---- small helpers -------------------------------------------------- */
@@ -59,7 +59,7 @@ static void explorer_on_fatal_signal(int sig)
 
 static void explorer_catch_signals(void)
 {
-    static const int sigs[] = { SIGINT, SIGTERM, SIGHUP, SIGQUIT, SIGABRT };
+    static const int sigs[] = {SIGINT, SIGTERM, SIGHUP, SIGQUIT, SIGABRT};
     struct sigaction sa;
     memset(&sa, 0, sizeof sa);
     sa.sa_handler = explorer_on_fatal_signal;
@@ -119,7 +119,8 @@ void app_draw_header(explorer_app *app, const char *where)
     else
         snprintf(right, sizeof right, "%s%s", file, mod);
     int rw = (int)lineedit_utf8_ncols(right);
-    paint_textf(0, 0, COLS - rw - 1, ROLE_BAR, " nilstep %s %s", app->utf8 ? "\xE2\x80\xA2" : "|", where);
+    paint_textf(0, 0, COLS - rw - 1, ROLE_BAR, " nilstep %s %s", app->utf8 ? "\xE2\x80\xA2" : "|",
+                where);
     paint_text(0, COLS - rw, rw, ROLE_BAR, right);
 }
 
@@ -169,7 +170,8 @@ static void explorer_draw_too_small(explorer_app *app)
     paint_textf(y + 1, 0, COLS, ROLE_NORMAL, "nilstep needs at least %dx%d.", EXPLORER_MIN_COLS,
                 EXPLORER_MIN_LINES);
     paint_text(y + 2, 0, COLS, ROLE_DIM,
-               app->vm->dirty ? "Enlarge it to go on (unsaved changes)." : "Enlarge it, or q to quit.");
+               app->vm->dirty ? "Enlarge it to go on (unsaved changes)."
+                              : "Enlarge it, or q to quit.");
 }
 
 static int explorer_too_small(void)
@@ -284,7 +286,7 @@ static void explorer_progress_end(void)
 /* What a session file turns into before anything is computed. */
 typedef struct {
     pres_t pres;
-    char *group_text;  /* one line, as pres_get_str prints it */
+    char *group_text; /* one line, as pres_get_str prints it */
     slong cls;
     size_t ngens;
     char **names;
@@ -473,8 +475,9 @@ static void explorer_do_group(explorer_app *app)
     analysis_struct *B = explorer_compute_group(app, G, cls, err);
     if (B == NULL) {
         /* a cancel is the user's choice, not an error */
-        app_status(app, err->status != NS_ERR_CANCELLED, "class %ld not computed (%s); kept class %ld",
-                   (long)cls, err->msg, (long)app->cls);
+        app_status(app, err->status != NS_ERR_CANCELLED,
+                   "class %ld not computed (%s); kept class %ld", (long)cls, err->msg,
+                   (long)app->cls);
         goto done;
     }
     int changed = strcmp(text, app->group_text) != 0 || cls != app->cls;
@@ -634,7 +637,8 @@ static int explorer_read_key(explorer_app *app)
     if (app->ntypeahead > 0) {
         int key = app->typeahead[0];
         app->ntypeahead--;
-        memmove(app->typeahead, app->typeahead + 1, (size_t)app->ntypeahead * sizeof app->typeahead[0]);
+        memmove(app->typeahead, app->typeahead + 1,
+                (size_t)app->ntypeahead * sizeof app->typeahead[0]);
         return key;
     }
     wint_t ch;

@@ -15,22 +15,22 @@
 #include <stdint.h>
 
 typedef struct {
-    char *buf;   /* NUL-terminated UTF-8, owned */
-    size_t len;  /* bytes in buf, without the NUL */
-    size_t cap;  /* bytes allocated */
-    size_t cur;  /* byte offset of the cursor, on a code point boundary */
+    char *buf;  /* NUL-terminated UTF-8, owned */
+    size_t len; /* bytes in buf, without the NUL */
+    size_t cap; /* bytes allocated */
+    size_t cur; /* byte offset of the cursor, on a code point boundary */
 } lineedit_struct;
 typedef lineedit_struct lineedit_t[1];
 
 typedef enum {
-    LINEEDIT_LEFT,        /* one code point left */
-    LINEEDIT_RIGHT,       /* one code point right */
-    LINEEDIT_HOME,        /* start of the line */
-    LINEEDIT_END,         /* end of the line */
-    LINEEDIT_BACKSPACE,   /* delete the code point before the cursor */
-    LINEEDIT_DELETE,      /* delete the code point under the cursor */
-    LINEEDIT_KILL_LINE,   /* delete the whole line */
-    LINEEDIT_KILL_TO_END  /* delete from the cursor to the end */
+    LINEEDIT_LEFT,       /* one code point left */
+    LINEEDIT_RIGHT,      /* one code point right */
+    LINEEDIT_HOME,       /* start of the line */
+    LINEEDIT_END,        /* end of the line */
+    LINEEDIT_BACKSPACE,  /* delete the code point before the cursor */
+    LINEEDIT_DELETE,     /* delete the code point under the cursor */
+    LINEEDIT_KILL_LINE,  /* delete the whole line */
+    LINEEDIT_KILL_TO_END /* delete from the cursor to the end */
 } lineedit_cmd;
 
 /* Empty line, cursor at 0. */

@@ -60,8 +60,8 @@ void numfmt_decimal(char *buf, size_t n, const char *dec, int sig)
     const char *s = dec;
     if (*s == '-' || *s == '+')
         numfmt_put(buf, n, &k, *s++);
-    int used = 0;      /* significant digits written */
-    int started = 0;   /* a nonzero digit has been seen */
+    int used = 0;    /* significant digits written */
+    int started = 0; /* a nonzero digit has been seen */
     while (numfmt_is_digit(*s)) {
         if (*s != '0')
             started = 1;

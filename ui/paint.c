@@ -13,9 +13,9 @@ static int paint_ascii;
 
 /* Monochrome theme: attributes only. */
 static const int paint_mono[ROLE_COUNT] = {
-    [ROLE_NORMAL] = A_NORMAL,   [ROLE_BAR] = A_REVERSE,     [ROLE_HEADING] = A_BOLD,
-    [ROLE_SELECTED] = A_REVERSE, [ROLE_NUMBER] = A_NORMAL,   [ROLE_MARKER] = A_BOLD,
-    [ROLE_ERROR] = A_BOLD,      [ROLE_GOOD] = A_NORMAL,     [ROLE_DIM] = A_DIM,
+    [ROLE_NORMAL] = A_NORMAL,    [ROLE_BAR] = A_REVERSE,   [ROLE_HEADING] = A_BOLD,
+    [ROLE_SELECTED] = A_REVERSE, [ROLE_NUMBER] = A_NORMAL, [ROLE_MARKER] = A_BOLD,
+    [ROLE_ERROR] = A_BOLD,       [ROLE_GOOD] = A_NORMAL,   [ROLE_DIM] = A_DIM,
     [ROLE_KEY] = A_BOLD,
 };
 
@@ -25,16 +25,16 @@ static const struct {
     short fg, bg;
     int attr;
 } paint_colour[ROLE_COUNT] = {
-    [ROLE_NORMAL] = { -1, -1, A_NORMAL },
-    [ROLE_BAR] = { COLOR_WHITE, COLOR_BLUE, A_BOLD },
-    [ROLE_HEADING] = { COLOR_CYAN, -1, A_BOLD },
-    [ROLE_SELECTED] = { COLOR_BLACK, COLOR_CYAN, A_NORMAL },
-    [ROLE_NUMBER] = { COLOR_GREEN, -1, A_NORMAL },
-    [ROLE_MARKER] = { COLOR_YELLOW, -1, A_BOLD },
-    [ROLE_ERROR] = { COLOR_RED, -1, A_BOLD },
-    [ROLE_GOOD] = { COLOR_GREEN, -1, A_NORMAL },
-    [ROLE_DIM] = { -1, -1, A_DIM },
-    [ROLE_KEY] = { COLOR_YELLOW, -1, A_BOLD },
+    [ROLE_NORMAL] = {-1, -1, A_NORMAL},
+    [ROLE_BAR] = {COLOR_WHITE, COLOR_BLUE, A_BOLD},
+    [ROLE_HEADING] = {COLOR_CYAN, -1, A_BOLD},
+    [ROLE_SELECTED] = {COLOR_BLACK, COLOR_CYAN, A_NORMAL},
+    [ROLE_NUMBER] = {COLOR_GREEN, -1, A_NORMAL},
+    [ROLE_MARKER] = {COLOR_YELLOW, -1, A_BOLD},
+    [ROLE_ERROR] = {COLOR_RED, -1, A_BOLD},
+    [ROLE_GOOD] = {COLOR_GREEN, -1, A_NORMAL},
+    [ROLE_DIM] = {-1, -1, A_DIM},
+    [ROLE_KEY] = {COLOR_YELLOW, -1, A_BOLD},
 };
 
 int paint_no_color_requested(void)

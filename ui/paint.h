@@ -11,15 +11,15 @@
 
 typedef enum {
     ROLE_NORMAL,
-    ROLE_BAR,       /* header bar */
-    ROLE_HEADING,   /* section titles */
-    ROLE_SELECTED,  /* the selected row */
-    ROLE_NUMBER,    /* computed values */
-    ROLE_MARKER,    /* bound markers and carets */
+    ROLE_BAR,      /* header bar */
+    ROLE_HEADING,  /* section titles */
+    ROLE_SELECTED, /* the selected row */
+    ROLE_NUMBER,   /* computed values */
+    ROLE_MARKER,   /* bound markers and carets */
     ROLE_ERROR,
-    ROLE_GOOD,      /* "parses", "saved" */
-    ROLE_DIM,       /* explanations, units */
-    ROLE_KEY,       /* key names in the bottom line */
+    ROLE_GOOD, /* "parses", "saved" */
+    ROLE_DIM,  /* explanations, units */
+    ROLE_KEY,  /* key names in the bottom line */
     ROLE_COUNT
 } paint_role;
 

@@ -25,8 +25,8 @@ static char *prompt_strdup(const char *s)
 
 static int prompt_is_text(prompt_kind k)
 {
-    return k == PROMPT_IMAGE || k == PROMPT_GROUP || k == PROMPT_TITLE || k == PROMPT_SAVE_AS
-           || k == PROMPT_OPEN;
+    return k == PROMPT_IMAGE || k == PROMPT_GROUP || k == PROMPT_TITLE || k == PROMPT_SAVE_AS ||
+           k == PROMPT_OPEN;
 }
 
 void prompt_open(explorer_app *app, prompt_kind kind, const char *text)
@@ -51,7 +51,8 @@ static void check_image(explorer_app *app, const char *text)
     ns_status st = pres_parse_map(im, app->pres, map, 1, 1, err);
     if (st == NS_OK) {
         app->edit_ok = 1;
-        snprintf(app->edit_msg, sizeof app->edit_msg, "parses; Enter applies it, Esc leaves it as it was");
+        snprintf(app->edit_msg, sizeof app->edit_msg,
+                 "parses; Enter applies it, Esc leaves it as it was");
     } else {
         app->edit_ok = 0;
         /* The image alone, so that positions inside the message ("opened
@@ -66,15 +67,16 @@ static void check_image(explorer_app *app, const char *text)
         int col = 0;
         if (st2 != NS_OK && alone_err->line == 1 && alone_err->col > 0) {
             app->edit_caret = alone_err->col;
-            snprintf(app->edit_msg, sizeof app->edit_msg, "column %d: %s", alone_err->col, alone_err->msg);
-        } else if (err->col > 0
-                   && viewmodel_locate_column(app->vm, app->edit_index, text, err->col, &img, &col)
-                   && img == app->edit_index) {
+            snprintf(app->edit_msg, sizeof app->edit_msg, "column %d: %s", alone_err->col,
+                     alone_err->msg);
+        } else if (err->col > 0 &&
+                   viewmodel_locate_column(app->vm, app->edit_index, text, err->col, &img, &col) &&
+                   img == app->edit_index) {
             app->edit_caret = col;
             snprintf(app->edit_msg, sizeof app->edit_msg, "column %d: %s", col, err->msg);
         } else if (err->col > 0 && img < app->vm->ngens) {
-            snprintf(app->edit_msg, sizeof app->edit_msg, "in the image of %s: %s", app->vm->names[img],
-                     err->msg);
+            snprintf(app->edit_msg, sizeof app->edit_msg, "in the image of %s: %s",
+                     app->vm->names[img], err->msg);
         } else {
             snprintf(app->edit_msg, sizeof app->edit_msg, "%s", err->msg);
         }
@@ -131,7 +133,7 @@ void prompt_check(explorer_app *app)
     case PROMPT_OPEN:
         /* an empty name is not an error yet, only not ready: Enter beeps */
         snprintf(app->edit_msg, sizeof app->edit_msg, "%s",
-                 text[0] == '\0' ? "type a file name"
+                 text[0] == '\0'              ? "type a file name"
                  : app->prompt == PROMPT_OPEN ? "Enter opens this file, Esc cancels"
                                               : "Enter saves there, Esc cancels");
         break;
@@ -243,14 +245,38 @@ static int edit_cmd(explorer_app *app, lineedit_cmd cmd)
     return ACT_REDRAW;
 }
 
-static int act_left(explorer_app *app) { return edit_cmd(app, LINEEDIT_LEFT); }
-static int act_right(explorer_app *app) { return edit_cmd(app, LINEEDIT_RIGHT); }
-static int act_home(explorer_app *app) { return edit_cmd(app, LINEEDIT_HOME); }
-static int act_end(explorer_app *app) { return edit_cmd(app, LINEEDIT_END); }
-static int act_backspace(explorer_app *app) { return edit_cmd(app, LINEEDIT_BACKSPACE); }
-static int act_delete(explorer_app *app) { return edit_cmd(app, LINEEDIT_DELETE); }
-static int act_kill(explorer_app *app) { return edit_cmd(app, LINEEDIT_KILL_LINE); }
-static int act_kill_end(explorer_app *app) { return edit_cmd(app, LINEEDIT_KILL_TO_END); }
+static int act_left(explorer_app *app)
+{
+    return edit_cmd(app, LINEEDIT_LEFT);
+}
+static int act_right(explorer_app *app)
+{
+    return edit_cmd(app, LINEEDIT_RIGHT);
+}
+static int act_home(explorer_app *app)
+{
+    return edit_cmd(app, LINEEDIT_HOME);
+}
+static int act_end(explorer_app *app)
+{
+    return edit_cmd(app, LINEEDIT_END);
+}
+static int act_backspace(explorer_app *app)
+{
+    return edit_cmd(app, LINEEDIT_BACKSPACE);
+}
+static int act_delete(explorer_app *app)
+{
+    return edit_cmd(app, LINEEDIT_DELETE);
+}
+static int act_kill(explorer_app *app)
+{
+    return edit_cmd(app, LINEEDIT_KILL_LINE);
+}
+static int act_kill_end(explorer_app *app)
+{
+    return edit_cmd(app, LINEEDIT_KILL_TO_END);
+}
 
 static int act_cancel(explorer_app *app)
 {
@@ -263,7 +289,8 @@ static int act_apply(explorer_app *app)
 {
     const char *text = lineedit_get_text(app->edit);
     prompt_check(app);
-    if (!app->edit_ok || ((app->prompt == PROMPT_OPEN || app->prompt == PROMPT_SAVE_AS) && text[0] == '\0')) {
+    if (!app->edit_ok ||
+        ((app->prompt == PROMPT_OPEN || app->prompt == PROMPT_SAVE_AS) && text[0] == '\0')) {
         beep();
         return ACT_REDRAW;
     }
@@ -320,30 +347,30 @@ static int act_apply(explorer_app *app)
 }
 
 static const ui_binding prompt_bindings[] = {
-    { '\r', act_apply, "Enter", "apply the text (only when it parses)", "Enter apply" },
-    { '\n', act_apply, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_ENTER), act_apply, NULL, NULL, NULL },
-    { UIKEY_ESC, act_cancel, "Esc", "cancel: leave everything as it was", "Esc cancel" },
-    { UIKEY_FN(KEY_LEFT), act_left, "Left / Right", "move the cursor one character", NULL },
-    { UIKEY_FN(KEY_RIGHT), act_right, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_HOME), act_home, "Home / Ctrl-A", "to the start of the line", "Home/End" },
-    { UIKEY_CTRL('a'), act_home, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_END), act_end, "End / Ctrl-E", "to the end of the line", NULL },
-    { UIKEY_CTRL('e'), act_end, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_BACKSPACE), act_backspace, "Backspace", "delete the character before the cursor",
-      NULL },
-    { 127, act_backspace, NULL, NULL, NULL },
-    { UIKEY_CTRL('h'), act_backspace, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_DC), act_delete, "Delete / Ctrl-D", "delete the character under the cursor", NULL },
-    { UIKEY_CTRL('d'), act_delete, NULL, NULL, NULL },
-    { UIKEY_CTRL('u'), act_kill, "Ctrl-U", "clear the whole line", "Ctrl-U clear" },
-    { UIKEY_CTRL('k'), act_kill_end, "Ctrl-K", "delete from the cursor to the end", NULL },
+    {'\r', act_apply, "Enter", "apply the text (only when it parses)", "Enter apply"},
+    {'\n', act_apply, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_ENTER), act_apply, NULL, NULL, NULL},
+    {UIKEY_ESC, act_cancel, "Esc", "cancel: leave everything as it was", "Esc cancel"},
+    {UIKEY_FN(KEY_LEFT), act_left, "Left / Right", "move the cursor one character", NULL},
+    {UIKEY_FN(KEY_RIGHT), act_right, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_HOME), act_home, "Home / Ctrl-A", "to the start of the line", "Home/End"},
+    {UIKEY_CTRL('a'), act_home, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_END), act_end, "End / Ctrl-E", "to the end of the line", NULL},
+    {UIKEY_CTRL('e'), act_end, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_BACKSPACE), act_backspace, "Backspace", "delete the character before the cursor",
+     NULL},
+    {127, act_backspace, NULL, NULL, NULL},
+    {UIKEY_CTRL('h'), act_backspace, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_DC), act_delete, "Delete / Ctrl-D", "delete the character under the cursor",
+     NULL},
+    {UIKEY_CTRL('d'), act_delete, NULL, NULL, NULL},
+    {UIKEY_CTRL('u'), act_kill, "Ctrl-U", "clear the whole line", "Ctrl-U clear"},
+    {UIKEY_CTRL('k'), act_kill_end, "Ctrl-K", "delete from the cursor to the end", NULL},
 };
 
-static const ui_keymap prompt_keymap = {
-    "Line editor (images, presentation, title, file names)", prompt_bindings,
-    sizeof prompt_bindings / sizeof prompt_bindings[0]
-};
+static const ui_keymap prompt_keymap = {"Line editor (images, presentation, title, file names)",
+                                        prompt_bindings,
+                                        sizeof prompt_bindings / sizeof prompt_bindings[0]};
 
 const ui_keymap *prompt_keys(void)
 {

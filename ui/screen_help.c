@@ -14,16 +14,16 @@ typedef struct {
 
 static int help_collect(help_line *out, int cap)
 {
-    const ui_keymap *maps[] = { screen_main_keys(), screen_layer_keys(), prompt_keys(),
-                                screen_help_keys() };
+    const ui_keymap *maps[] = {screen_main_keys(), screen_layer_keys(), prompt_keys(),
+                               screen_help_keys()};
     int n = 0;
-#define HELP_PUT(k, t)                                                                             \
-    do {                                                                                           \
-        if (n < cap) {                                                                             \
-            out[n].keys = (k);                                                                     \
-            out[n].text = (t);                                                                     \
-        }                                                                                          \
-        n++;                                                                                       \
+#define HELP_PUT(k, t)         \
+    do {                       \
+        if (n < cap) {         \
+            out[n].keys = (k); \
+            out[n].text = (t); \
+        }                      \
+        n++;                   \
     } while (0)
     HELP_PUT("", "nilstep shows an endomorphism of a finitely presented group on its class-c");
     HELP_PUT("", "nilpotent quotient, one layer of the lower central series per table row.");
@@ -104,22 +104,21 @@ static int act_page_down(explorer_app *app)
 }
 
 static const ui_binding help_bindings[] = {
-    { UIKEY_ESC, act_back, "Esc / q / ?", "leave the help", "Esc back" },
-    { 'q', act_back, NULL, NULL, NULL },
-    { '?', act_back, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_UP), act_up, "Up / k", "scroll up", "j/k scroll" },
-    { 'k', act_up, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_DOWN), act_down, "Down / j", "scroll down", NULL },
-    { 'j', act_down, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_PPAGE), act_page_up, "PgUp / b", "one page up", NULL },
-    { 'b', act_page_up, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_NPAGE), act_page_down, "PgDn / Space", "one page down", NULL },
-    { ' ', act_page_down, NULL, NULL, NULL },
+    {UIKEY_ESC, act_back, "Esc / q / ?", "leave the help", "Esc back"},
+    {'q', act_back, NULL, NULL, NULL},
+    {'?', act_back, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_UP), act_up, "Up / k", "scroll up", "j/k scroll"},
+    {'k', act_up, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_DOWN), act_down, "Down / j", "scroll down", NULL},
+    {'j', act_down, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_PPAGE), act_page_up, "PgUp / b", "one page up", NULL},
+    {'b', act_page_up, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_NPAGE), act_page_down, "PgDn / Space", "one page down", NULL},
+    {' ', act_page_down, NULL, NULL, NULL},
 };
 
-static const ui_keymap help_keymap = {
-    "Help", help_bindings, sizeof help_bindings / sizeof help_bindings[0]
-};
+static const ui_keymap help_keymap = {"Help", help_bindings,
+                                      sizeof help_bindings / sizeof help_bindings[0]};
 
 const ui_keymap *screen_help_keys(void)
 {

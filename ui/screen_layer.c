@@ -108,10 +108,11 @@ static void detail_build(explorer_app *app, detail_text *t)
     const char *rho = sym(app, "\xCF\x81", "rho");
     const char *gam = sym(app, "\xCE\xB3", "gamma");
 
-    detail_add(t, ROLE_HEADING, "Layer %ld = %s%ld / %s%ld  %s  %s", (long)j, gam, (long)j, gam, (long)(j + 1),
-               sym(app, "\xE2\x89\x85", "="), L->group_str ? L->group_str : "?");
-    detail_add(t, ROLE_NORMAL, "  free rank %ld, %ld torsion factor%s, %ld pc generator%s", (long)L->free_rank,
-               (long)L->ntors, L->ntors == 1 ? "" : "s", (long)L->npc, L->npc == 1 ? "" : "s");
+    detail_add(t, ROLE_HEADING, "Layer %ld = %s%ld / %s%ld  %s  %s", (long)j, gam, (long)j, gam,
+               (long)(j + 1), sym(app, "\xE2\x89\x85", "="), L->group_str ? L->group_str : "?");
+    detail_add(t, ROLE_NORMAL, "  free rank %ld, %ld torsion factor%s, %ld pc generator%s",
+               (long)L->free_rank, (long)L->ntors, L->ntors == 1 ? "" : "s", (long)L->npc,
+               L->npc == 1 ? "" : "s");
     if (L->ntors > 0 && j <= A->nq->class_reached) {
         /* the torsion is only visible on the pc generators: name them */
         const nq_layer_struct *N = A->nq->layers + j - 1;
@@ -135,22 +136,27 @@ static void detail_build(explorer_app *app, detail_text *t)
         return;
     }
     if (!A->valid) {
-        detail_add(t, ROLE_ERROR, "The images do not define an endomorphism of the class-%ld quotient,",
+        detail_add(t, ROLE_ERROR,
+                   "The images do not define an endomorphism of the class-%ld quotient,",
                    (long)app->cls);
-        detail_add(t, ROLE_ERROR, "so the map induces no matrix here (the main screen lists the failing relators).");
+        detail_add(
+            t, ROLE_ERROR,
+            "so the map induces no matrix here (the main screen lists the failing relators).");
         return;
     }
     detail_add(t, ROLE_HEADING, "Matrix M%ld (column k holds the image of e_k)", (long)j);
     detail_matrix(t, L->matrix);
     if (L->ntors > 0) {
         detail_add(t, ROLE_NORMAL, "%s", "");
-        detail_add(t, ROLE_HEADING, "Action on the layer's %ld pc generators, torsion included", (long)L->npc);
+        detail_add(t, ROLE_HEADING, "Action on the layer's %ld pc generators, torsion included",
+                   (long)L->npc);
         detail_matrix(t, L->action);
     }
     detail_add(t, ROLE_NORMAL, "%s", "");
     detail_add(t, ROLE_HEADING, "Characteristic polynomial");
     detail_add(t, ROLE_NUMBER, "  %s", L->charpoly_str ? L->charpoly_str : "-");
-    detail_add(t, ROLE_NORMAL, "  factored over Z: %s", L->charpoly_factored_str ? L->charpoly_factored_str : "-");
+    detail_add(t, ROLE_NORMAL, "  factored over Z: %s",
+               L->charpoly_factored_str ? L->charpoly_factored_str : "-");
     detail_add(t, ROLE_NORMAL, "%s", "");
     detail_add(t, ROLE_HEADING, "Spectral radius");
     detail_add(t, ROLE_NUMBER, "  %s%ld = %s%s", rho, (long)j, L->rho_str ? L->rho_str : "-",
@@ -166,8 +172,8 @@ static void detail_build(explorer_app *app, detail_text *t)
         detail_add(t, ROLE_NORMAL, "  (none)");
     const char *lam = sym(app, "\xCE\xBB", "lambda");
     for (slong k = 0; k < L->nev; k++)
-        detail_add(t, ROLE_NUMBER, "  %s%-3ld %-44s |%s%ld| = %s", lam, (long)(k + 1), L->ev_str[k], lam,
-                   (long)(k + 1), L->ev_abs_str[k]);
+        detail_add(t, ROLE_NUMBER, "  %s%-3ld %-44s |%s%ld| = %s", lam, (long)(k + 1), L->ev_str[k],
+                   lam, (long)(k + 1), L->ev_abs_str[k]);
     detail_add(t, ROLE_NORMAL, "  %ld of modulus > 1, %ld of modulus exactly 1 (decided exactly)",
                (long)L->n_above_one, (long)L->n_unimodular);
     detail_add(t, ROLE_NORMAL, "%s", "");
@@ -179,8 +185,8 @@ static void detail_build(explorer_app *app, detail_text *t)
     flint_free(d);
     flint_free(e);
     if (L->entropy_str)
-        detail_add(t, ROLE_NORMAL, "  entropy of this layer: sum of log|%s| over |%s| > 1 = %s", lam, lam,
-                   L->entropy_str);
+        detail_add(t, ROLE_NORMAL, "  entropy of this layer: sum of log|%s| over |%s| > 1 = %s",
+                   lam, lam, L->entropy_str);
 }
 
 void screen_layer_draw(explorer_app *app)
@@ -188,7 +194,7 @@ void screen_layer_draw(explorer_app *app)
     char where[96];
     snprintf(where, sizeof where, "layer %zu of %zu", app->vm->sel_layer + 1, app->vm->nlayers);
     app_draw_header(app, where);
-    detail_text t = { 0 };
+    detail_text t = {0};
     detail_build(app, &t);
     int rows = LINES - 3;
     if (app->detail_scroll > t.n - rows)
@@ -277,29 +283,28 @@ static int act_help(explorer_app *app)
 }
 
 static const ui_binding layer_bindings[] = {
-    { UIKEY_ESC, act_back, "Esc / q", "back to the main screen", "Esc back" },
-    { 'q', act_back, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_BACKSPACE), act_back, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_LEFT), act_prev_layer, "Left / h", "the previous layer", "h/l layer" },
-    { 'h', act_prev_layer, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_RIGHT), act_next_layer, "Right / l", "the next layer", NULL },
-    { 'l', act_next_layer, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_UP), act_up, "Up / k", "scroll up one line", "j/k scroll" },
-    { 'k', act_up, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_DOWN), act_down, "Down / j", "scroll down one line", NULL },
-    { 'j', act_down, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_PPAGE), act_page_up, "PgUp / b", "scroll up one page", NULL },
-    { 'b', act_page_up, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_NPAGE), act_page_down, "PgDn / Space", "scroll down one page", NULL },
-    { ' ', act_page_down, NULL, NULL, NULL },
-    { '<', act_scroll_left, "< / >", "scroll wide lines (big matrices) left / right", "</> wide" },
-    { '>', act_scroll_right, NULL, NULL, NULL },
-    { '?', act_help, "?", "this help", "? help" },
+    {UIKEY_ESC, act_back, "Esc / q", "back to the main screen", "Esc back"},
+    {'q', act_back, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_BACKSPACE), act_back, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_LEFT), act_prev_layer, "Left / h", "the previous layer", "h/l layer"},
+    {'h', act_prev_layer, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_RIGHT), act_next_layer, "Right / l", "the next layer", NULL},
+    {'l', act_next_layer, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_UP), act_up, "Up / k", "scroll up one line", "j/k scroll"},
+    {'k', act_up, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_DOWN), act_down, "Down / j", "scroll down one line", NULL},
+    {'j', act_down, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_PPAGE), act_page_up, "PgUp / b", "scroll up one page", NULL},
+    {'b', act_page_up, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_NPAGE), act_page_down, "PgDn / Space", "scroll down one page", NULL},
+    {' ', act_page_down, NULL, NULL, NULL},
+    {'<', act_scroll_left, "< / >", "scroll wide lines (big matrices) left / right", "</> wide"},
+    {'>', act_scroll_right, NULL, NULL, NULL},
+    {'?', act_help, "?", "this help", "? help"},
 };
 
-static const ui_keymap layer_keymap = {
-    "Layer detail", layer_bindings, sizeof layer_bindings / sizeof layer_bindings[0]
-};
+static const ui_keymap layer_keymap = {"Layer detail", layer_bindings,
+                                       sizeof layer_bindings / sizeof layer_bindings[0]};
 
 const ui_keymap *screen_layer_keys(void)
 {

@@ -16,17 +16,23 @@
 #include "numfmt.h"
 #include "paint.h"
 
-#define SIG_DIGITS 10   /* significant digits of radii in the table */
-#define BOTTOM_ROWS 6   /* the bounds and invariants block */
+#define SIG_DIGITS  10 /* significant digits of radii in the table */
+#define BOTTOM_ROWS 6  /* the bounds and invariants block */
 
 /* Table columns (start, width); they add up to 79 so the table fits 80. */
 enum {
-    COL_J = 2, W_J = 3,
-    COL_LAYER = 6, W_LAYER = 18,
-    COL_RHO = 25, W_RHO = 14,
-    COL_ROOT = 40, W_ROOT = 14,
-    COL_DET = 55, W_DET = 11,
-    COL_DIM = 67, W_DIM = 12,
+    COL_J = 2,
+    W_J = 3,
+    COL_LAYER = 6,
+    W_LAYER = 18,
+    COL_RHO = 25,
+    W_RHO = 14,
+    COL_ROOT = 40,
+    W_ROOT = 14,
+    COL_DET = 55,
+    W_DET = 11,
+    COL_DIM = 67,
+    W_DIM = 12,
     COL_BASIS = 81
 };
 
@@ -84,10 +90,12 @@ static void draw_group(explorer_app *app)
         if (A->nq->stabilised && A->nq->class_reached < app->cls)
             snprintf(extra, sizeof extra, "   series stable from class %ld",
                      (long)A->nq->class_reached);
-        paint_textf(2, 9, COLS - 9, ROLE_NORMAL, "class %ld   Hirsch length %ld   %ld pc generators%s",
-                    (long)app->cls, (long)A->nq->hirsch_length, (long)A->nq->pcp->n, extra);
+        paint_textf(2, 9, COLS - 9, ROLE_NORMAL,
+                    "class %ld   Hirsch length %ld   %ld pc generators%s", (long)app->cls,
+                    (long)A->nq->hirsch_length, (long)A->nq->pcp->n, extra);
     } else {
-        paint_textf(2, 9, COLS - 9, ROLE_NORMAL, "class %ld   (quotient not computed)", (long)app->cls);
+        paint_textf(2, 9, COLS - 9, ROLE_NORMAL, "class %ld   (quotient not computed)",
+                    (long)app->cls);
     }
 }
 
@@ -108,7 +116,8 @@ static void draw_images(explorer_app *app, int y0, int rows)
         if (sel)
             paint_fill(y, 0, COLS, role);
         int cx = paint_text(y, 0, 2, role, sel ? "> " : "  ");
-        cx += paint_textf(y, cx, COLS - cx, role, "%s %s ", vm->names[i], sym(app, "\xE2\x86\xA6", "->"));
+        cx += paint_textf(y, cx, COLS - cx, role, "%s %s ", vm->names[i],
+                          sym(app, "\xE2\x86\xA6", "->"));
         int room = COLS - cx;
         /* the normal form in the pc labels, when it says something new */
         const char *nf = A->has_map && A->gen_image_str ? A->gen_image_str[i] : NULL;
@@ -194,7 +203,8 @@ static void draw_table(explorer_app *app, int y0, int rows)
             char basis[512] = "";
             size_t k = 0;
             for (slong b = 0; b < L->free_rank && k + 2 < sizeof basis; b++)
-                k += (size_t)snprintf(basis + k, sizeof basis - k, "%s%s", b ? ", " : "", L->basis[b]);
+                k += (size_t)snprintf(basis + k, sizeof basis - k, "%s%s", b ? ", " : "",
+                                      L->basis[b]);
             paint_text(y, COL_BASIS, COLS - COL_BASIS, sel ? role : ROLE_DIM, basis);
         }
     }
@@ -239,7 +249,8 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
                     "entropy %s   log growth rate %s (%s entropy of any map inducing it)", ent, lg,
                     sym(app, "\xE2\x89\xA4", "<="));
     else
-        paint_textf(y + 3, 2, COLS - 2, ROLE_NORMAL, "entropy %s   (growth rate 0: no logarithm)", ent);
+        paint_textf(y + 3, 2, COLS - 2, ROLE_NORMAL, "entropy %s   (growth rate 0: no logarithm)",
+                    ent);
     if (A->lefschetz_defined) {
         char *l = fmpz_get_str(NULL, 10, A->lefschetz);
         char *n = fmpz_get_str(NULL, 10, A->nielsen);
@@ -252,12 +263,13 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
             flint_free(rs);
         } else
             snprintf(r, sizeof r, "not defined");
-        paint_textf(y + 4, 2, COLS - 2, ROLE_NORMAL, "Lefschetz %.60s   Nielsen %.60s   Reidemeister %s", l,
-                    n, r);
+        paint_textf(y + 4, 2, COLS - 2, ROLE_NORMAL,
+                    "Lefschetz %.60s   Nielsen %.60s   Reidemeister %s", l, n, r);
         flint_free(l);
         flint_free(n);
     } else {
-        paint_textf(y + 4, 2, COLS - 2, ROLE_NORMAL, "Lefschetz, Nielsen, Reidemeister: not defined (%s)",
+        paint_textf(y + 4, 2, COLS - 2, ROLE_NORMAL,
+                    "Lefschetz, Nielsen, Reidemeister: not defined (%s)",
                     A->undefined_reason ? A->undefined_reason : "see the report");
     }
     char idx[80] = "-";
@@ -281,12 +293,12 @@ static void draw_failures(explorer_app *app, int y)
     int room = BOTTOM_ROWS - 1;
     for (slong k = 0; k < A->nfail && k < room; k++) {
         if (k == room - 1 && A->nfail > room) {
-            paint_textf(y + 1 + (int)k, 2, COLS - 2, ROLE_DIM, "... and %ld more (nilstep report lists all)",
-                        (long)(A->nfail - k));
+            paint_textf(y + 1 + (int)k, 2, COLS - 2, ROLE_DIM,
+                        "... and %ld more (nilstep report lists all)", (long)(A->nfail - k));
             break;
         }
-        int x = 2 + paint_textf(y + 1 + (int)k, 2, COLS - 2, ROLE_NORMAL, "%s  %s  ", A->fail_relator[k],
-                                sym(app, "\xE2\x86\xA6", "->"));
+        int x = 2 + paint_textf(y + 1 + (int)k, 2, COLS - 2, ROLE_NORMAL, "%s  %s  ",
+                                A->fail_relator[k], sym(app, "\xE2\x86\xA6", "->"));
         paint_text(y + 1 + (int)k, x, COLS - x, ROLE_NUMBER, A->fail_image[k]);
     }
 }
@@ -482,45 +494,44 @@ static int act_quit(explorer_app *app)
 
 /* Hints come first in the order the bottom line shows them. */
 static const ui_binding main_bindings[] = {
-    { '?', act_help, "?", "this help: every key", "? help" },
-    { 'q', act_quit, "q", "quit (asks first when there are unsaved changes)", "q quit" },
-    { '\r', act_detail, "Enter", "open the selected layer: basis, matrix, polynomial, eigenvalues",
-      "Enter detail" },
-    { '\n', act_detail, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_ENTER), act_detail, NULL, NULL, NULL },
-    { 'e', act_edit_image, "e", "edit the image of the selected generator", "e edit" },
-    { 'u', act_undo, "u", "undo the last change of an image", "u/r undo/redo" },
-    { 'r', act_redo, "r", "redo what u undid", NULL },
-    { '-', act_class_down, "-", "lower the class by one (recomputes the quotient)", "-/+ class" },
-    { '+', act_class_up, "+ / =", "raise the class by one (recomputes the quotient; Esc cancels)",
-      NULL },
-    { '=', act_class_up, NULL, NULL, NULL },
-    { 'p', act_edit_group, "p", "edit the presentation of the group", "p group" },
-    { 's', act_save, "s", "save the session to its file", "s save" },
-    { UIKEY_FN(KEY_UP), act_layer_prev, "Up / k", "select the previous layer", NULL },
-    { 'k', act_layer_prev, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_DOWN), act_layer_next, "Down / j", "select the next layer", NULL },
-    { 'j', act_layer_next, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_HOME), act_layer_first, "Home / g", "select the first layer", NULL },
-    { 'g', act_layer_first, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_END), act_layer_last, "End / G", "select the last layer", NULL },
-    { 'G', act_layer_last, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_LEFT), act_image_prev, "Left / Shift-Tab", "select the previous generator's image",
-      NULL },
-    { UIKEY_FN(KEY_BTAB), act_image_prev, NULL, NULL, NULL },
-    { UIKEY_FN(KEY_RIGHT), act_image_next, "Right / Tab", "select the next generator's image", NULL },
-    { '\t', act_image_next, NULL, NULL, NULL },
-    { 'i', act_identity_image, "i", "map the selected generator to itself", NULL },
-    { 'c', act_recompute, "c", "compute the quotient again (after a cancel)", NULL },
-    { 't', act_edit_title, "t", "edit the title of the session", NULL },
-    { 'w', act_save_as, "w", "save as: write the session to a new path", NULL },
-    { 'o', act_open, "o", "open another session file", NULL },
-    { UIKEY_CTRL('l'), NULL, "Ctrl-L", "paint the screen again", NULL },
+    {'?', act_help, "?", "this help: every key", "? help"},
+    {'q', act_quit, "q", "quit (asks first when there are unsaved changes)", "q quit"},
+    {'\r', act_detail, "Enter", "open the selected layer: basis, matrix, polynomial, eigenvalues",
+     "Enter detail"},
+    {'\n', act_detail, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_ENTER), act_detail, NULL, NULL, NULL},
+    {'e', act_edit_image, "e", "edit the image of the selected generator", "e edit"},
+    {'u', act_undo, "u", "undo the last change of an image", "u/r undo/redo"},
+    {'r', act_redo, "r", "redo what u undid", NULL},
+    {'-', act_class_down, "-", "lower the class by one (recomputes the quotient)", "-/+ class"},
+    {'+', act_class_up, "+ / =", "raise the class by one (recomputes the quotient; Esc cancels)",
+     NULL},
+    {'=', act_class_up, NULL, NULL, NULL},
+    {'p', act_edit_group, "p", "edit the presentation of the group", "p group"},
+    {'s', act_save, "s", "save the session to its file", "s save"},
+    {UIKEY_FN(KEY_UP), act_layer_prev, "Up / k", "select the previous layer", NULL},
+    {'k', act_layer_prev, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_DOWN), act_layer_next, "Down / j", "select the next layer", NULL},
+    {'j', act_layer_next, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_HOME), act_layer_first, "Home / g", "select the first layer", NULL},
+    {'g', act_layer_first, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_END), act_layer_last, "End / G", "select the last layer", NULL},
+    {'G', act_layer_last, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_LEFT), act_image_prev, "Left / Shift-Tab",
+     "select the previous generator's image", NULL},
+    {UIKEY_FN(KEY_BTAB), act_image_prev, NULL, NULL, NULL},
+    {UIKEY_FN(KEY_RIGHT), act_image_next, "Right / Tab", "select the next generator's image", NULL},
+    {'\t', act_image_next, NULL, NULL, NULL},
+    {'i', act_identity_image, "i", "map the selected generator to itself", NULL},
+    {'c', act_recompute, "c", "compute the quotient again (after a cancel)", NULL},
+    {'t', act_edit_title, "t", "edit the title of the session", NULL},
+    {'w', act_save_as, "w", "save as: write the session to a new path", NULL},
+    {'o', act_open, "o", "open another session file", NULL},
+    {UIKEY_CTRL('l'), NULL, "Ctrl-L", "paint the screen again", NULL},
 };
 
-static const ui_keymap main_keymap = {
-    "Main screen", main_bindings, sizeof main_bindings / sizeof main_bindings[0]
-};
+static const ui_keymap main_keymap = {"Main screen", main_bindings,
+                                      sizeof main_bindings / sizeof main_bindings[0]};
 
 const ui_keymap *screen_main_keys(void)
 {

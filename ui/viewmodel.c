@@ -164,7 +164,7 @@ int viewmodel_set_image(viewmodel_t vm, size_t i, const char *text)
 {
     if (i >= vm->ngens || strcmp(vm->images[i], text) == 0)
         return 0;
-    viewmodel_edit e = { i, vm->images[i], viewmodel_strdup(text) };
+    viewmodel_edit e = {i, vm->images[i], viewmodel_strdup(text)};
     vm->images[i] = viewmodel_strdup(text);
     viewmodel_push(vm->undo, &vm->nundo, e);
     for (size_t k = 0; k < vm->nredo; k++)
@@ -218,29 +218,28 @@ static const char *viewmodel_image_or_draft(const viewmodel_t vm, size_t i, size
 }
 
 #define VIEWMODEL_ARROW " -> "
-#define VIEWMODEL_SEP ", "
+#define VIEWMODEL_SEP   ", "
 
 char *viewmodel_map_text(const viewmodel_t vm, size_t draft_index, const char *draft)
 {
     size_t n = 1;
     for (size_t i = 0; i < vm->ngens; i++)
-        n += strlen(vm->names[i]) + strlen(viewmodel_image_or_draft(vm, i, draft_index, draft))
-             + sizeof VIEWMODEL_ARROW + sizeof VIEWMODEL_SEP;
+        n += strlen(vm->names[i]) + strlen(viewmodel_image_or_draft(vm, i, draft_index, draft)) +
+             sizeof VIEWMODEL_ARROW + sizeof VIEWMODEL_SEP;
     char *out = malloc(n);
     if (out == NULL)
         abort();
     size_t k = 0;
     for (size_t i = 0; i < vm->ngens; i++) {
         k += (size_t)snprintf(out + k, n - k, "%s%s%s%s", i ? VIEWMODEL_SEP : "", vm->names[i],
-                              VIEWMODEL_ARROW,
-                              viewmodel_image_or_draft(vm, i, draft_index, draft));
+                              VIEWMODEL_ARROW, viewmodel_image_or_draft(vm, i, draft_index, draft));
     }
     out[k] = '\0';
     return out;
 }
 
-int viewmodel_locate_column(const viewmodel_t vm, size_t draft_index, const char *draft,
-                            int col, size_t *image, int *image_col)
+int viewmodel_locate_column(const viewmodel_t vm, size_t draft_index, const char *draft, int col,
+                            size_t *image, int *image_col)
 {
     if (vm->ngens == 0)
         return 0;

@@ -26,12 +26,12 @@ typedef struct {
 
 typedef struct {
     size_t ngens;
-    char **names;   /* ngens generator names, owned */
-    char **images;  /* ngens image texts, owned, never NULL */
+    char **names;  /* ngens generator names, owned */
+    char **images; /* ngens image texts, owned, never NULL */
     size_t sel_image;
     size_t nlayers;
     size_t sel_layer; /* 0-based; meaningless when nlayers == 0 */
-    int dirty;      /* there are changes not saved */
+    int dirty;        /* there are changes not saved */
     viewmodel_edit *undo;
     size_t nundo;
     viewmodel_edit *redo;
@@ -86,8 +86,8 @@ char *viewmodel_map_text(const viewmodel_t vm, size_t draft_index, const char *d
  * on a separator belongs to the image before it (it is where that image's
  * text ended too early), one in "x -> " to the image after it.  Returns 0
  * when there are no generators. */
-int viewmodel_locate_column(const viewmodel_t vm, size_t draft_index, const char *draft,
-                            int col, size_t *image, int *image_col);
+int viewmodel_locate_column(const viewmodel_t vm, size_t draft_index, const char *draft, int col,
+                            size_t *image, int *image_col);
 
 /* The view as the session file's cursor key stores it: the selected layer
  * and image, both 1-based (layer j is the table's j, image i the i-th
