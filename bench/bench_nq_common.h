@@ -1,0 +1,151 @@
+/* bench_nq_common.h — the harness of the bench_nq_* programs, one program
+ * per group so that bench/run-bench reports each one's wall time and peak
+ * memory on its own.
+ *
+ * bench_nq_run parses a presentation, runs nq_compute to the requested
+ * class, and prints the layer ranks it computed next to those of a published
+ * formula, then the number of pc generators and the CPU time of nq_compute.
+ * It returns the program's exit status: 0 when every layer is free abelian
+ * of the formula's rank and the class was reached, 1 otherwise or when
+ * parsing or nq_compute fails (the error goes to stderr).
+ *
+ * Header-only: each benchmark is a program of its own. */
+#ifndef NILSTEP_BENCH_NQ_COMMON_H
+#define NILSTEP_BENCH_NQ_COMMON_H
+
+#include <stdio.h>
+#include <stdlib.h>
+#include <time.h>
+
+#include "nq.h"
+
+/* Moebius function of n >= 1 by trial division. */
+static inline long moebius(long n)
+{
+    long mu = 1;
+    for (long p = 2; p * p <= n; p++)
+        if (n % p == 0) {
+            n /= p;
+            if (n % p == 0)
+                return 0;
+            mu = -mu;
+        }
+    return n > 1 ? -mu : mu;
+}
+
+/* E. Witt, "Treue Darstellung Liescher Ringe", J. reine angew. Math. 177
+ * (1937): layer n of the free group of rank r has rank
+ * (1/n) sum_{d|n} mu(d) r^(n/d). */
+static inline void witt_rank(fmpz_t out, ulong r, ulong n)
+{
+    fmpz_t t;
+    fmpz_init(t);
+    fmpz_zero(out);
+    for (ulong d = 1; d <= n; d++)
+        if (n % d == 0) {
+            fmpz_set_ui(t, r);
+            fmpz_pow_ui(t, t, n / d);
+            fmpz_mul_si(t, t, moebius((long)d));
+            fmpz_add(out, out, t);
+        }
+    fmpz_divexact_ui(out, out, n);
+    fmpz_clear(t);
+}
+
+/* J. P. Labute, "On the descending central series of groups with a single
+ * defining relation", J. Algebra 14 (1970): layer n of the genus-g surface
+ * group has rank (1/n) sum_{d|n} mu(n/d) sum_{i=0}^{floor(d/2)} (-1)^i
+ * d/(d-i) C(d-i,i) (2g)^(d-2i). */
+static inline void labute_rank(fmpz_t out, ulong g, ulong n)
+{
+    fmpz_t inner, t, b;
+    fmpz_init(inner);
+    fmpz_init(t);
+    fmpz_init(b);
+    fmpz_zero(out);
+    for (ulong d = 1; d <= n; d++) {
+        if (n % d)
+            continue;
+        fmpz_zero(inner);
+        for (ulong i = 0; i <= d / 2; i++) {
+            fmpz_bin_uiui(b, d - i, i);
+            fmpz_mul_ui(b, b, d);
+            fmpz_divexact_ui(b, b, d - i);
+            fmpz_set_ui(t, 2 * g);
+            fmpz_pow_ui(t, t, d - 2 * i);
+            fmpz_mul(t, t, b);
+            if (i % 2)
+                fmpz_sub(inner, inner, t);
+            else
+                fmpz_add(inner, inner, t);
+        }
+        fmpz_mul_si(inner, inner, moebius((long)(n / d)));
+        fmpz_add(out, out, inner);
+    }
+    fmpz_divexact_ui(out, out, n);
+    fmpz_clear(inner);
+    fmpz_clear(t);
+    fmpz_clear(b);
+}
+
+/* One benchmark: the group, the class, and the formula its layers follow. */
+typedef struct {
+    const char *program; /* prefix of every line printed */
+    const char *group;   /* what the presentation is, for the first line */
+    const char *text;    /* the presentation */
+    slong c;             /* the class asked of nq_compute */
+    const char *formula; /* the formula's name, for the line of its ranks */
+    void (*rank)(fmpz_t out, ulong param, ulong n); /* rank of layer n */
+    ulong param;         /* the formula's parameter: rank or genus */
+} bench_nq_case;
+
+static double bench_cpu_seconds(void)
+{
+    return (double)clock() / CLOCKS_PER_SEC;
+}
+
+static int bench_nq_run(const bench_nq_case *b)
+{
+    pres_t p;
+    nserr_t err;
+    nq_t Q;
+    pres_init(p);
+    nserr_init(err);
+    nq_init(Q);
+    if (pres_parse(p, b->text, 1, 1, err) != NS_OK) {
+        fprintf(stderr, "%s: %s\n", b->program, err->msg);
+        return 1;
+    }
+    double t0 = bench_cpu_seconds();
+    ns_status st = nq_compute(Q, p, b->c, NULL, err);
+    double t1 = bench_cpu_seconds();
+    if (st != NS_OK) {
+        fprintf(stderr, "%s: nq_compute: %s\n", b->program, err->msg);
+        return 1;
+    }
+    printf("%s: %s, class %ld\n", b->program, b->group, (long)b->c);
+    printf("  layer ranks:");
+    int ok = Q->class_reached == b->c;
+    fmpz_t want;
+    fmpz_init(want);
+    for (slong j = 0; j < Q->nlayers; j++) {
+        printf(" %ld", (long)Q->layers[j].free_rank);
+        b->rank(want, b->param, (ulong)(j + 1));
+        if (!fmpz_equal_si(want, Q->layers[j].free_rank) || Q->layers[j].ntors)
+            ok = 0;
+    }
+    printf("\n  %s:", b->formula);
+    for (slong j = 1; j <= b->c; j++) {
+        b->rank(want, b->param, (ulong)j);
+        printf(" ");
+        fmpz_print(want);
+    }
+    printf("\n  %ld pc generators, nq_compute %.3f s CPU%s\n", (long)Q->pcp->n, t1 - t0,
+           ok ? "" : "  MISMATCH");
+    fmpz_clear(want);
+    nq_clear(Q);
+    pres_clear(p);
+    return ok ? 0 : 1;
+}
+
+#endif
