@@ -93,6 +93,7 @@ void analysis_clear_map(analysis_t A)
     fmpz_zero(A->reidemeister);
     fmpz_zero(A->image_index);
     A->automorphism = A->injective = A->hyperbolic = A->expanding = 0;
+    A->injective_defined = 0;
     endo_clear(A->endo);
     for (slong j = 0; j < A->nlayers; j++)
         layer_map_clear(A->layers + j);
@@ -107,6 +108,7 @@ static void clear_group(analysis_t A)
             _fmpz_vec_clear(L->torsion, L->ntors);
         free(L->group_str);
         free_strs(L->basis, L->free_rank);
+        free_strs(L->pc_labels, L->npc);
         fmpz_mat_clear(L->matrix);
         fmpz_mat_clear(L->action);
         fmpz_clear(L->det);
@@ -201,6 +203,9 @@ ns_status analysis_set_group(analysis_t A, const pres_t G, slong c, const ns_pro
             L->basis = malloc(FLINT_MAX(L->free_rank, 1) * sizeof(char *));
             for (slong k = 0; k < L->free_rank; k++)
                 L->basis[k] = dup_str(L->lcs->basis[k]);
+            L->pc_labels = malloc(FLINT_MAX(L->npc, 1) * sizeof(char *));
+            for (slong k = 0; k < L->npc; k++)
+                L->pc_labels[k] = dup_str(A->nq->labels[N->start + k]);
         }
         L->group_str = group_string(L->free_rank, L->torsion, L->ntors);
     }
@@ -432,10 +437,12 @@ ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_pro
     if (!A->layers_torsion_free) {
         A->undefined_reason = "the class-c quotient has torsion in its layers";
         A->injective = 0;
+        A->injective_defined = 0;
         fmpz_zero(A->lefschetz);
         fmpz_zero(A->image_index);
     } else {
         A->entropy_str = arb_str(t);
+        A->injective_defined = 1;
         A->lefschetz_defined = 1;
         fmpz_abs(A->nielsen, A->lefschetz);
         A->reid_kind = reid_inf ? ANALYSIS_REID_INFINITE : ANALYSIS_REID_FINITE;

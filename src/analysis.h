@@ -30,6 +30,7 @@ typedef struct {
     fmpz *torsion;         /* invariant factors d_1 | d_2 | ... (> 1) */
     char *group_str;       /* "Z^5", "Z^2 + Z/2 + Z/4", "0" */
     char **basis;          /* free_rank labels of the free-part basis, e.g. "[b,a,a]" */
+    char **pc_labels;      /* npc labels of the layer's pc generators */
     /* the map on it (only when the analysis has a valid map) */
     fmpz_mat_t matrix;     /* free_rank x free_rank; column k = image of basis k */
     fmpz_mat_t action;     /* npc x npc: images of the layer's pc generators,
@@ -98,6 +99,7 @@ typedef struct {
     analysis_reid_kind reid_kind;
     fmpz_t reidemeister;
     int automorphism;            /* surjective on the whole abelianisation */
+    int injective_defined;       /* 0 when layer torsion leaves it undecided */
     int injective;               /* det M_j != 0 for all j (torsion-free case) */
     int index_defined;
     fmpz_t image_index;          /* prod |det M_j| when injective */

@@ -1,6 +1,8 @@
-/* defaults.c — the built-in default scenario: a hyperbolic automorphism of
- * the free nilpotent group of rank 2 and class 3, induced by the matrix
- * [[2,1],[1,1]] on the abelianisation.  Our own example. */
+/* defaults.c — the built-in default scenario: the automorphism of the free
+ * nilpotent group of rank 2 and class 3 induced by the matrix [[2,1],[1,1]]
+ * on the abelianisation.  It is hyperbolic on layers 1 and 3 but acts on
+ * layer 2 by its determinant 1, so the whole map is not hyperbolic and the
+ * gap between the bounds shows.  Our own example. */
 #include "defaults.h"
 
 const char *defaults_session_text(void)

@@ -223,7 +223,7 @@ static int work_tick(pcp_work_t W)
     W->steps++;
     if (W->limit && W->steps > W->limit)
         W->overflow = 1;
-    if ((W->steps & 0xffff) == 0 && W->progress &&
+    if ((W->steps & 0xfff) == 0 && W->progress &&
         ns_progress_report(W->progress, NULL, -1.0))
         W->overflow = 1;
     return W->overflow;

@@ -104,7 +104,7 @@ typedef struct {
     ulong steps;          /* collection steps done */
     ulong limit;          /* stop (overflow = 1) after this many; 0 = none */
     int overflow;         /* set when the limit or the hook stopped us */
-    const ns_progress_t *progress; /* may be NULL; polled every 2^16 steps */
+    const ns_progress_t *progress; /* may be NULL; polled every 2^12 steps */
 } pcp_work_struct;
 typedef pcp_work_struct pcp_work_t[1];
 

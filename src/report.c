@@ -360,6 +360,7 @@ static void report_json(sbuf_t b, const analysis_t A, const char *title)
                     A->automorphism ? "true" : "false", A->injective ? "true" : "false",
                     A->hyperbolic ? "true" : "false", A->expanding ? "true" : "false");
         json_fmpz_or_null(b, A->index_defined, A->image_index);
+        sbuf_printf(b, ", \"injective_defined\": %s", A->injective_defined ? "true" : "false");
         sbuf_puts(b, ",\n   \"inverse\": ");
         char **inv = inverse_images(A);
         if (inv) {

@@ -113,14 +113,13 @@ static void detail_build(explorer_app *app, detail_text *t)
     detail_add(t, ROLE_NORMAL, "  free rank %ld, %ld torsion factor%s, %ld pc generator%s",
                (long)L->free_rank, (long)L->ntors, L->ntors == 1 ? "" : "s", (long)L->npc,
                L->npc == 1 ? "" : "s");
-    if (L->ntors > 0 && j <= A->nq->class_reached) {
+    if (L->ntors > 0 && L->pc_labels) {
         /* the torsion is only visible on the pc generators: name them */
-        const nq_layer_struct *N = A->nq->layers + j - 1;
         char names[512] = "";
         size_t k = 0;
-        for (slong g = 0; g < N->count && k + 2 < sizeof names; g++)
+        for (slong g = 0; g < L->npc && k + 2 < sizeof names; g++)
             k += (size_t)snprintf(names + k, sizeof names - k, "%s%s", g ? ", " : "",
-                                  A->nq->labels[N->start + g]);
+                                  L->pc_labels[g]);
         detail_add(t, ROLE_NORMAL, "  pc generators of the layer: %s", names);
     }
     detail_add(t, ROLE_NORMAL, "%s", "");

@@ -280,7 +280,8 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
     }
     paint_textf(y + 5, 2, COLS - 2, ROLE_NORMAL,
                 "automorphism %s   injective %s   index %s   hyperbolic %s   expanding %s",
-                yes_no(A->automorphism), yes_no(A->injective), idx, yes_no(A->hyperbolic),
+                yes_no(A->automorphism), A->injective_defined ? yes_no(A->injective) : "-", idx,
+                yes_no(A->hyperbolic),
                 yes_no(A->expanding));
 }
 
