@@ -556,6 +556,21 @@ static int exact_modulus(qqbar_t res, const fmpz_poly_t f, const acb_t z)
  * Life cycle
  * ====================================================================== */
 
+/* The per-root and per-factor arrays, empty. */
+static void spectrum_null_arrays(spectrum_t S)
+{
+    S->roots = NULL;
+    S->root_abs = NULL;
+    S->root_start = NULL;
+    S->root_factor = NULL;
+    S->root_side = NULL;
+    S->fac_unimodular = NULL;
+    S->eig_root = NULL;
+    S->dom = NULL;
+    S->nroots = 0;
+    S->ndom = 0;
+}
+
 static void spectrum_free_arrays(spectrum_t S)
 {
     if (S->roots != NULL)
@@ -568,16 +583,7 @@ static void spectrum_free_arrays(spectrum_t S)
     flint_free(S->fac_unimodular);
     flint_free(S->eig_root);
     flint_free(S->dom);
-    S->roots = NULL;
-    S->root_abs = NULL;
-    S->root_start = NULL;
-    S->root_factor = NULL;
-    S->root_side = NULL;
-    S->fac_unimodular = NULL;
-    S->eig_root = NULL;
-    S->dom = NULL;
-    S->nroots = 0;
-    S->ndom = 0;
+    spectrum_null_arrays(S);
 }
 
 /* Back to the spectrum of the 0x0 matrix. */
@@ -608,16 +614,7 @@ void spectrum_init(spectrum_t S)
     arb_init(S->radius);
     qqbar_init(S->radius_qqbar);
     arb_init(S->entropy);
-    S->roots = NULL;
-    S->root_abs = NULL;
-    S->root_start = NULL;
-    S->root_factor = NULL;
-    S->root_side = NULL;
-    S->fac_unimodular = NULL;
-    S->eig_root = NULL;
-    S->dom = NULL;
-    S->nroots = 0;
-    S->ndom = 0;
+    spectrum_null_arrays(S);
     spectrum_reset(S);
 }
 
