@@ -12,6 +12,8 @@
 #include <flint/fmpz.h>
 
 #include "expr.h"
+#include "strbuf.h"
+#include "utf8.h"
 
 /* ------------------------------------------------------------------------ */
 /* Generator names                                                           */
@@ -336,38 +338,6 @@ expr_tok_kind _expr_scan_peek(const expr_scan_t s)
     expr_scan_struct copy = *s;
     _expr_scan_next(&copy);
     return copy.tok.kind;
-}
-
-/* Length of the valid UTF-8 character at u (at most n bytes), or 0. */
-static size_t utf8_char_len(const unsigned char *u, size_t n)
-{
-    size_t need;
-
-    if (n == 0)
-        return 0;
-    if (u[0] >= 0xC2 && u[0] <= 0xDF)
-        need = 2;
-    else if (u[0] >= 0xE0 && u[0] <= 0xEF)
-        need = 3;
-    else if (u[0] >= 0xF0 && u[0] <= 0xF4)
-        need = 4;
-    else
-        return 0;
-    if (n < need)
-        return 0;
-    for (size_t i = 1; i < need; i++)
-        if ((u[i] & 0xC0) != 0x80)
-            return 0;
-    /* Overlong forms, surrogates and code points past U+10FFFF. */
-    if (need == 3 && u[0] == 0xE0 && u[1] < 0xA0)
-        return 0;
-    if (need == 3 && u[0] == 0xED && u[1] >= 0xA0)
-        return 0;
-    if (need == 4 && u[0] == 0xF0 && u[1] < 0x90)
-        return 0;
-    if (need == 4 && u[0] == 0xF4 && u[1] >= 0x90)
-        return 0;
-    return need;
 }
 
 void _expr_tok_describe(char *buf, size_t n, const expr_tok_struct *t)
@@ -795,37 +765,13 @@ ns_status expr_parse(expr_t out, const char *text, int line, int col, const name
 /* ------------------------------------------------------------------------ */
 /* Printer                                                                   */
 
-typedef struct {
-    char *s;
-    size_t len, cap;
-} strbuf;
-
-static void sb_putn(strbuf *b, const char *s, size_t n)
-{
-    if (b->len + n + 1 > b->cap) {
-        size_t cap = b->cap ? b->cap : 64;
-        while (b->len + n + 1 > cap)
-            cap *= 2;
-        b->s = flint_realloc(b->s, cap);
-        b->cap = cap;
-    }
-    memcpy(b->s + b->len, s, n);
-    b->len += n;
-    b->s[b->len] = '\0';
-}
-
-static void sb_puts(strbuf *b, const char *s)
-{
-    sb_putn(b, s, strlen(s));
-}
-
-static void sb_put_fmpz(strbuf *b, const fmpz_t x)
+static void put_fmpz(strbuf_t b, const fmpz_t x)
 {
     /* Our own buffer: fmpz_get_str(NULL, ...) may allocate through GMP. */
     size_t n = fmpz_sizeinbase(x, 10) + 2;
     char *d = flint_malloc(n);
     fmpz_get_str(d, 10, x);
-    sb_puts(b, d);
+    strbuf_puts(b, d);
     flint_free(d);
 }
 
@@ -850,14 +796,14 @@ typedef struct {
 
 char *expr_node_get_str(const expr_node *root, const names_t g)
 {
-    strbuf b = {NULL, 0, 0};
+    strbuf_t b;
     print_frame *st = NULL;
     slong sn = 0, scap = 0;
 
-    sb_puts(&b, "");
+    strbuf_init(b);
     if (root == NULL) {
-        sb_puts(&b, "1");
-        return b.s;
+        strbuf_puts(b, "1");
+        return strbuf_take(b);
     }
 
 #define PUSH(node, c)                                                        \
@@ -880,30 +826,30 @@ char *expr_node_get_str(const expr_node *root, const names_t g)
         int done = 0;
 
         if (n == NULL) {
-            sb_puts(&b, "1");
+            strbuf_puts(b, "1");
             sn--;
             continue;
         }
         if (st[top].next < 0) {
             st[top].parens = needs_parens(n, st[top].ctx);
             if (st[top].parens)
-                sb_puts(&b, "(");
+                strbuf_puts(b, "(");
             st[top].next = 0;
             switch (n->kind) {
             case EXPR_ONE:
-                sb_puts(&b, "1");
+                strbuf_puts(b, "1");
                 done = 1;
                 break;
             case EXPR_GEN:
                 if (n->gen >= 0 && n->gen < g->n)
-                    sb_puts(&b, g->name[n->gen]);
+                    strbuf_puts(b, g->name[n->gen]);
                 else
-                    sb_puts(&b, "?");
+                    strbuf_puts(b, "?");
                 done = 1;
                 break;
             case EXPR_MUL:
                 if (n->nkids == 0) {
-                    sb_puts(&b, "1");
+                    strbuf_puts(b, "1");
                     done = 1;
                 } else {
                     PUSH(n->kids[0], n->nkids == 1 ? st[top].ctx : CTX_MULKID);
@@ -912,14 +858,14 @@ char *expr_node_get_str(const expr_node *root, const names_t g)
             case EXPR_POW:
             case EXPR_CONJ:
                 if (n->nkids < 1) {
-                    sb_puts(&b, "1");
+                    strbuf_puts(b, "1");
                     done = 1;
                 } else {
                     PUSH(n->kids[0], CTX_BASE);
                 }
                 break;
             case EXPR_COMM:
-                sb_puts(&b, "[");
+                strbuf_puts(b, "[");
                 if (n->nkids == 0)
                     done = 1;
                 else
@@ -933,7 +879,7 @@ char *expr_node_get_str(const expr_node *root, const names_t g)
             switch (n->kind) {
             case EXPR_MUL:
                 if (next < n->nkids) {
-                    sb_puts(&b, " ");
+                    strbuf_puts(b, " ");
                     st[top].next = next;
                     PUSH(n->kids[next], CTX_MULKID);
                 } else {
@@ -941,13 +887,13 @@ char *expr_node_get_str(const expr_node *root, const names_t g)
                 }
                 break;
             case EXPR_POW:
-                sb_puts(&b, "^");
-                sb_put_fmpz(&b, n->exp);
+                strbuf_puts(b, "^");
+                put_fmpz(b, n->exp);
                 done = 1;
                 break;
             case EXPR_CONJ:
                 if (next == 1 && n->nkids >= 2) {
-                    sb_puts(&b, "^");
+                    strbuf_puts(b, "^");
                     st[top].next = next;
                     PUSH(n->kids[1], CTX_CONJUGATOR);
                 } else {
@@ -961,7 +907,7 @@ char *expr_node_get_str(const expr_node *root, const names_t g)
                         if (n->kids[i] != NULL && n->kids[i]->kind == EXPR_MUL &&
                             n->kids[i]->nkids >= 2)
                             spaced = 1;
-                    sb_puts(&b, spaced ? ", " : ",");
+                    strbuf_puts(b, spaced ? ", " : ",");
                     st[top].next = next;
                     PUSH(n->kids[next], CTX_WORD);
                 } else {
@@ -977,14 +923,14 @@ char *expr_node_get_str(const expr_node *root, const names_t g)
         }
         /* The node at top is complete. */
         if (n->kind == EXPR_COMM)
-            sb_puts(&b, "]");
+            strbuf_puts(b, "]");
         if (st[top].parens)
-            sb_puts(&b, ")");
+            strbuf_puts(b, ")");
         sn--;
     }
 #undef PUSH
     flint_free(st);
-    return b.s;
+    return strbuf_take(b);
 }
 
 char *expr_get_str(const expr_t e, const names_t g)

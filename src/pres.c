@@ -7,6 +7,7 @@
 #include <flint/fmpz.h>
 
 #include "pres.h"
+#include "strbuf.h"
 
 /* Size limits of the families: beyond them the relation lists get too long
  * to be useful, and a typo like heisenberg(100000) must not eat the memory. */
@@ -193,6 +194,45 @@ static int short_len(size_t len)
     return len > 64 ? 64 : (int)len;
 }
 
+/* The error for the token t where what was expected; at the end of the text,
+ * the '<' or '(' token open is reported as never closed instead. */
+static ns_status err_expected(nserr_t err, const expr_tok_struct *t, const char *what,
+                              const expr_tok_struct *open)
+{
+    int angle = open->kind == EXPR_TOK_LANGLE;
+    if (t->kind == EXPR_TOK_END)
+        return nserr_set(err, NS_ERR_SYNTAX, t->line, t->col,
+                         "expected '%c' to close '%c' opened at %d:%d", angle ? '>' : ')',
+                         angle ? '<' : '(', open->line, open->col);
+    return err_at_tok(err, NS_ERR_SYNTAX, t, what);
+}
+
+/* Adds the name t as the next generator of p and records its position in
+ * (*lines, *cols), which grow with p->gens.  Fails on a name listed before
+ * and beyond PRES_MAX_GENS; messages call a generator what (plural whats). */
+static ns_status add_named_gen(pres_t p, int **lines, int **cols, const expr_tok_struct *t,
+                               const char *what, const char *whats, nserr_t err)
+{
+    slong prev = names_find(p->gens, t->start, t->len);
+    if (prev >= 0)
+        return nserr_set(err, NS_ERR_INPUT, t->line, t->col,
+                         "%s '%.*s' listed twice (first at %d:%d)", what, short_len(t->len),
+                         t->start, (*lines)[prev], (*cols)[prev]);
+    if (p->gens->n >= PRES_MAX_GENS)
+        return nserr_set(err, NS_ERR_LIMIT, t->line, t->col, "more than %d %s", PRES_MAX_GENS,
+                         whats);
+    char *name = flint_malloc(t->len + 1);
+    memcpy(name, t->start, t->len);
+    name[t->len] = '\0';
+    names_add(p->gens, name);
+    flint_free(name);
+    *lines = flint_realloc(*lines, sizeof(int) * p->gens->n);
+    *cols = flint_realloc(*cols, sizeof(int) * p->gens->n);
+    (*lines)[p->gens->n - 1] = t->line;
+    (*cols)[p->gens->n - 1] = t->col;
+    return NS_OK;
+}
+
 /* ------------------------------------------------------------------------ */
 /* <gens | relations>                                                        */
 
@@ -209,38 +249,13 @@ static ns_status parse_angle(pres_t p, expr_scan_t s, nserr_t err)
 
     /* Generators. */
     for (;;) {
-        expr_tok_struct t = s->tok;
-        if (t.kind != EXPR_TOK_NAME) {
-            if (t.kind == EXPR_TOK_END)
-                st = nserr_set(err, NS_ERR_SYNTAX, t.line, t.col,
-                               "expected '>' to close '<' opened at %d:%d", open.line, open.col);
-            else
-                st = err_at_tok(err, NS_ERR_SYNTAX, &t, "expected a generator name");
+        if (s->tok.kind != EXPR_TOK_NAME) {
+            st = err_expected(err, &s->tok, "expected a generator name", &open);
             goto done;
         }
-        slong prev = names_find(p->gens, t.start, t.len);
-        if (prev >= 0) {
-            st = nserr_set(err, NS_ERR_INPUT, t.line, t.col,
-                           "generator '%.*s' listed twice (first at %d:%d)", short_len(t.len),
-                           t.start, gline[prev], gcol[prev]);
+        st = add_named_gen(p, &gline, &gcol, &s->tok, "generator", "generators", err);
+        if (st != NS_OK)
             goto done;
-        }
-        if (p->gens->n >= PRES_MAX_GENS) {
-            st = nserr_set(err, NS_ERR_LIMIT, t.line, t.col, "more than %d generators",
-                           PRES_MAX_GENS);
-            goto done;
-        }
-        {
-            char *name = flint_malloc(t.len + 1);
-            memcpy(name, t.start, t.len);
-            name[t.len] = '\0';
-            names_add(p->gens, name);
-            flint_free(name);
-        }
-        gline = flint_realloc(gline, sizeof(int) * p->gens->n);
-        gcol = flint_realloc(gcol, sizeof(int) * p->gens->n);
-        gline[p->gens->n - 1] = t.line;
-        gcol[p->gens->n - 1] = t.col;
         _expr_scan_next(s);
         if (s->tok.kind == EXPR_TOK_COMMA) {
             _expr_scan_next(s);
@@ -248,12 +263,7 @@ static ns_status parse_angle(pres_t p, expr_scan_t s, nserr_t err)
         }
         if (s->tok.kind == EXPR_TOK_BAR || s->tok.kind == EXPR_TOK_RANGLE)
             break;
-        if (s->tok.kind == EXPR_TOK_END)
-            st = nserr_set(err, NS_ERR_SYNTAX, s->tok.line, s->tok.col,
-                           "expected '>' to close '<' opened at %d:%d", open.line, open.col);
-        else
-            st = err_at_tok(err, NS_ERR_SYNTAX, &s->tok,
-                            "expected ',', '|' or '>' after a generator");
+        st = err_expected(err, &s->tok, "expected ',', '|' or '>' after a generator", &open);
         goto done;
     }
 
@@ -266,12 +276,7 @@ static ns_status parse_angle(pres_t p, expr_scan_t s, nserr_t err)
                 expr_node *u = NULL, *v = NULL;
 
                 if (!_expr_tok_starts_word(s->tok.kind)) {
-                    if (s->tok.kind == EXPR_TOK_END)
-                        st = nserr_set(err, NS_ERR_SYNTAX, s->tok.line, s->tok.col,
-                                       "expected '>' to close '<' opened at %d:%d", open.line,
-                                       open.col);
-                    else
-                        st = err_at_tok(err, NS_ERR_SYNTAX, &s->tok, "expected a relation");
+                    st = err_expected(err, &s->tok, "expected a relation", &open);
                     goto done;
                 }
                 if ((st = _expr_parse_word(&u, s, p->gens, 0, err)) != NS_OK)
@@ -309,16 +314,12 @@ static ns_status parse_angle(pres_t p, expr_scan_t s, nserr_t err)
                 }
                 if (s->tok.kind == EXPR_TOK_RANGLE)
                     break;
-                if (s->tok.kind == EXPR_TOK_END)
-                    st = nserr_set(err, NS_ERR_SYNTAX, s->tok.line, s->tok.col,
-                                   "expected '>' to close '<' opened at %d:%d", open.line,
-                                   open.col);
-                else if (s->tok.kind == EXPR_TOK_BAD || s->tok.kind == EXPR_TOK_RPAREN ||
-                         s->tok.kind == EXPR_TOK_RBRACK)
+                if (s->tok.kind == EXPR_TOK_BAD || s->tok.kind == EXPR_TOK_RPAREN ||
+                    s->tok.kind == EXPR_TOK_RBRACK)
                     st = err_unexpected(err, &s->tok);
                 else
-                    st = err_at_tok(err, NS_ERR_SYNTAX, &s->tok,
-                                    "expected ',' or '>' after a relation");
+                    st = err_expected(err, &s->tok, "expected ',' or '>' after a relation",
+                                      &open);
                 goto done;
             }
         }
@@ -480,28 +481,8 @@ static ns_status parse_raag(pres_t p, expr_scan_t s, const expr_tok_struct *open
     ns_status st = NS_OK;
 
     while (s->tok.kind == EXPR_TOK_NAME) {
-        expr_tok_struct t = s->tok;
-        slong prev = names_find(p->gens, t.start, t.len);
-        if (prev >= 0) {
-            st = nserr_set(err, NS_ERR_INPUT, t.line, t.col,
-                           "vertex '%.*s' listed twice (first at %d:%d)", short_len(t.len),
-                           t.start, vl[prev], vc[prev]);
+        if ((st = add_named_gen(p, &vl, &vc, &s->tok, "vertex", "vertices", err)) != NS_OK)
             goto done;
-        }
-        if (p->gens->n >= PRES_MAX_GENS) {
-            st = nserr_set(err, NS_ERR_LIMIT, t.line, t.col, "more than %d vertices",
-                           PRES_MAX_GENS);
-            goto done;
-        }
-        char *name = flint_malloc(t.len + 1);
-        memcpy(name, t.start, t.len);
-        name[t.len] = '\0';
-        names_add(p->gens, name);
-        flint_free(name);
-        vl = flint_realloc(vl, sizeof(int) * p->gens->n);
-        vc = flint_realloc(vc, sizeof(int) * p->gens->n);
-        vl[p->gens->n - 1] = t.line;
-        vc[p->gens->n - 1] = t.col;
         _expr_scan_next(s);
         if (s->tok.kind == EXPR_TOK_COMMA)
             _expr_scan_next(s);
@@ -571,12 +552,7 @@ static ns_status parse_raag(pres_t p, expr_scan_t s, const expr_tok_struct *open
         }
     }
     if (s->tok.kind != EXPR_TOK_RPAREN) {
-        if (s->tok.kind == EXPR_TOK_END)
-            st = nserr_set(err, NS_ERR_SYNTAX, s->tok.line, s->tok.col,
-                           "expected ')' to close '(' opened at %d:%d", open->line, open->col);
-        else
-            st = err_at_tok(err, NS_ERR_SYNTAX, &s->tok,
-                            "expected a vertex, ';', an edge u-v or ')'");
+        st = err_expected(err, &s->tok, "expected a vertex, ';', an edge u-v or ')'", open);
         goto done;
     }
     _expr_scan_next(s);
@@ -683,13 +659,8 @@ static ns_status parse_family(pres_t p, expr_scan_t s, nserr_t err)
         v = (long)fmpz_get_si(x);
         fmpz_clear(x);
         _expr_scan_next(s);
-        if (s->tok.kind != EXPR_TOK_RPAREN) {
-            if (s->tok.kind == EXPR_TOK_END)
-                return nserr_set(err, NS_ERR_SYNTAX, s->tok.line, s->tok.col,
-                                 "expected ')' to close '(' opened at %d:%d", open.line,
-                                 open.col);
-            return err_at_tok(err, NS_ERR_SYNTAX, &s->tok, "expected ')'");
-        }
+        if (s->tok.kind != EXPR_TOK_RPAREN)
+            return err_expected(err, &s->tok, "expected ')'", &open);
         _expr_scan_next(s);
         switch (f) {
         case 0: build_free(p, v); break;
@@ -734,68 +705,50 @@ ns_status pres_parse(pres_t out, const char *text, int line, int col, nserr_t er
 /* ------------------------------------------------------------------------ */
 /* Printing                                                                  */
 
-typedef struct {
-    char *s;
-    size_t len, cap;
-} strbuf;
-
-static void sb_puts(strbuf *b, const char *s)
+static void put_owned(strbuf_t b, char *s)
 {
-    size_t n = strlen(s);
-    if (b->len + n + 1 > b->cap) {
-        size_t cap = b->cap ? b->cap : 64;
-        while (b->len + n + 1 > cap)
-            cap *= 2;
-        b->s = flint_realloc(b->s, cap);
-        b->cap = cap;
-    }
-    memcpy(b->s + b->len, s, n + 1);
-    b->len += n;
-}
-
-static void sb_put_owned(strbuf *b, char *s)
-{
-    sb_puts(b, s);
+    strbuf_puts(b, s);
     flint_free(s);
 }
 
 /* A relation parsed from "u = v" (its text has the '=') prints that way
  * again; its tree is u v^-1. */
-static void put_relation(strbuf *b, const pres_t p, slong i)
+static void put_relation(strbuf_t b, const pres_t p, slong i)
 {
     const expr_node *r = p->rels[i].root;
 
     if (p->text != NULL && p->text[i] != NULL && strchr(p->text[i], '=') != NULL &&
         r != NULL && r->kind == EXPR_MUL && r->nkids == 2 && r->kids[1]->kind == EXPR_POW &&
         r->kids[1]->nkids == 1 && fmpz_equal_si(r->kids[1]->exp, -1)) {
-        sb_put_owned(b, expr_node_get_str(r->kids[0], p->gens));
-        sb_puts(b, " = ");
-        sb_put_owned(b, expr_node_get_str(r->kids[1]->kids[0], p->gens));
+        put_owned(b, expr_node_get_str(r->kids[0], p->gens));
+        strbuf_puts(b, " = ");
+        put_owned(b, expr_node_get_str(r->kids[1]->kids[0], p->gens));
         return;
     }
-    sb_put_owned(b, expr_node_get_str(r, p->gens));
+    put_owned(b, expr_node_get_str(r, p->gens));
 }
 
 char *pres_get_str(const pres_t p)
 {
-    strbuf b = {NULL, 0, 0};
+    strbuf_t b;
 
-    sb_puts(&b, "<");
+    strbuf_init(b);
+    strbuf_puts(b, "<");
     for (slong i = 0; i < p->gens->n; i++) {
         if (i > 0)
-            sb_puts(&b, ", ");
-        sb_puts(&b, p->gens->name[i]);
+            strbuf_puts(b, ", ");
+        strbuf_puts(b, p->gens->name[i]);
     }
     if (p->nrels > 0) {
-        sb_puts(&b, " | ");
+        strbuf_puts(b, " | ");
         for (slong i = 0; i < p->nrels; i++) {
             if (i > 0)
-                sb_puts(&b, ", ");
-            put_relation(&b, p, i);
+                strbuf_puts(b, ", ");
+            put_relation(b, p, i);
         }
     }
-    sb_puts(&b, ">");
-    return b.s;
+    strbuf_puts(b, ">");
+    return strbuf_take(b);
 }
 
 /* ------------------------------------------------------------------------ */
@@ -897,15 +850,15 @@ done:
 
 char *pres_get_map_str(const expr_struct *images, const pres_t p)
 {
-    strbuf b = {NULL, 0, 0};
+    strbuf_t b;
 
-    sb_puts(&b, "");
+    strbuf_init(b);
     for (slong i = 0; i < p->gens->n; i++) {
         if (i > 0)
-            sb_puts(&b, ", ");
-        sb_puts(&b, p->gens->name[i]);
-        sb_puts(&b, " -> ");
-        sb_put_owned(&b, expr_node_get_str(images[i].root, p->gens));
+            strbuf_puts(b, ", ");
+        strbuf_puts(b, p->gens->name[i]);
+        strbuf_puts(b, " -> ");
+        put_owned(b, expr_node_get_str(images[i].root, p->gens));
     }
-    return b.s;
+    return strbuf_take(b);
 }

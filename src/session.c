@@ -8,6 +8,8 @@
 #include <unistd.h>
 
 #include "session.h"
+#include "strbuf.h"
+#include "utf8.h"
 
 #define SESSION_MAGIC "nilstep session 1"
 
@@ -51,41 +53,16 @@ static void text_copy(session_text_struct *dst, const session_text_struct *src)
         text_set(dst, src->text, strlen(src->text), src->line, src->col);
 }
 
-/* Growable string. */
-typedef struct {
-    char *s;
-    size_t len, cap;
-} strbuf;
-
-static void sb_putn(strbuf *b, const char *s, size_t n)
-{
-    if (b->len + n + 1 > b->cap) {
-        size_t cap = b->cap ? b->cap : 256;
-        while (b->len + n + 1 > cap)
-            cap *= 2;
-        b->s = flint_realloc(b->s, cap);
-        b->cap = cap;
-    }
-    memcpy(b->s + b->len, s, n);
-    b->len += n;
-    b->s[b->len] = '\0';
-}
-
-static void sb_puts(strbuf *b, const char *s)
-{
-    sb_putn(b, s, strlen(s));
-}
-
 /* The normal form of a text: its lines without leading and trailing blanks,
  * empty lines left out, joined by '\n'.  NULL counts as empty.  This is
  * what survives a write and a read, so it is what equality compares. */
 static char *norm_text(const char *t)
 {
-    strbuf b = {NULL, 0, 0};
+    strbuf_t b;
 
-    sb_puts(&b, "");
+    strbuf_init(b);
     if (t == NULL)
-        return b.s;
+        return strbuf_take(b);
     while (*t != '\0') {
         const char *e = strchr(t, '\n'), *a = t, *z;
         if (e == NULL)
@@ -96,13 +73,13 @@ static char *norm_text(const char *t)
         while (z > a && is_blank(z[-1]))
             z--;
         if (z > a) {
-            if (b.len > 0)
-                sb_puts(&b, "\n");
-            sb_putn(&b, a, (size_t)(z - a));
+            if (b->len > 0)
+                strbuf_puts(b, "\n");
+            strbuf_putn(b, a, (size_t)(z - a));
         }
         t = *e ? e + 1 : e;
     }
-    return b.s;
+    return strbuf_take(b);
 }
 
 static int text_is_blank(const char *t)
@@ -125,32 +102,6 @@ static int col_of(const char *ls, const char *p)
     return col;
 }
 
-/* Length of the valid UTF-8 sequence at u (n bytes available), 0 if none. */
-static size_t utf8_len(const unsigned char *u, size_t n)
-{
-    size_t need;
-
-    if (u[0] < 0x80)
-        return 1;
-    if (u[0] >= 0xC2 && u[0] <= 0xDF)
-        need = 2;
-    else if (u[0] >= 0xE0 && u[0] <= 0xEF)
-        need = 3;
-    else if (u[0] >= 0xF0 && u[0] <= 0xF4)
-        need = 4;
-    else
-        return 0;
-    if (n < need)
-        return 0;
-    for (size_t i = 1; i < need; i++)
-        if ((u[i] & 0xC0) != 0x80)
-            return 0;
-    if ((need == 3 && u[0] == 0xE0 && u[1] < 0xA0) || (need == 3 && u[0] == 0xED && u[1] >= 0xA0) ||
-        (need == 4 && u[0] == 0xF0 && u[1] < 0x90) || (need == 4 && u[0] == 0xF4 && u[1] >= 0x90))
-        return 0;
-    return need;
-}
-
 /* Checks for NUL bytes and invalid UTF-8, reporting the first with its
  * position. */
 static ns_status check_bytes(const char *buf, size_t len, nserr_t err)
@@ -171,7 +122,7 @@ static ns_status check_bytes(const char *buf, size_t len, nserr_t err)
             i++;
             continue;
         }
-        k = utf8_len(u + i, len - i);
+        k = utf8_char_len(u + i, len - i);
         if (k == 0)
             return nserr_set(err, NS_ERR_SYNTAX, line, col_of(ls, buf + i),
                              "invalid UTF-8 (byte 0x%02x)", u[i]);
@@ -576,12 +527,11 @@ done:
 
 /* Free text: the first line of the value, then each continuation line
  * without its indentation; comment and blank lines left out. */
-static void free_text(strbuf *b, const entry *e)
+static void free_text(strbuf_t b, const entry *e)
 {
     const char *p = e->vstart;
     int first = 1;
 
-    sb_puts(b, "");
     while (p < e->vend) {
         const char *le = memchr(p, '\n', (size_t)(e->vend - p));
         const char *a = p, *z;
@@ -598,8 +548,8 @@ static void free_text(strbuf *b, const entry *e)
             z--;
         if (z > a) {
             if (b->len > 0)
-                sb_puts(b, "\n");
-            sb_putn(b, a, (size_t)(z - a));
+                strbuf_puts(b, "\n");
+            strbuf_putn(b, a, (size_t)(z - a));
         }
         first = 0;
         p = le + 1;
@@ -616,13 +566,14 @@ static ns_status finish_entry(session_struct *s, const entry *e, nserr_t err)
     switch (e->key) {
     case K_TITLE:
     case K_NOTE: {
-        strbuf b = {NULL, 0, 0};
-        free_text(&b, e);
+        strbuf_t b;
+        strbuf_init(b);
+        free_text(b, e);
         if (e->key == K_TITLE)
-            text_set(&s->title, b.s, b.len, e->vline, e->vcol);
+            text_set(&s->title, b->s, b->len, e->vline, e->vcol);
         else
-            push_note(s, b.s, b.len, e->vline, e->vcol);
-        flint_free(b.s);
+            push_note(s, b->s, b->len, e->vline, e->vcol);
+        strbuf_clear(b);
         return NS_OK;
     }
     case K_GROUP:
@@ -824,27 +775,27 @@ ns_status session_load(session_t s, const char *path, nserr_t err)
 
 /* "key" padded to column 9, then the normal form of the text with
  * continuation lines indented by 4 spaces. */
-static void put_entry(strbuf *b, const char *key, const char *prefix, const char *text)
+static void put_entry(strbuf_t b, const char *key, const char *prefix, const char *text)
 {
     char *n = norm_text(text);
     char pad[16];
     const char *p = n;
 
     snprintf(pad, sizeof pad, "%-8s", key);
-    sb_puts(b, pad);
+    strbuf_puts(b, pad);
     if (prefix != NULL)
-        sb_puts(b, prefix);
+        strbuf_puts(b, prefix);
     while (*p != '\0') {
         const char *e = strchr(p, '\n');
         if (e == NULL) {
-            sb_puts(b, p);
+            strbuf_puts(b, p);
             break;
         }
-        sb_putn(b, p, (size_t)(e - p));
-        sb_puts(b, "\n    ");
+        strbuf_putn(b, p, (size_t)(e - p));
+        strbuf_puts(b, "\n    ");
         p = e + 1;
     }
-    sb_puts(b, "\n");
+    strbuf_puts(b, "\n");
     flint_free(n);
 }
 
@@ -855,20 +806,21 @@ static int has_text(const char *t)
 
 char *session_get_str(const session_t s)
 {
-    strbuf b = {NULL, 0, 0};
+    strbuf_t b;
     char num[64];
 
-    sb_puts(&b, SESSION_MAGIC "\n");
+    strbuf_init(b);
+    strbuf_puts(b, SESSION_MAGIC "\n");
     if (has_text(s->title.text))
-        put_entry(&b, "title", NULL, s->title.text);
+        put_entry(b, "title", NULL, s->title.text);
     if (has_text(s->group.text))
-        put_entry(&b, "group", NULL, s->group.text);
+        put_entry(b, "group", NULL, s->group.text);
     if (s->cls > 0) {
         snprintf(num, sizeof num, "%d", s->cls);
-        put_entry(&b, "class", NULL, num);
+        put_entry(b, "class", NULL, num);
     }
     if (has_text(s->map.text))
-        put_entry(&b, "map", NULL, s->map.text);
+        put_entry(b, "map", NULL, s->map.text);
     if (s->cursor_layer >= 0 || s->cursor_image >= 0) {
         char v[96] = "";
         if (s->cursor_layer >= 0)
@@ -876,7 +828,7 @@ char *session_get_str(const session_t s)
         if (s->cursor_image >= 0)
             snprintf(v + strlen(v), sizeof v - strlen(v), "%simage %ld", v[0] ? " " : "",
                      (long)s->cursor_image);
-        put_entry(&b, "cursor", NULL, v);
+        put_entry(b, "cursor", NULL, v);
     }
     /* steps first: the word runs to the end of the value and may end in a
      * comment. */
@@ -887,15 +839,15 @@ char *session_get_str(const session_t s)
                      has_text(s->iterate_word.text) ? " " : "");
         if (has_text(s->iterate_word.text)) {
             strcat(v, "word ");
-            put_entry(&b, "iterate", v, s->iterate_word.text);
+            put_entry(b, "iterate", v, s->iterate_word.text);
         } else {
-            put_entry(&b, "iterate", NULL, v);
+            put_entry(b, "iterate", NULL, v);
         }
     }
     for (slong i = 0; i < s->nnotes; i++)
         if (has_text(s->notes[i].text))
-            put_entry(&b, "note", NULL, s->notes[i].text);
-    return b.s;
+            put_entry(b, "note", NULL, s->notes[i].text);
+    return strbuf_take(b);
 }
 
 ns_status session_save(const session_t s, const char *path, nserr_t err)

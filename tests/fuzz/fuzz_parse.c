@@ -6,8 +6,8 @@
  *
  * Not part of the default build.  With clang and libFuzzer:
  *   clang -std=c17 -D_XOPEN_SOURCE=700 -g -O1 -fsanitize=fuzzer,address,undefined \
- *       -Isrc src/nserr.c src/expr.c src/pres.c src/session.c \
- *       tests/fuzz/fuzz_parse.c -lflint -lgmp -o fuzz_parse
+ *       -Isrc src/nserr.c src/expr.c src/pres.c src/session.c src/strbuf.c \
+ *       src/utf8.c tests/fuzz/fuzz_parse.c -lflint -lgmp -o fuzz_parse
  *   ./fuzz_parse -max_len=4096 corpus/
  * Without libFuzzer, add -DFUZZ_STANDALONE_MAIN (and drop "fuzzer," from
  * -fsanitize): the program then runs the target once on each file named on
