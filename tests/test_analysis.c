@@ -32,38 +32,14 @@
 #include <flint/ulong_extras.h>
 
 #include "analysis.h"
+#include "testutil.h"
 
 /* ------------------------------------------------------------------------ */
 /* Random numbers, seeds, iteration counts                                   */
 
-static uint64_t rng_state;
-
-static uint64_t rng_next(void)
-{
-    /* splitmix64 (S. Vigna) */
-    uint64_t z = (rng_state += 0x9E3779B97F4A7C15ULL);
-    z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ULL;
-    z = (z ^ (z >> 27)) * 0x94D049BB133111EBULL;
-    return z ^ (z >> 31);
-}
-
-static long rnd(long lo, long hi)
-{
-    return lo + (long)(rng_next() % (uint64_t)(hi - lo + 1));
-}
-
 static void seed(const char *test)
 {
-    const char *e = getenv("NILSTEP_SEED");
-    rng_state = e ? strtoull(e, NULL, 0) : 20261201ULL;
-    printf("# %s: seed %llu (NILSTEP_SEED replays it)\n", test, (unsigned long long)rng_state);
-}
-
-static long iters(long n)
-{
-    const char *e = getenv("NILSTEP_ITER");
-    long k = e ? atol(e) : 1;
-    return n * (k > 0 ? k : 1);
+    rng_seed_test(test, 20261201ULL, "NILSTEP_SEED replays it");
 }
 
 /* ------------------------------------------------------------------------ */
@@ -75,8 +51,7 @@ static void set_group(analysis_t A, const char *pres, slong c)
     nserr_t err;
     pres_init(G);
     nserr_init(err);
-    if (pres_parse(G, pres, 1, 1, err) != NS_OK)
-        fail_msg("pres_parse(%s): %s", pres, err->msg);
+    parse_pres_or_fail(G, pres);
     if (analysis_set_group(A, G, c, NULL, err) != NS_OK)
         fail_msg("analysis_set_group(%s, %ld): %s", pres, (long)c, err->msg);
     pres_clear(G);
@@ -141,7 +116,7 @@ static void random_matrix(fmpz_mat_t M, long lo, long hi)
 {
     for (slong i = 0; i < fmpz_mat_nrows(M); i++)
         for (slong k = 0; k < fmpz_mat_ncols(M); k++)
-            fmpz_set_si(fmpz_mat_entry(M, i, k), rnd(lo, hi));
+            fmpz_set_si(fmpz_mat_entry(M, i, k), rng_range(lo, hi));
 }
 
 /* A random element of GL2(Z): a product of elementary matrices, with a
@@ -152,15 +127,15 @@ static void random_gl2(fmpz_mat_t M)
     fmpz_mat_t E, T;
     fmpz_mat_init(E, 2, 2);
     fmpz_mat_init(T, 2, 2);
-    long steps = rnd(1, 4);
+    long steps = rng_range(1, 4);
     for (long s = 0; s < steps; s++) {
         fmpz_mat_one(E);
-        long t = rnd(1, 2) * (rnd(0, 1) ? 1 : -1);
+        long t = rng_range(1, 2) * (rng_range(0, 1) ? 1 : -1);
         fmpz_set_si(fmpz_mat_entry(E, s % 2, 1 - s % 2), t);
         fmpz_mat_mul(T, M, E);
         fmpz_mat_swap(T, M);
     }
-    if (rnd(0, 1)) {
+    if (rng_range(0, 1)) {
         fmpz_neg(fmpz_mat_entry(M, 0, 1), fmpz_mat_entry(M, 0, 1));
         fmpz_neg(fmpz_mat_entry(M, 1, 1), fmpz_mat_entry(M, 1, 1));
     }
@@ -173,18 +148,18 @@ static void random_gl2(fmpz_mat_t M)
 static const char *random_tail(char *buf, size_t cap, const analysis_t A)
 {
     slong X = A->nq->pres->gens->n;
-    long parts = rnd(0, 2);
+    long parts = rng_range(0, 2);
     if (parts == 0)
         return NULL;
     buf[0] = '\0';
     for (long p = 0; p < parts; p++) {
         size_t len = strlen(buf);
-        const char *x = gen_name(A, rnd(0, X - 1)), *y = gen_name(A, rnd(0, X - 1));
-        if (rnd(0, 1))
-            snprintf(buf + len, cap - len, "%s[%s,%s]^%ld", p ? " " : "", x, y, rnd(-2, 2));
+        const char *x = gen_name(A, rng_range(0, X - 1)), *y = gen_name(A, rng_range(0, X - 1));
+        if (rng_range(0, 1))
+            snprintf(buf + len, cap - len, "%s[%s,%s]^%ld", p ? " " : "", x, y, rng_range(-2, 2));
         else
             snprintf(buf + len, cap - len, "%s[%s,%s,%s]", p ? " " : "", x, y,
-                     gen_name(A, rnd(0, X - 1)));
+                     gen_name(A, rng_range(0, X - 1)));
     }
     return buf;
 }
@@ -247,9 +222,9 @@ static void torus_lefschetz_and_reidemeister(void **state)
         "<a, b, c, d | [a,b], [a,c], [a,d], [b,c], [b,d], [c,d]>",
     };
     seed("torus_lefschetz_and_reidemeister");
-    long cases = iters(40), infinite = 0, finite = 0;
+    long cases = count_scaled_by("NILSTEP_ITER", 40), infinite = 0, finite = 0;
     for (long t = 0; t < cases; t++) {
-        slong n = rnd(1, 4), c = rnd(1, 3);
+        slong n = rng_range(1, 4), c = rng_range(1, 3);
         analysis_t A;
         analysis_init(A);
         set_group(A, pres[n - 1], c);
@@ -364,7 +339,7 @@ static void free_nilpotent_brandt_traces(void **state)
         fmpz_mat_t M, P;
         fmpz_mat_init(M, r, r);
         fmpz_mat_init(P, r, r);
-        for (long t = 0; t < iters(g[gi].cases); t++) {
+        for (long t = 0; t < count_scaled_by("NILSTEP_ITER", g[gi].cases); t++) {
             random_matrix(M, -2, 2);
             const char *tail[4] = {NULL, NULL, NULL, NULL};
             char tb[4][128], map[1024];
@@ -428,7 +403,7 @@ static void heisenberg_centre_times_det(void **state)
     fmpz_mat_init(M, 2, 2);
     fmpz_init(d);
     char map[1024], w0[256], w1[256], hmap[1100];
-    for (long t = 0; t < iters(60); t++) {
+    for (long t = 0; t < count_scaled_by("NILSTEP_ITER", 60); t++) {
         int aut = t % 2;
         if (aut)
             random_gl2(M);
@@ -461,7 +436,7 @@ static void heisenberg_centre_times_det(void **state)
             fail_msg("heisenberg(1): automorphism %s reported hyperbolic", hmap);
 
         /* z -> z^k is well defined exactly when k = det M1 */
-        long k = fmpz_get_si(d) + (t % 3 == 0 ? 0 : rnd(1, 2));
+        long k = fmpz_get_si(d) + (t % 3 == 0 ? 0 : rng_range(1, 2));
         snprintf(hmap, sizeof hmap, "x1 -> %s, y1 -> %s, z -> z^%ld", w0, w1, k);
         set_map(H, hmap);
         if (H->valid != (k == fmpz_get_si(d)))
@@ -491,7 +466,7 @@ static void free_nilpotent_rank2_class4_r_infinity(void **state)
     fmpz_mat_t M;
     fmpz_mat_init(M, 2, 2);
     char map[1024], tb[2][128];
-    for (long t = 0; t < iters(40); t++) {
+    for (long t = 0; t < count_scaled_by("NILSTEP_ITER", 40); t++) {
         random_gl2(M);
         const char *tail[2] = {random_tail(tb[0], sizeof tb[0], A),
                                random_tail(tb[1], sizeof tb[1], A)};
@@ -629,7 +604,7 @@ static void growth_rate_is_rho1(void **state)
         fmpz_mat_t M;
         fmpz_mat_init(M, g[gi].r, g[gi].r);
         char map[1024];
-        for (long t = 0; t < iters(10); t++) {
+        for (long t = 0; t < count_scaled_by("NILSTEP_ITER", 10); t++) {
             random_matrix(M, -2, 2);
             map_text_from_matrix(map, sizeof map, A, M, NULL);
             set_map(A, map);

@@ -26,45 +26,14 @@
 #include <flint/fmpz_mat.h>
 
 #include "elim.h"
+#include "testutil.h"
 
 /* ------------------------------------------------------ seed, random */
-
-static uint64_t rng_state;
-static double iter_scale = 1.0;
-
-static uint64_t rnd64(void)
-{
-    /* splitmix64 (S. Vigna's public-domain generator) */
-    uint64_t z = (rng_state += 0x9e3779b97f4a7c15u);
-    z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9u;
-    z = (z ^ (z >> 27)) * 0x94d049bb133111ebu;
-    return z ^ (z >> 31);
-}
-
-static slong rnd_range(slong lo, slong hi)
-{
-    return lo + (slong)(rnd64() % (uint64_t)(hi - lo + 1));
-}
-
-static slong iters(slong base)
-{
-    double v = base * iter_scale;
-    return v < 1 ? 1 : (slong)v;
-}
 
 static int setup_seed(void **state)
 {
     (void)state;
-    const char *s = getenv("NILSTEP_SEED");
-    uint64_t seed = s && *s ? strtoull(s, NULL, 0) : 20261201u;
-    const char *it = getenv("NILSTEP_ITER");
-    if (it && *it && atof(it) > 0)
-        iter_scale = atof(it);
-    rng_state = seed;
-    printf("test_elim: seed %llu, iteration scale %g "
-           "(NILSTEP_SEED, NILSTEP_ITER to change)\n",
-           (unsigned long long)seed, iter_scale);
-    return 0;
+    return rng_setup_program("test_elim");
 }
 
 /* A random m x n matrix in one of several styles: sparse with small
@@ -74,13 +43,13 @@ static int setup_seed(void **state)
 static void rnd_matrix(fmpz_mat_t A)
 {
     slong m = fmpz_mat_nrows(A), n = fmpz_mat_ncols(A);
-    int style = (int)(rnd64() % 5);
+    int style = (int)(rng_next() % 5);
     fmpz_mat_zero(A);
     for (slong i = 0; i < m; i++) {
-        if (style == 4 && i >= 2 && rnd64() % 2) {
+        if (style == 4 && i >= 2 && rng_next() % 2) {
             /* a combination of two earlier rows */
-            slong p = rnd_range(0, i - 1), q = rnd_range(0, i - 1);
-            slong a = rnd_range(-3, 3), b = rnd_range(-3, 3);
+            slong p = rng_range(0, i - 1), q = rng_range(0, i - 1);
+            slong a = rng_range(-3, 3), b = rng_range(-3, 3);
             for (slong j = 0; j < n; j++) {
                 fmpz_mul_si(fmpz_mat_entry(A, i, j), fmpz_mat_entry(A, p, j), a);
                 fmpz_addmul_si(fmpz_mat_entry(A, i, j), fmpz_mat_entry(A, q, j), b);
@@ -91,28 +60,28 @@ static void rnd_matrix(fmpz_mat_t A)
             fmpz *x = fmpz_mat_entry(A, i, j);
             switch (style) {
             case 0: /* sparse */
-                if (rnd64() % 3 == 0)
-                    fmpz_set_si(x, rnd_range(-6, 6));
+                if (rng_next() % 3 == 0)
+                    fmpz_set_si(x, rng_range(-6, 6));
                 break;
             case 1: /* dense small */
-                fmpz_set_si(x, rnd_range(-9, 9));
+                fmpz_set_si(x, rng_range(-9, 9));
                 break;
             case 2: /* mostly units and even numbers */
-                if (rnd64() % 2)
-                    fmpz_set_si(x, (slong[]){-1, 1, 2, -2, 4, 6}[rnd64() % 6]);
+                if (rng_next() % 2)
+                    fmpz_set_si(x, (slong[]){-1, 1, 2, -2, 4, 6}[rng_next() % 6]);
                 break;
             case 3: /* some huge entries */
-                if (rnd64() % 3 == 0) {
-                    fmpz_set_si(x, rnd_range(-5, 5));
-                    if (rnd64() % 4 == 0) {
-                        fmpz_mul_2exp(x, x, 70 + rnd64() % 60);
-                        fmpz_add_si(x, x, rnd_range(-7, 7));
+                if (rng_next() % 3 == 0) {
+                    fmpz_set_si(x, rng_range(-5, 5));
+                    if (rng_next() % 4 == 0) {
+                        fmpz_mul_2exp(x, x, 70 + rng_next() % 60);
+                        fmpz_add_si(x, x, rng_range(-7, 7));
                     }
                 }
                 break;
             default:
-                if (rnd64() % 2)
-                    fmpz_set_si(x, rnd_range(-4, 4));
+                if (rng_next() % 2)
+                    fmpz_set_si(x, rng_range(-4, 4));
             }
         }
     }
@@ -298,7 +267,7 @@ static void quotient_matches_snf(void **state)
 {
     (void)state;
     for (slong it = 0; it < iters(400); it++) {
-        slong m = rnd_range(1, 9), n = rnd_range(1, 8);
+        slong m = rng_range(1, 9), n = rng_range(1, 8);
         fmpz_mat_t A;
         fmpz_mat_init(A, m, n);
         rnd_matrix(A);
@@ -322,7 +291,7 @@ static void pivots_match_hnf(void **state)
 {
     (void)state;
     for (slong it = 0; it < iters(300); it++) {
-        slong m = rnd_range(1, 9), n = rnd_range(1, 8);
+        slong m = rng_range(1, 9), n = rng_range(1, 8);
         fmpz_mat_t A, H;
         fmpz_mat_init(A, m, n);
         fmpz_mat_init(H, m, n);
@@ -358,7 +327,7 @@ static void expressions_kill_exactly_the_lattice(void **state)
     (void)state;
     slong members = 0, others = 0;
     for (slong it = 0; it < iters(300); it++) {
-        slong m = rnd_range(1, 8), n = rnd_range(1, 7);
+        slong m = rng_range(1, 8), n = rng_range(1, 7);
         fmpz_mat_t A, H;
         fmpz_mat_init(A, m, n);
         fmpz_mat_init(H, m, n);
@@ -375,7 +344,7 @@ static void expressions_kill_exactly_the_lattice(void **state)
             /* a random combination of the rows ... */
             _fmpz_vec_zero(v, n);
             for (slong i = 0; i < m; i++) {
-                slong c = rnd_range(-5, 5);
+                slong c = rng_range(-5, 5);
                 for (slong j = 0; j < n; j++)
                     fmpz_addmul_si(v + j, fmpz_mat_entry(A, i, j), c);
             }
@@ -386,11 +355,11 @@ static void expressions_kill_exactly_the_lattice(void **state)
             members++;
             /* ... perturbed at random, judged by both methods */
             if (trial % 2) {
-                slong j = rnd_range(0, n - 1);
-                fmpz_add_si(v + j, v + j, rnd_range(-3, 3));
+                slong j = rng_range(0, n - 1);
+                fmpz_add_si(v + j, v + j, rng_range(-3, 3));
             } else
                 for (slong j = 0; j < n; j++)
-                    fmpz_set_si(v + j, rnd_range(-4, 4));
+                    fmpz_set_si(v + j, rng_range(-4, 4));
             int a = in_lattice_hnf(v, H), b = in_lattice_elim(v, Q);
             if (a != b) {
                 print_matrix("matrix", A);
@@ -413,7 +382,7 @@ static void row_order_does_not_matter(void **state)
 {
     (void)state;
     for (slong it = 0; it < iters(150); it++) {
-        slong m = rnd_range(2, 8), n = rnd_range(1, 7);
+        slong m = rng_range(2, 8), n = rng_range(1, 7);
         fmpz_mat_t A, B;
         fmpz_mat_init(A, m, n);
         fmpz_mat_init(B, m, n);
@@ -423,7 +392,7 @@ static void row_order_does_not_matter(void **state)
         for (slong i = 0; i < m; i++)
             perm[i] = i;
         for (slong i = m - 1; i > 0; i--) {
-            slong j = rnd_range(0, i), t = perm[i];
+            slong j = rng_range(0, i), t = perm[i];
             perm[i] = perm[j];
             perm[j] = t;
         }

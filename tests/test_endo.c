@@ -35,35 +35,11 @@
 #include "layer.h"
 #include "nq.h"
 #include "pres.h"
-
-static uint64_t rng_state;
-
-static uint64_t rng_next(void)
-{
-    /* splitmix64 (S. Vigna) */
-    uint64_t z = (rng_state += 0x9E3779B97F4A7C15ULL);
-    z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ULL;
-    z = (z ^ (z >> 27)) * 0x94D049BB133111EBULL;
-    return z ^ (z >> 31);
-}
-
-static long rnd(long lo, long hi)
-{
-    return lo + (long)(rng_next() % (uint64_t)(hi - lo + 1));
-}
+#include "testutil.h"
 
 static void seed(const char *test)
 {
-    const char *e = getenv("NILSTEP_SEED");
-    rng_state = e ? strtoull(e, NULL, 0) : 20261201ULL;
-    printf("# %s: seed %llu (NILSTEP_SEED replays it)\n", test, (unsigned long long)rng_state);
-}
-
-static long iters(long n)
-{
-    const char *e = getenv("NILSTEP_ITER");
-    long k = e ? atol(e) : 1;
-    return n * (k > 0 ? k : 1);
+    rng_seed_test(test, 20261201ULL, "NILSTEP_SEED replays it");
 }
 
 /* ------------------------------------------------------------------------ */
@@ -71,34 +47,44 @@ static long iters(long n)
 typedef struct {
     const char *pres;
     slong c;
+    const char *not_onto; /* a map onto a proper subgroup */
 } group_case;
 
 static const group_case groups[] = {
-    {"free(2)", 4},
-    {"free(3)", 3},
-    {"heisenberg(1)", 2},
+    {"free(2)", 4, "a -> a^2, b -> b"},
+    {"free(3)", 3, "a -> a, b -> b c, c -> c^3"},
+    {"heisenberg(1)", 2, "x1 -> x1 y1, y1 -> x1^2 y1^2, z -> [x1 y1, x1^2 y1^2]"},
 };
 
-static void compute_quotient(nq_t Q, const char *pres, slong c)
+/* compute_quotient, for the groups above: every pc generator has infinite
+ * order. */
+static void compute_torsion_free(nq_t Q, const char *pres, slong c)
 {
-    pres_t G;
-    nserr_t err;
-    pres_init(G);
-    nserr_init(err);
-    if (pres_parse(G, pres, 1, 1, err) != NS_OK)
-        fail_msg("pres_parse(%s): %s", pres, err->msg);
-    if (nq_compute(Q, G, c, NULL, err) != NS_OK)
-        fail_msg("nq_compute(%s, %ld): %s", pres, (long)c, err->msg);
+    compute_quotient(Q, pres, c);
     for (slong k = 0; k < Q->pcp->n; k++)
         assert_true(fmpz_is_zero(Q->pcp->relorder + k));
-    pres_clear(G);
-    nserr_clear(err);
+}
+
+/* Runs check on the quotient of every group above, with a work space for
+ * its arithmetic. */
+static void for_every_group(void (*check)(const nq_t Q, pcp_work_t W, const group_case *gc))
+{
+    for (size_t gi = 0; gi < sizeof groups / sizeof groups[0]; gi++) {
+        nq_t Q;
+        nq_init(Q);
+        compute_torsion_free(Q, groups[gi].pres, groups[gi].c);
+        pcp_work_t W;
+        pcp_work_init(W, Q->pcp);
+        check(Q, W, groups + gi);
+        pcp_work_clear(W);
+        nq_clear(Q);
+    }
 }
 
 static void random_elt(fmpz *g, slong n, long bound)
 {
     for (slong k = 0; k < n; k++)
-        fmpz_set_si(g + k, rnd(-bound, bound));
+        fmpz_set_si(g + k, rng_range(-bound, bound));
 }
 
 /* A random endomorphism given by a map text whose layer-1 part is M
@@ -113,18 +99,18 @@ static void random_map_text(char *buf, size_t cap, const nq_t Q, int automorphis
      * then possibly one column negated (det -1) */
     for (slong i = 0; i < r; i++)
         for (slong k = 0; k < r; k++)
-            M[i][k] = automorphism ? (i == k ? 1 : 0) : rnd(-2, 2);
+            M[i][k] = automorphism ? (i == k ? 1 : 0) : rng_range(-2, 2);
     if (automorphism) {
         for (long s = 0; s < 3; s++) {
-            slong i = rnd(0, r - 1), k = rnd(0, r - 1);
+            slong i = rng_range(0, r - 1), k = rng_range(0, r - 1);
             if (i == k)
                 continue;
-            long t = rnd(0, 1) ? 1 : -1;
+            long t = rng_range(0, 1) ? 1 : -1;
             /* column k += t * column i */
             for (slong row = 0; row < r; row++)
                 M[row][k] += t * M[row][i];
         }
-        if (rnd(0, 1))
+        if (rng_range(0, 1))
             for (slong row = 0; row < r; row++)
                 M[row][0] = -M[row][0];
     }
@@ -137,11 +123,11 @@ static void random_map_text(char *buf, size_t cap, const nq_t Q, int automorphis
                 snprintf(img[k] + len, sizeof img[k] - len, "%s%s^%ld", len ? " " : "",
                          g->name[i], M[i][k]);
             }
-        long parts = rnd(0, 2);
+        long parts = rng_range(0, 2);
         for (long p = 0; p < parts; p++) {
             size_t len = strlen(img[k]);
             snprintf(img[k] + len, sizeof img[k] - len, "%s[%s,%s]^%ld", len ? " " : "",
-                     g->name[rnd(0, r - 1)], g->name[rnd(0, r - 1)], rnd(-3, 3));
+                     g->name[rng_range(0, r - 1)], g->name[rng_range(0, r - 1)], rng_range(-3, 3));
         }
         if (!img[k][0])
             strcpy(img[k], "1");
@@ -188,98 +174,184 @@ static void assert_elt_equal(const nq_t Q, const fmpz *u, const fmpz *v, const c
 
 /* ------------------------------------------------------------------------ */
 
+static void endo_is_a_homomorphism_on(const nq_t Q, pcp_work_t W, const group_case *gc)
+{
+    (void)gc;
+    slong n = Q->pcp->n;
+    fmpz *g = _fmpz_vec_init(n), *h = _fmpz_vec_init(n), *gh = _fmpz_vec_init(n);
+    fmpz *ag = _fmpz_vec_init(n), *ah = _fmpz_vec_init(n), *agh = _fmpz_vec_init(n);
+    char map[1024];
+    for (long t = 0; t < count_scaled_by("NILSTEP_ITER", 10); t++) {
+        endo_t E;
+        endo_init(E);
+        random_map_text(map, sizeof map, Q, 0);
+        set_endo(E, Q, map);
+        /* the images of the generators are what the text says */
+        for (slong x = 0; x < Q->pres->gens->n; x++) {
+            endo_apply(E, Q, ag, Q->images + x * n, W);
+            assert_elt_equal(Q, ag, E->gen_img + x * n, "alpha(generator)", map);
+        }
+        for (long s = 0; s < 5; s++) {
+            random_elt(g, n, 4);
+            random_elt(h, n, 4);
+            pcp_elt_mul(W, gh, g, h);
+            endo_apply(E, Q, ag, g, W);
+            endo_apply(E, Q, ah, h, W);
+            endo_apply(E, Q, agh, gh, W);
+            pcp_elt_mul(W, ag, ag, ah);
+            assert_elt_equal(Q, agh, ag, "alpha(g h) vs alpha(g) alpha(h)", map);
+        }
+        endo_clear(E);
+    }
+    assert_false(W->overflow);
+    _fmpz_vec_clear(g, n);
+    _fmpz_vec_clear(h, n);
+    _fmpz_vec_clear(gh, n);
+    _fmpz_vec_clear(ag, n);
+    _fmpz_vec_clear(ah, n);
+    _fmpz_vec_clear(agh, n);
+}
+
 static void endo_is_a_homomorphism(void **state)
 {
     (void)state;
     seed("endo_is_a_homomorphism");
-    for (size_t gi = 0; gi < sizeof groups / sizeof groups[0]; gi++) {
-        nq_t Q;
-        nq_init(Q);
-        compute_quotient(Q, groups[gi].pres, groups[gi].c);
-        slong n = Q->pcp->n;
-        pcp_work_t W;
-        pcp_work_init(W, Q->pcp);
-        fmpz *g = _fmpz_vec_init(n), *h = _fmpz_vec_init(n), *gh = _fmpz_vec_init(n);
-        fmpz *ag = _fmpz_vec_init(n), *ah = _fmpz_vec_init(n), *agh = _fmpz_vec_init(n);
-        char map[1024];
-        for (long t = 0; t < iters(10); t++) {
-            endo_t E;
-            endo_init(E);
-            random_map_text(map, sizeof map, Q, 0);
-            set_endo(E, Q, map);
-            /* the images of the generators are what the text says */
-            for (slong x = 0; x < Q->pres->gens->n; x++) {
-                endo_apply(E, Q, ag, Q->images + x * n, W);
-                assert_elt_equal(Q, ag, E->gen_img + x * n, "alpha(generator)", map);
-            }
-            for (long s = 0; s < 5; s++) {
-                random_elt(g, n, 4);
-                random_elt(h, n, 4);
-                pcp_elt_mul(W, gh, g, h);
-                endo_apply(E, Q, ag, g, W);
-                endo_apply(E, Q, ah, h, W);
-                endo_apply(E, Q, agh, gh, W);
-                pcp_elt_mul(W, ag, ag, ah);
-                assert_elt_equal(Q, agh, ag, "alpha(g h) vs alpha(g) alpha(h)", map);
-            }
-            endo_clear(E);
+    for_every_group(endo_is_a_homomorphism_on);
+}
+
+static void endo_compose_is_apply_in_sequence_on(const nq_t Q, pcp_work_t W, const group_case *gc)
+{
+    (void)gc;
+    nserr_t err;
+    nserr_init(err);
+    slong n = Q->pcp->n;
+    fmpz *g = _fmpz_vec_init(n), *u = _fmpz_vec_init(n), *v = _fmpz_vec_init(n);
+    char ma[1024], mb[1024], both[2100];
+    for (long t = 0; t < count_scaled_by("NILSTEP_ITER", 10); t++) {
+        endo_t a, b, ab;
+        endo_init(a);
+        endo_init(b);
+        endo_init(ab);
+        random_map_text(ma, sizeof ma, Q, 0);
+        random_map_text(mb, sizeof mb, Q, 0);
+        snprintf(both, sizeof both, "alpha = %s; beta = %s", ma, mb);
+        set_endo(a, Q, ma);
+        set_endo(b, Q, mb);
+        assert_int_equal(endo_compose(ab, a, b, Q, NULL, err), NS_OK);
+        assert_true(ab->valid);
+        for (long s = 0; s < 5; s++) {
+            random_elt(g, n, 3);
+            endo_apply(b, Q, u, g, W);
+            endo_apply(a, Q, u, u, W);
+            endo_apply(ab, Q, v, g, W);
+            assert_elt_equal(Q, v, u, "(alpha o beta)(g) vs alpha(beta(g))", both);
         }
-        assert_false(W->overflow);
-        _fmpz_vec_clear(g, n);
-        _fmpz_vec_clear(h, n);
-        _fmpz_vec_clear(gh, n);
-        _fmpz_vec_clear(ag, n);
-        _fmpz_vec_clear(ah, n);
-        _fmpz_vec_clear(agh, n);
-        pcp_work_clear(W);
-        nq_clear(Q);
+        endo_clear(a);
+        endo_clear(b);
+        endo_clear(ab);
     }
+    _fmpz_vec_clear(g, n);
+    _fmpz_vec_clear(u, n);
+    _fmpz_vec_clear(v, n);
+    nserr_clear(err);
 }
 
 static void endo_compose_is_apply_in_sequence(void **state)
 {
     (void)state;
     seed("endo_compose_is_apply_in_sequence");
+    for_every_group(endo_compose_is_apply_in_sequence_on);
+}
+
+static void endo_pow_matches_iteration_and_matrix_powers_on(const nq_t Q, pcp_work_t W,
+                                                            const group_case *gc)
+{
+    (void)gc;
     nserr_t err;
     nserr_init(err);
-    for (size_t gi = 0; gi < sizeof groups / sizeof groups[0]; gi++) {
-        nq_t Q;
-        nq_init(Q);
-        compute_quotient(Q, groups[gi].pres, groups[gi].c);
-        slong n = Q->pcp->n;
-        pcp_work_t W;
-        pcp_work_init(W, Q->pcp);
-        fmpz *g = _fmpz_vec_init(n), *u = _fmpz_vec_init(n), *v = _fmpz_vec_init(n);
-        char ma[1024], mb[1024], both[2100];
-        for (long t = 0; t < iters(10); t++) {
-            endo_t a, b, ab;
-            endo_init(a);
-            endo_init(b);
-            endo_init(ab);
-            random_map_text(ma, sizeof ma, Q, 0);
-            random_map_text(mb, sizeof mb, Q, 0);
-            snprintf(both, sizeof both, "alpha = %s; beta = %s", ma, mb);
-            set_endo(a, Q, ma);
-            set_endo(b, Q, mb);
-            assert_int_equal(endo_compose(ab, a, b, Q, NULL, err), NS_OK);
-            assert_true(ab->valid);
-            for (long s = 0; s < 5; s++) {
-                random_elt(g, n, 3);
-                endo_apply(b, Q, u, g, W);
-                endo_apply(a, Q, u, u, W);
-                endo_apply(ab, Q, v, g, W);
-                assert_elt_equal(Q, v, u, "(alpha o beta)(g) vs alpha(beta(g))", both);
-            }
-            endo_clear(a);
-            endo_clear(b);
-            endo_clear(ab);
-        }
-        _fmpz_vec_clear(g, n);
-        _fmpz_vec_clear(u, n);
-        _fmpz_vec_clear(v, n);
-        pcp_work_clear(W);
-        nq_clear(Q);
+    slong n = Q->pcp->n, c = Q->class_reached;
+    layer_t *L = flint_malloc(c * sizeof(layer_t));
+    for (slong j = 0; j < c; j++) {
+        layer_init(L[j]);
+        layer_compute(L[j], Q, j + 1);
     }
+    fmpz *g = _fmpz_vec_init(n), *u = _fmpz_vec_init(n), *v = _fmpz_vec_init(n);
+    fmpz_mat_t A, M, Mk, P, Pk;
+    fmpz_mat_init(A, 0, 0);
+    fmpz_mat_init(M, 0, 0);
+    fmpz_mat_init(Mk, 0, 0);
+    fmpz_mat_init(P, 0, 0);
+    fmpz_mat_init(Pk, 0, 0);
+    char map[1024];
+    for (long t = 0; t < count_scaled_by("NILSTEP_ITER", 6); t++) {
+        endo_t a, ak;
+        endo_init(a);
+        endo_init(ak);
+        random_map_text(map, sizeof map, Q, t % 2);
+        set_endo(a, Q, map);
+        for (ulong k = 0; k <= 5; k++) {
+            assert_int_equal(endo_pow(ak, a, k, Q, NULL, err), NS_OK);
+            assert_true(ak->valid);
+            for (long s = 0; s < 3; s++) {
+                random_elt(g, n, 3);
+                _fmpz_vec_set(u, g, n);
+                for (ulong i = 0; i < k; i++)
+                    endo_apply(a, Q, u, u, W);
+                endo_apply(ak, Q, v, g, W);
+                assert_elt_equal(Q, v, u, "alpha^k(g) vs k applications", map);
+            }
+            for (slong j = 0; j < c; j++) {
+                endo_layer_matrices(A, M, a, L[j]);
+                endo_layer_matrices(P, Pk, ak, L[j]);
+                fmpz_mat_clear(Mk);
+                fmpz_mat_init(Mk, fmpz_mat_nrows(M), fmpz_mat_ncols(M));
+                fmpz_mat_pow(Mk, M, k);
+                if (!fmpz_mat_equal(Pk, Mk))
+                    fail_msg("layer %ld matrix of alpha^%lu is not M^%lu (map %s)", (long)j + 1, k,
+                             k, map);
+            }
+        }
+        endo_clear(a);
+        endo_clear(ak);
+    }
+    /* a larger power: alpha^13 = alpha^8 o alpha^4 o alpha */
+    {
+        endo_t a, p13, p8, p4, t1, t2;
+        endo_init(a);
+        endo_init(p13);
+        endo_init(p8);
+        endo_init(p4);
+        endo_init(t1);
+        endo_init(t2);
+        random_map_text(map, sizeof map, Q, 1);
+        set_endo(a, Q, map);
+        assert_int_equal(endo_pow(p13, a, 13, Q, NULL, err), NS_OK);
+        assert_int_equal(endo_pow(p8, a, 8, Q, NULL, err), NS_OK);
+        assert_int_equal(endo_pow(p4, a, 4, Q, NULL, err), NS_OK);
+        assert_int_equal(endo_compose(t1, p4, a, Q, NULL, err), NS_OK);
+        assert_int_equal(endo_compose(t2, p8, t1, Q, NULL, err), NS_OK);
+        for (slong x = 0; x < Q->pres->gens->n; x++)
+            assert_elt_equal(Q, p13->gen_img + x * n, t2->gen_img + x * n,
+                             "alpha^13 vs alpha^8 o alpha^4 o alpha", map);
+        endo_clear(a);
+        endo_clear(p13);
+        endo_clear(p8);
+        endo_clear(p4);
+        endo_clear(t1);
+        endo_clear(t2);
+    }
+    assert_false(W->overflow);
+    fmpz_mat_clear(A);
+    fmpz_mat_clear(M);
+    fmpz_mat_clear(Mk);
+    fmpz_mat_clear(P);
+    fmpz_mat_clear(Pk);
+    _fmpz_vec_clear(g, n);
+    _fmpz_vec_clear(u, n);
+    _fmpz_vec_clear(v, n);
+    for (slong j = 0; j < c; j++)
+        layer_clear(L[j]);
+    flint_free(L);
     nserr_clear(err);
 }
 
@@ -287,100 +359,58 @@ static void endo_pow_matches_iteration_and_matrix_powers(void **state)
 {
     (void)state;
     seed("endo_pow_matches_iteration_and_matrix_powers");
+    for_every_group(endo_pow_matches_iteration_and_matrix_powers_on);
+}
+
+static void endo_inverse_of_automorphism_on(const nq_t Q, pcp_work_t W, const group_case *gc)
+{
     nserr_t err;
     nserr_init(err);
-    for (size_t gi = 0; gi < sizeof groups / sizeof groups[0]; gi++) {
-        nq_t Q;
-        nq_init(Q);
-        compute_quotient(Q, groups[gi].pres, groups[gi].c);
-        slong n = Q->pcp->n, c = Q->class_reached;
-        layer_t *L = flint_malloc(c * sizeof(layer_t));
-        for (slong j = 0; j < c; j++) {
-            layer_init(L[j]);
-            layer_compute(L[j], Q, j + 1);
+    slong n = Q->pcp->n, X = Q->pres->gens->n;
+    fmpz *g = _fmpz_vec_init(n), *u = _fmpz_vec_init(n);
+    char map[1024];
+    for (long t = 0; t < count_scaled_by("NILSTEP_ITER", 10); t++) {
+        endo_t a, ai, c1, c2;
+        endo_init(a);
+        endo_init(ai);
+        endo_init(c1);
+        endo_init(c2);
+        random_map_text(map, sizeof map, Q, 1);
+        set_endo(a, Q, map);
+        if (endo_inverse(ai, a, Q, NULL, err) != NS_OK)
+            fail_msg("endo_inverse(%s): %s", map, err->msg);
+        assert_true(ai->valid);
+        assert_int_equal(endo_compose(c1, a, ai, Q, NULL, err), NS_OK);
+        assert_int_equal(endo_compose(c2, ai, a, Q, NULL, err), NS_OK);
+        for (slong x = 0; x < X; x++) {
+            assert_elt_equal(Q, c1->gen_img + x * n, Q->images + x * n,
+                             "alpha o alpha^-1 on a generator", map);
+            assert_elt_equal(Q, c2->gen_img + x * n, Q->images + x * n,
+                             "alpha^-1 o alpha on a generator", map);
         }
-        pcp_work_t W;
-        pcp_work_init(W, Q->pcp);
-        fmpz *g = _fmpz_vec_init(n), *u = _fmpz_vec_init(n), *v = _fmpz_vec_init(n);
-        fmpz_mat_t A, M, Mk, P, Pk;
-        fmpz_mat_init(A, 0, 0);
-        fmpz_mat_init(M, 0, 0);
-        fmpz_mat_init(Mk, 0, 0);
-        fmpz_mat_init(P, 0, 0);
-        fmpz_mat_init(Pk, 0, 0);
-        char map[1024];
-        for (long t = 0; t < iters(6); t++) {
-            endo_t a, ak;
-            endo_init(a);
-            endo_init(ak);
-            random_map_text(map, sizeof map, Q, t % 2);
-            set_endo(a, Q, map);
-            for (ulong k = 0; k <= 5; k++) {
-                assert_int_equal(endo_pow(ak, a, k, Q, NULL, err), NS_OK);
-                assert_true(ak->valid);
-                for (long s = 0; s < 3; s++) {
-                    random_elt(g, n, 3);
-                    _fmpz_vec_set(u, g, n);
-                    for (ulong i = 0; i < k; i++)
-                        endo_apply(a, Q, u, u, W);
-                    endo_apply(ak, Q, v, g, W);
-                    assert_elt_equal(Q, v, u, "alpha^k(g) vs k applications", map);
-                }
-                for (slong j = 0; j < c; j++) {
-                    endo_layer_matrices(A, M, a, L[j]);
-                    endo_layer_matrices(P, Pk, ak, L[j]);
-                    fmpz_mat_clear(Mk);
-                    fmpz_mat_init(Mk, fmpz_mat_nrows(M), fmpz_mat_ncols(M));
-                    fmpz_mat_pow(Mk, M, k);
-                    if (!fmpz_mat_equal(Pk, Mk))
-                        fail_msg("layer %ld matrix of alpha^%lu is not M^%lu (map %s)",
-                                 (long)j + 1, k, k, map);
-                }
-            }
-            endo_clear(a);
-            endo_clear(ak);
+        for (long s = 0; s < 3; s++) {
+            random_elt(g, n, 3);
+            endo_apply(ai, Q, u, g, W);
+            endo_apply(a, Q, u, u, W);
+            assert_elt_equal(Q, u, g, "alpha(alpha^-1(g))", map);
         }
-        /* a larger power: alpha^13 = alpha^8 o alpha^4 o alpha */
-        {
-            endo_t a, p13, p8, p4, t1, t2;
-            endo_init(a);
-            endo_init(p13);
-            endo_init(p8);
-            endo_init(p4);
-            endo_init(t1);
-            endo_init(t2);
-            random_map_text(map, sizeof map, Q, 1);
-            set_endo(a, Q, map);
-            assert_int_equal(endo_pow(p13, a, 13, Q, NULL, err), NS_OK);
-            assert_int_equal(endo_pow(p8, a, 8, Q, NULL, err), NS_OK);
-            assert_int_equal(endo_pow(p4, a, 4, Q, NULL, err), NS_OK);
-            assert_int_equal(endo_compose(t1, p4, a, Q, NULL, err), NS_OK);
-            assert_int_equal(endo_compose(t2, p8, t1, Q, NULL, err), NS_OK);
-            for (slong x = 0; x < Q->pres->gens->n; x++)
-                assert_elt_equal(Q, p13->gen_img + x * n, t2->gen_img + x * n,
-                                 "alpha^13 vs alpha^8 o alpha^4 o alpha", map);
-            endo_clear(a);
-            endo_clear(p13);
-            endo_clear(p8);
-            endo_clear(p4);
-            endo_clear(t1);
-            endo_clear(t2);
-        }
-        assert_false(W->overflow);
-        fmpz_mat_clear(A);
-        fmpz_mat_clear(M);
-        fmpz_mat_clear(Mk);
-        fmpz_mat_clear(P);
-        fmpz_mat_clear(Pk);
-        _fmpz_vec_clear(g, n);
-        _fmpz_vec_clear(u, n);
-        _fmpz_vec_clear(v, n);
-        for (slong j = 0; j < c; j++)
-            layer_clear(L[j]);
-        flint_free(L);
-        pcp_work_clear(W);
-        nq_clear(Q);
+        endo_clear(a);
+        endo_clear(ai);
+        endo_clear(c1);
+        endo_clear(c2);
     }
+    /* not onto: no inverse */
+    {
+        endo_t a, ai;
+        endo_init(a);
+        endo_init(ai);
+        set_endo(a, Q, gc->not_onto);
+        assert_int_equal(endo_inverse(ai, a, Q, NULL, err), NS_ERR_INPUT);
+        endo_clear(a);
+        endo_clear(ai);
+    }
+    _fmpz_vec_clear(g, n);
+    _fmpz_vec_clear(u, n);
     nserr_clear(err);
 }
 
@@ -388,66 +418,7 @@ static void endo_inverse_of_automorphism(void **state)
 {
     (void)state;
     seed("endo_inverse_of_automorphism");
-    nserr_t err;
-    nserr_init(err);
-    for (size_t gi = 0; gi < sizeof groups / sizeof groups[0]; gi++) {
-        nq_t Q;
-        nq_init(Q);
-        compute_quotient(Q, groups[gi].pres, groups[gi].c);
-        slong n = Q->pcp->n, X = Q->pres->gens->n;
-        pcp_work_t W;
-        pcp_work_init(W, Q->pcp);
-        fmpz *g = _fmpz_vec_init(n), *u = _fmpz_vec_init(n);
-        char map[1024];
-        for (long t = 0; t < iters(10); t++) {
-            endo_t a, ai, c1, c2;
-            endo_init(a);
-            endo_init(ai);
-            endo_init(c1);
-            endo_init(c2);
-            random_map_text(map, sizeof map, Q, 1);
-            set_endo(a, Q, map);
-            if (endo_inverse(ai, a, Q, NULL, err) != NS_OK)
-                fail_msg("endo_inverse(%s): %s", map, err->msg);
-            assert_true(ai->valid);
-            assert_int_equal(endo_compose(c1, a, ai, Q, NULL, err), NS_OK);
-            assert_int_equal(endo_compose(c2, ai, a, Q, NULL, err), NS_OK);
-            for (slong x = 0; x < X; x++) {
-                assert_elt_equal(Q, c1->gen_img + x * n, Q->images + x * n,
-                                 "alpha o alpha^-1 on a generator", map);
-                assert_elt_equal(Q, c2->gen_img + x * n, Q->images + x * n,
-                                 "alpha^-1 o alpha on a generator", map);
-            }
-            for (long s = 0; s < 3; s++) {
-                random_elt(g, n, 3);
-                endo_apply(ai, Q, u, g, W);
-                endo_apply(a, Q, u, u, W);
-                assert_elt_equal(Q, u, g, "alpha(alpha^-1(g))", map);
-            }
-            endo_clear(a);
-            endo_clear(ai);
-            endo_clear(c1);
-            endo_clear(c2);
-        }
-        /* not onto: no inverse */
-        {
-            endo_t a, ai;
-            endo_init(a);
-            endo_init(ai);
-            const char *sq = gi == 0 ? "a -> a^2, b -> b"
-                           : gi == 1 ? "a -> a, b -> b c, c -> c^3"
-                                     : "x1 -> x1 y1, y1 -> x1^2 y1^2, z -> [x1 y1, x1^2 y1^2]";
-            set_endo(a, Q, sq);
-            assert_int_equal(endo_inverse(ai, a, Q, NULL, err), NS_ERR_INPUT);
-            endo_clear(a);
-            endo_clear(ai);
-        }
-        _fmpz_vec_clear(g, n);
-        _fmpz_vec_clear(u, n);
-        pcp_work_clear(W);
-        nq_clear(Q);
-    }
-    nserr_clear(err);
+    for_every_group(endo_inverse_of_automorphism_on);
 }
 
 int main(void)

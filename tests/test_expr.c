@@ -23,40 +23,10 @@
 #include <flint/fmpz_mat.h>
 
 #include "expr.h"
+#include "testutil.h"
 
 /* ------------------------------------------------------------------------ */
 /* Helpers                                                                   */
-
-static uint64_t rng_state;
-
-static uint64_t rng_next(void)
-{
-    /* splitmix64 */
-    uint64_t z = (rng_state += 0x9E3779B97F4A7C15ULL);
-    z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ULL;
-    z = (z ^ (z >> 27)) * 0x94D049BB133111EBULL;
-    return z ^ (z >> 31);
-}
-
-static long rng_range(long lo, long hi)
-{
-    return lo + (long)(rng_next() % (uint64_t)(hi - lo + 1));
-}
-
-static void seed_rng(const char *test)
-{
-    const char *e = getenv("NILSTEP_SEED");
-    rng_state = e ? strtoull(e, NULL, 0) : 20240601ULL;
-    printf("# %s: seed %llu (set NILSTEP_SEED to replay)\n", test,
-           (unsigned long long)rng_state);
-}
-
-static long scaled(long n)
-{
-    const char *e = getenv("NILSTEP_SCALE");
-    long k = e ? atol(e) : 1;
-    return n * (k > 0 ? k : 1);
-}
 
 static void make_names(names_t g, const char *const *list, int n)
 {
@@ -127,88 +97,6 @@ static void expect_print(const char *text, const char *printed)
 
 /* ---- evaluation in SL(2,Z) ---- */
 
-typedef struct {
-    fmpz_mat_struct m[3];
-} gen_mats;
-
-static void mat_inverse_sl2(fmpz_mat_t out, const fmpz_mat_t m)
-{
-    fmpz_mat_t t;
-    fmpz_mat_init(t, 2, 2);
-    fmpz_set(fmpz_mat_entry(t, 0, 0), fmpz_mat_entry(m, 1, 1));
-    fmpz_neg(fmpz_mat_entry(t, 0, 1), fmpz_mat_entry(m, 0, 1));
-    fmpz_neg(fmpz_mat_entry(t, 1, 0), fmpz_mat_entry(m, 1, 0));
-    fmpz_set(fmpz_mat_entry(t, 1, 1), fmpz_mat_entry(m, 0, 0));
-    fmpz_mat_swap(out, t);
-    fmpz_mat_clear(t);
-}
-
-/* out = value of the tree; all matrices have determinant 1. */
-static void eval_node(fmpz_mat_t out, const expr_node *n, const fmpz_mat_struct *gens)
-{
-    fmpz_mat_t x, y, t;
-
-    fmpz_mat_init(x, 2, 2);
-    fmpz_mat_init(y, 2, 2);
-    fmpz_mat_init(t, 2, 2);
-    switch (n->kind) {
-    case EXPR_ONE:
-        fmpz_mat_one(out);
-        break;
-    case EXPR_GEN:
-        fmpz_mat_set(out, gens + n->gen);
-        break;
-    case EXPR_MUL:
-        fmpz_mat_one(x);
-        for (slong i = 0; i < n->nkids; i++) {
-            eval_node(y, n->kids[i], gens);
-            fmpz_mat_mul(t, x, y);
-            fmpz_mat_swap(x, t);
-        }
-        fmpz_mat_set(out, x);
-        break;
-    case EXPR_POW: {
-        slong e = fmpz_get_si(n->exp);
-        assert_true(fmpz_fits_si(n->exp));
-        eval_node(x, n->kids[0], gens);
-        if (e < 0) {
-            mat_inverse_sl2(x, x);
-            e = -e;
-        }
-        fmpz_mat_pow(out, x, (ulong)e);
-        break;
-    }
-    case EXPR_COMM:
-        eval_node(x, n->kids[0], gens);
-        for (slong i = 1; i < n->nkids; i++) {
-            fmpz_mat_t xi, yi;
-            fmpz_mat_init(xi, 2, 2);
-            fmpz_mat_init(yi, 2, 2);
-            eval_node(y, n->kids[i], gens);
-            mat_inverse_sl2(xi, x);
-            mat_inverse_sl2(yi, y);
-            fmpz_mat_mul(t, xi, yi);
-            fmpz_mat_mul(xi, t, x);
-            fmpz_mat_mul(x, xi, y);
-            fmpz_mat_clear(xi);
-            fmpz_mat_clear(yi);
-        }
-        fmpz_mat_set(out, x);
-        break;
-    case EXPR_CONJ:
-        eval_node(x, n->kids[0], gens);
-        eval_node(y, n->kids[1], gens);
-        mat_inverse_sl2(t, y);
-        fmpz_mat_mul(out, t, x);
-        fmpz_mat_mul(t, out, y);
-        fmpz_mat_set(out, t);
-        break;
-    }
-    fmpz_mat_clear(x);
-    fmpz_mat_clear(y);
-    fmpz_mat_clear(t);
-}
-
 /* Sanov's generators for a and b; c gets a third matrix (not free with
  * a, b, but the conventions hold in every group). */
 static void sanov_init(fmpz_mat_struct *gens)
@@ -241,9 +129,10 @@ static void eval_letters(fmpz_mat_t out, const char *letters, const fmpz_mat_str
     fmpz_mat_one(out);
     for (const char *p = letters; *p; p++) {
         int i = (*p >= 'a') ? *p - 'a' : *p - 'A';
-        fmpz_mat_set(x, gens + i);
         if (*p < 'a')
-            mat_inverse_sl2(x, x);
+            mat_inv_unimodular(x, gens + i);
+        else
+            fmpz_mat_set(x, gens + i);
         fmpz_mat_mul(t, out, x);
         fmpz_mat_swap(out, t);
     }
@@ -263,7 +152,7 @@ static void expect_meaning(const char *text, const char *letters)
     fmpz_mat_init(y, 2, 2);
     expr_init(e);
     parse_ok(e, text);
-    eval_node(x, e->root, gens);
+    eval_in_matrices(x, e->root, gens);
     eval_letters(y, letters, gens);
     if (!fmpz_mat_equal(x, y))
         print_error("'%s' is not '%s'\n", text, letters);
@@ -315,8 +204,8 @@ static void commutators_should_be_left_normed(void **state)
         expr_init(y);
         parse_ok(x, "[a,b,b,a]");
         parse_ok(y, "[[[a,b],b],a]");
-        eval_node(mx, x->root, gens);
-        eval_node(my, y->root, gens);
+        eval_in_matrices(mx, x->root, gens);
+        eval_in_matrices(my, y->root, gens);
         assert_true(fmpz_mat_equal(mx, my));
         expr_clear(x);
         expr_clear(y);
@@ -649,10 +538,10 @@ static void print_then_parse_should_be_stable_on_random_words(void **state)
 {
     names_t g;
     nserr_t err;
-    long cases = scaled(400);
+    long cases = count_scaled_by("NILSTEP_SCALE", 400);
     (void)state;
 
-    seed_rng("round trip");
+    rng_seed_test("round trip", 20240601ULL, "set NILSTEP_SEED to replay");
     make_names(g, abc, 3);
     nserr_init(err);
     for (long t = 0; t < cases; t++) {
@@ -680,8 +569,8 @@ static void print_then_parse_should_be_stable_on_random_words(void **state)
             sanov_init(gens);
             fmpz_mat_init(mx, 2, 2);
             fmpz_mat_init(my, 2, 2);
-            eval_node(mx, x->root, gens);
-            eval_node(my, y->root, gens);
+            eval_in_matrices(mx, x->root, gens);
+            eval_in_matrices(my, y->root, gens);
             if (!fmpz_mat_equal(mx, my))
                 fail_msg("case %ld: '%s' changed its meaning", t, s1);
             fmpz_mat_clear(mx);
@@ -743,14 +632,14 @@ static void exponent_sums_should_follow_the_definitions(void **state)
 
 /* The exponent sum of generator i is the image under the homomorphism
  * gen i -> [[1,1],[0,1]], other generators -> identity, into the additive
- * group Z written as unitriangular matrices.  eval_node computes that image
- * by plain group arithmetic, independently of expr_exponent_sums. */
+ * group Z written as unitriangular matrices.  eval_in_matrices computes that
+ * image by plain group arithmetic, independently of expr_exponent_sums. */
 static void exponent_sums_should_match_the_abelianisation(void **state)
 {
-    long cases = scaled(300);
+    long cases = count_scaled_by("NILSTEP_SCALE", 300);
     (void)state;
 
-    seed_rng("exponent sums");
+    rng_seed_test("exponent sums", 20240601ULL, "set NILSTEP_SEED to replay");
     for (long t = 0; t < cases; t++) {
         expr_t x;
         fmpz sums[3] = {0, 0, 0};
@@ -766,7 +655,7 @@ static void exponent_sums_should_match_the_abelianisation(void **state)
             }
             fmpz_one(fmpz_mat_entry(gens + i, 0, 1));
             fmpz_mat_init(m, 2, 2);
-            eval_node(m, x->root, gens);
+            eval_in_matrices(m, x->root, gens);
             if (!fmpz_equal(fmpz_mat_entry(m, 0, 1), sums + i)) {
                 names_t g;
                 make_names(g, abc, 3);

@@ -28,26 +28,9 @@
 
 #include "nq.h"
 #include "pcp.h"
+#include "testutil.h"
 
 /* ------------------------------------------------------ seed, random */
-
-static uint64_t rng_state;
-static double iter_scale = 1.0;
-
-static uint64_t rnd64(void)
-{
-    /* splitmix64 (S. Vigna's public-domain generator) */
-    uint64_t z = (rng_state += 0x9e3779b97f4a7c15u);
-    z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9u;
-    z = (z ^ (z >> 27)) * 0x94d049bb133111ebu;
-    return z ^ (z >> 31);
-}
-
-/* uniform in [lo, hi] (small ranges) */
-static slong rnd_range(slong lo, slong hi)
-{
-    return lo + (slong)(rnd64() % (uint64_t)(hi - lo + 1));
-}
 
 /* a random integer with |x| < 2^bits, either sign */
 static void rnd_fmpz_bits(fmpz_t x, int bits)
@@ -55,32 +38,17 @@ static void rnd_fmpz_bits(fmpz_t x, int bits)
     fmpz_zero(x);
     for (int b = 0; b < bits; b += 32) {
         fmpz_mul_2exp(x, x, 32);
-        fmpz_add_ui(x, x, (ulong)(rnd64() & 0xffffffffu));
+        fmpz_add_ui(x, x, (ulong)(rng_next() & 0xffffffffu));
     }
     fmpz_fdiv_r_2exp(x, x, (ulong)bits);
-    if (rnd64() & 1)
+    if (rng_next() & 1)
         fmpz_neg(x, x);
-}
-
-static slong iters(slong base)
-{
-    double v = base * iter_scale;
-    return v < 1 ? 1 : (slong)v;
 }
 
 static int setup_seed(void **state)
 {
     (void)state;
-    const char *s = getenv("NILSTEP_SEED");
-    uint64_t seed = s && *s ? strtoull(s, NULL, 0) : 20261201u;
-    const char *it = getenv("NILSTEP_ITER");
-    if (it && *it && atof(it) > 0)
-        iter_scale = atof(it);
-    rng_state = seed;
-    printf("test_pcp: seed %llu, iteration scale %g "
-           "(NILSTEP_SEED, NILSTEP_ITER to change)\n",
-           (unsigned long long)seed, iter_scale);
-    return 0;
+    return rng_setup_program("test_pcp");
 }
 
 /* ------------------------------------------------- groups under test */
@@ -112,19 +80,6 @@ static const group_case groups[] = {
 };
 #define NCASES ((slong)(sizeof groups / sizeof groups[0]))
 
-static void compute(nq_t Q, const group_case *g)
-{
-    pres_t p;
-    nserr_t err;
-    pres_init(p);
-    nserr_init(err);
-    if (pres_parse(p, g->text, 1, 1, err) != NS_OK)
-        fail_msg("%s: pres_parse: %s", g->name, err->msg);
-    if (nq_compute(Q, p, g->c, NULL, err) != NS_OK)
-        fail_msg("%s: nq_compute: %s", g->name, err->msg);
-    pres_clear(p);
-}
-
 /* A random element in normal form.  Finite generators get an exponent in
  * [0, m); infinite ones one in [-small, small], or, when huge > 0, one with
  * up to huge bits (133 bits: about 10^40) with probability 1/2. */
@@ -133,14 +88,14 @@ static void rnd_elt(fmpz *u, const pcp_struct *P, slong small, int huge)
     for (slong k = 0; k < P->n; k++) {
         if (!fmpz_is_zero(P->relorder + k)) {
             assert_true(fmpz_abs_fits_ui(P->relorder + k));
-            fmpz_set_ui(u + k, rnd64() % fmpz_get_ui(P->relorder + k));
+            fmpz_set_ui(u + k, rng_next() % fmpz_get_ui(P->relorder + k));
             continue;
         }
-        if (huge && (rnd64() & 1))
+        if (huge && (rng_next() & 1))
             rnd_fmpz_bits(u + k, huge);
         else
-            fmpz_set_si(u + k, rnd_range(-small, small));
-        if (rnd64() % 4 == 0)
+            fmpz_set_si(u + k, rng_range(-small, small));
+        if (rng_next() % 4 == 0)
             fmpz_zero(u + k);
     }
 }
@@ -498,7 +453,7 @@ static void ctx_init(ctx *C, const group_case *g)
 {
     C->g = g;
     nq_init(C->Q);
-    compute(C->Q, g);
+    compute_quotient(C->Q, g->text, g->c);
     pcp_work_init(C->W, C->Q->pcp);
     C->n = C->Q->pcp->n;
     slong m = C->n ? C->n : 1;
@@ -523,6 +478,21 @@ static void ctx_clear(ctx *C)
     _fmpz_vec_clear(C->d, m);
     pcp_work_clear(C->W);
     nq_clear(C->Q);
+}
+
+/* Runs check(C, 0) iters(small) times, then check(C, 1) -- the "huge"
+ * variant -- iters(huge) times, on every group under test. */
+static void run_on_every_group(void (*check)(ctx *C, int huge), slong small, slong huge)
+{
+    for (slong k = 0; k < NCASES; k++) {
+        ctx C;
+        ctx_init(&C, groups + k);
+        for (slong it = 0; it < iters(small); it++)
+            check(&C, 0);
+        for (slong it = 0; it < iters(huge); it++)
+            check(&C, 1);
+        ctx_clear(&C);
+    }
 }
 
 /* Every computed presentation passes its own consistency test. */
@@ -587,15 +557,7 @@ static void group_axioms_one(ctx *C, int huge)
 static void group_axioms(void **state)
 {
     (void)state;
-    for (slong k = 0; k < NCASES; k++) {
-        ctx C;
-        ctx_init(&C, groups + k);
-        for (slong it = 0; it < iters(40); it++)
-            group_axioms_one(&C, 0);
-        for (slong it = 0; it < iters(8); it++)
-            group_axioms_one(&C, 1);
-        ctx_clear(&C);
-    }
+    run_on_every_group(group_axioms_one, 40, 8);
 }
 
 /* (x^m)^k = x^(mk), x^m x^k = x^(m+k), x^0 = 1, x^1 = x, x^-1 = inverse. */
@@ -613,8 +575,8 @@ static void powers_one(ctx *C, int huge)
         rnd_fmpz_bits(m, C->g->pow_bits);
         rnd_fmpz_bits(k, C->g->pow_bits);
     } else {
-        fmpz_set_si(m, rnd_range(-25, 25));
-        fmpz_set_si(k, rnd_range(-25, 25));
+        fmpz_set_si(m, rng_range(-25, 25));
+        fmpz_set_si(k, rng_range(-25, 25));
     }
     fmpz_mul(mk, m, k);
     pcp_elt_pow(W, C->a, C->x, m);
@@ -654,15 +616,7 @@ static void powers_one(ctx *C, int huge)
 static void powers(void **state)
 {
     (void)state;
-    for (slong k = 0; k < NCASES; k++) {
-        ctx C;
-        ctx_init(&C, groups + k);
-        for (slong it = 0; it < iters(25); it++)
-            powers_one(&C, 0);
-        for (slong it = 0; it < iters(6); it++)
-            powers_one(&C, 1);
-        ctx_clear(&C);
-    }
+    run_on_every_group(powers_one, 25, 6);
 }
 
 /* [x,y] = x^-1 y^-1 x y and x^y = y^-1 x y through products; conjugation
@@ -735,15 +689,7 @@ static void commutators_one(ctx *C, int huge)
 static void commutators_and_conjugates(void **state)
 {
     (void)state;
-    for (slong k = 0; k < NCASES; k++) {
-        ctx C;
-        ctx_init(&C, groups + k);
-        for (slong it = 0; it < iters(20); it++)
-            commutators_one(&C, 0);
-        for (slong it = 0; it < iters(3); it++)
-            commutators_one(&C, 1);
-        ctx_clear(&C);
-    }
+    run_on_every_group(commutators_one, 20, 3);
 }
 
 /* u a_i^e1 a_i^e2 = u a_i^(e1+e2), through pcp_collect_gen directly: this is
@@ -762,13 +708,13 @@ static void collect_gen_splits(void **state)
         for (slong it = 0; it < iters(40) && C.n > 0; it++) {
             int huge = it % 4 == 3;
             rnd_elt(C.x, P, 4, huge ? groups[k].big_bits : 0);
-            slong i = rnd_range(0, C.n - 1);
+            slong i = rng_range(0, C.n - 1);
             if (huge) {
                 rnd_fmpz_bits(e1, groups[k].big_bits);
                 rnd_fmpz_bits(e2, groups[k].big_bits);
             } else {
-                fmpz_set_si(e1, rnd_range(-30, 30));
-                fmpz_set_si(e2, rnd_range(-30, 30));
+                fmpz_set_si(e1, rng_range(-30, 30));
+                fmpz_set_si(e2, rng_range(-30, 30));
             }
             fmpz_add(e, e1, e2);
             _fmpz_vec_set(C.a, C.x, C.n);
@@ -848,8 +794,8 @@ static void agrees_with_rewriting_oracle(void **state)
             w.len = 0;
             _fmpz_vec_zero(C.b, n);
             for (int l = 0; l < 8 && n > 0; l++) {
-                slong g = rnd_range(0, n - 1);
-                slong s = (rnd64() & 1) ? 1 : -1;
+                slong g = rng_range(0, n - 1);
+                slong s = (rng_next() & 1) ? 1 : -1;
                 word_push(&w, s * (g + 1));
                 fmpz_set_si(e, s);
                 pcp_collect_gen(C.W, C.b, g, e);

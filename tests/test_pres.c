@@ -22,17 +22,10 @@
 #include <flint/fmpz_mat.h>
 
 #include "pres.h"
+#include "testutil.h"
 
 /* ------------------------------------------------------------------------ */
 /* Helpers                                                                   */
-
-static void parse_pres_ok(pres_t p, const char *text)
-{
-    nserr_t err;
-    nserr_init(err);
-    if (pres_parse(p, text, 1, 1, err) != NS_OK)
-        fail_msg("'%s': %d:%d %s", text, err->line, err->col, err->msg);
-}
 
 static void expect_pres_error(const char *text, int line, int col, ns_status status,
                               const char *msg)
@@ -55,93 +48,18 @@ static void expect_pres_error(const char *text, int line, int col, ns_status sta
     pres_clear(p);
 }
 
-/* Value of a tree in the group of invertible integer matrices (all the
- * matrices used have determinant 1). */
-static void mat_inv(fmpz_mat_t out, const fmpz_mat_t m)
-{
-    fmpz_t den;
-    fmpz_init(den);
-    assert_true(fmpz_mat_inv(out, den, m));
-    assert_true(fmpz_is_pm1(den));
-    if (fmpz_is_one(den) == 0)
-        fmpz_mat_neg(out, out);
-    fmpz_clear(den);
-}
-
-static void eval_node(fmpz_mat_t out, const expr_node *n, const fmpz_mat_struct *gens)
-{
-    slong d = fmpz_mat_nrows(out);
-    fmpz_mat_t x, y, t, u;
-
-    fmpz_mat_init(x, d, d);
-    fmpz_mat_init(y, d, d);
-    fmpz_mat_init(t, d, d);
-    fmpz_mat_init(u, d, d);
-    switch (n->kind) {
-    case EXPR_ONE:
-        fmpz_mat_one(out);
-        break;
-    case EXPR_GEN:
-        fmpz_mat_set(out, gens + n->gen);
-        break;
-    case EXPR_MUL:
-        fmpz_mat_one(x);
-        for (slong i = 0; i < n->nkids; i++) {
-            eval_node(y, n->kids[i], gens);
-            fmpz_mat_mul(t, x, y);
-            fmpz_mat_swap(x, t);
-        }
-        fmpz_mat_set(out, x);
-        break;
-    case EXPR_POW: {
-        slong e = fmpz_get_si(n->exp);
-        eval_node(x, n->kids[0], gens);
-        if (e < 0) {
-            mat_inv(t, x);
-            fmpz_mat_swap(x, t);
-            e = -e;
-        }
-        fmpz_mat_pow(out, x, (ulong)e);
-        break;
-    }
-    case EXPR_COMM:
-        eval_node(x, n->kids[0], gens);
-        for (slong i = 1; i < n->nkids; i++) {
-            eval_node(y, n->kids[i], gens);
-            mat_inv(t, x);
-            mat_inv(u, y);
-            fmpz_mat_mul(out, t, u); /* x^-1 y^-1 */
-            fmpz_mat_mul(t, out, x);
-            fmpz_mat_mul(x, t, y);
-        }
-        fmpz_mat_set(out, x);
-        break;
-    case EXPR_CONJ:
-        eval_node(x, n->kids[0], gens);
-        eval_node(y, n->kids[1], gens);
-        mat_inv(t, y);
-        fmpz_mat_mul(u, t, x);
-        fmpz_mat_mul(out, u, y);
-        break;
-    }
-    fmpz_mat_clear(x);
-    fmpz_mat_clear(y);
-    fmpz_mat_clear(t);
-    fmpz_mat_clear(u);
-}
-
 /* Every relator of p is the identity under the generator matrices. */
 static void check_relators_hold(const pres_t p, const fmpz_mat_struct *gens, slong dim)
 {
     fmpz_mat_t m;
     fmpz_mat_init(m, dim, dim);
     for (slong i = 0; i < p->nrels; i++) {
-        eval_node(m, p->rels[i].root, gens);
+        eval_in_matrices(m, p->rels[i].root, gens);
         if (!fmpz_mat_is_one(m))
             fail_msg("relation %ld '%s' fails in the matrix model", (long)i, p->text[i]);
         /* "u = v" must say something: u alone is not the identity. */
         if (strchr(p->text[i], '=') != NULL) {
-            eval_node(m, p->rels[i].root->kids[0], gens);
+            eval_in_matrices(m, p->rels[i].root->kids[0], gens);
             assert_false(fmpz_mat_is_one(m));
         }
     }
@@ -176,7 +94,7 @@ static void parse_should_read_generators_and_relations(void **state)
     (void)state;
 
     pres_init(p);
-    parse_pres_ok(p, "<a, b, c | [a,b] = c, [a,c],\n   [b,c]>");
+    parse_pres_or_fail(p, "<a, b, c | [a,b] = c, [a,c],\n   [b,c]>");
     assert_int_equal(p->gens->n, 3);
     assert_string_equal(p->gens->name[2], "c");
     assert_int_equal(p->nrels, 3);
@@ -206,10 +124,10 @@ static void parse_should_accept_presentations_without_relations(void **state)
     (void)state;
 
     pres_init(p);
-    parse_pres_ok(p, "<a, b>");
+    parse_pres_or_fail(p, "<a, b>");
     assert_int_equal(p->gens->n, 2);
     assert_int_equal(p->nrels, 0);
-    parse_pres_ok(p, "  # free group\n<x1, y_2 | >  # done\n");
+    parse_pres_or_fail(p, "  # free group\n<x1, y_2 | >  # done\n");
     assert_int_equal(p->gens->n, 2);
     assert_string_equal(p->gens->name[1], "y_2");
     assert_int_equal(p->nrels, 0);
@@ -222,7 +140,7 @@ static void parse_should_keep_relation_text_on_one_line(void **state)
     (void)state;
 
     pres_init(p);
-    parse_pres_ok(p, "<a, b | a^2 # square\n   =\n b^3>");
+    parse_pres_or_fail(p, "<a, b | a^2 # square\n   =\n b^3>");
     assert_string_equal(p->text[0], "a^2 = b^3");
     pres_clear(p);
 }
@@ -321,9 +239,9 @@ static void get_str_should_print_a_presentation_that_parses_back(void **state)
         pres_init(p);
         pres_init(q);
         pres_init(r);
-        parse_pres_ok(p, inputs[i]);
+        parse_pres_or_fail(p, inputs[i]);
         s1 = pres_get_str(p);
-        parse_pres_ok(q, s1);
+        parse_pres_or_fail(q, s1);
         s2 = pres_get_str(q);
         assert_string_equal(s1, s2);
         assert_int_equal(p->gens->n, q->gens->n);
@@ -358,7 +276,7 @@ static void get_str_should_print_relations_as_written(void **state)
     (void)state;
 
     pres_init(p);
-    parse_pres_ok(p, "< a,b | [a , b]=a^2 , a*b >");
+    parse_pres_or_fail(p, "< a,b | [a , b]=a^2 , a*b >");
     s = pres_get_str(p);
     assert_string_equal(s, "<a, b | [a,b] = a^2, a b>");
     flint_free(s);
@@ -374,14 +292,14 @@ static void free_family_should_name_letters_then_indexed_names(void **state)
     (void)state;
 
     pres_init(p);
-    parse_pres_ok(p, "free(3)");
+    parse_pres_or_fail(p, "free(3)");
     assert_int_equal(p->gens->n, 3);
     assert_string_equal(p->gens->name[0], "a");
     assert_string_equal(p->gens->name[2], "c");
     assert_int_equal(p->nrels, 0);
-    parse_pres_ok(p, "free(26)");
+    parse_pres_or_fail(p, "free(26)");
     assert_string_equal(p->gens->name[25], "z");
-    parse_pres_ok(p, "free(27)");
+    parse_pres_or_fail(p, "free(27)");
     assert_string_equal(p->gens->name[0], "x1");
     assert_string_equal(p->gens->name[26], "x27");
     pres_clear(p);
@@ -409,7 +327,7 @@ static void heisenberg_should_hold_in_its_matrix_model(void **state)
 
         snprintf(text, sizeof text, "heisenberg(%ld)", (long)n);
         pres_init(p);
-        parse_pres_ok(p, text);
+        parse_pres_or_fail(p, text);
         assert_int_equal(p->gens->n, 2 * n + 1);
         assert_string_equal(p->gens->name[0], "x1");
         assert_string_equal(p->gens->name[n], "y1");
@@ -432,7 +350,7 @@ static void heisenberg_1_should_have_three_generators(void **state)
     (void)state;
 
     pres_init(p);
-    parse_pres_ok(p, "heisenberg(1)");
+    parse_pres_or_fail(p, "heisenberg(1)");
     assert_int_equal(p->gens->n, 3);
     s = pres_get_str(p);
     assert_string_equal(s, "<x1, y1, z | [x1,y1] = z, [x1,z], [y1,z]>");
@@ -447,7 +365,7 @@ static void surface_should_have_one_balanced_relator(void **state)
     (void)state;
 
     pres_init(p);
-    parse_pres_ok(p, "surface(2)");
+    parse_pres_or_fail(p, "surface(2)");
     assert_int_equal(p->gens->n, 4);
     assert_string_equal(p->gens->name[0], "a1");
     assert_string_equal(p->gens->name[3], "b2");
@@ -468,13 +386,13 @@ static void surface_should_have_one_balanced_relator(void **state)
         fmpz_mat_init(want, 3, 3);
         fmpz_mat_init(t, 3, 3);
         fmpz_mat_init(inv, 3, 3);
-        eval_node(m, p->rels[0].root, g);
+        eval_in_matrices(m, p->rels[0].root, g);
         fmpz_mat_one(want);
         for (int k = 0; k < 2; k++) {
             /* [a,b] = a^-1 b^-1 a b */
-            mat_inv(inv, g + 2 * k);
+            mat_inv_unimodular(inv, g + 2 * k);
             fmpz_mat_mul(t, want, inv);
-            mat_inv(inv, g + 2 * k + 1);
+            mat_inv_unimodular(inv, g + 2 * k + 1);
             fmpz_mat_mul(want, t, inv);
             fmpz_mat_mul(t, want, g + 2 * k);
             fmpz_mat_mul(want, t, g + 2 * k + 1);
@@ -509,7 +427,7 @@ static void unitriangular_should_hold_in_UT_n_Z(void **state)
         g = elementary_matrices(n, n - 1, row, col);
         snprintf(text, sizeof text, "unitriangular(%ld)", (long)n);
         pres_init(p);
-        parse_pres_ok(p, text);
+        parse_pres_or_fail(p, text);
         assert_int_equal(p->gens->n, n - 1);
         /* one relation per pair of positions i<j, minus the pairs
          * (e_ij, e_j(j+1)) that define the longer commutators */
@@ -528,13 +446,13 @@ static void unitriangular_should_name_superdiagonal_generators(void **state)
     (void)state;
 
     pres_init(p);
-    parse_pres_ok(p, "unitriangular(11)");
+    parse_pres_or_fail(p, "unitriangular(11)");
     assert_int_equal(p->gens->n, 10);
     assert_string_equal(p->gens->name[0], "e12");
     assert_string_equal(p->gens->name[7], "e89");
     assert_string_equal(p->gens->name[8], "e9_10");
     assert_string_equal(p->gens->name[9], "e10_11");
-    parse_pres_ok(p, "unitriangular(3)");
+    parse_pres_or_fail(p, "unitriangular(3)");
     {
         char *s = pres_get_str(p);
         assert_string_equal(s, "<e12, e23 | [e12,[e12,e23]], [e23,[e12,e23]]>");
@@ -550,7 +468,7 @@ static void raag_should_add_one_commutator_per_edge(void **state)
     (void)state;
 
     pres_init(p);
-    parse_pres_ok(p, "raag(a b c d; a-b b-c c-d)");
+    parse_pres_or_fail(p, "raag(a b c d; a-b b-c c-d)");
     assert_int_equal(p->gens->n, 4);
     assert_int_equal(p->nrels, 3);
     for (slong i = 0; i < 3; i++) {
@@ -563,12 +481,12 @@ static void raag_should_add_one_commutator_per_edge(void **state)
     s = pres_get_str(p);
     assert_string_equal(s, "<a, b, c, d | [a,b], [b,c], [c,d]>");
     flint_free(s);
-    parse_pres_ok(p, "raag(u, v, w)");
+    parse_pres_or_fail(p, "raag(u, v, w)");
     assert_int_equal(p->gens->n, 3);
     assert_int_equal(p->nrels, 0);
-    parse_pres_ok(p, "raag(u v;)");
+    parse_pres_or_fail(p, "raag(u v;)");
     assert_int_equal(p->nrels, 0);
-    parse_pres_ok(p, "raag(u v w; u-v, w-u)");
+    parse_pres_or_fail(p, "raag(u v w; u-v, w-u)");
     assert_int_equal(p->nrels, 2);
     /* a complete graph: the free abelian group; many edges stay fast */
     {
@@ -583,7 +501,7 @@ static void raag_should_add_one_commutator_per_edge(void **state)
             for (int j = i + 1; j < nv; j++)
                 len += (size_t)snprintf(t + len, cap - len, " v%d-v%d", i, j);
         snprintf(t + len, cap - len, ")");
-        parse_pres_ok(p, t);
+        parse_pres_or_fail(p, t);
         assert_int_equal(p->nrels, nv * (nv - 1) / 2);
         free(t);
     }
@@ -637,7 +555,7 @@ typedef struct {
 static void map_fixture_init(map_fixture *f, const char *pres)
 {
     pres_init(f->p);
-    parse_pres_ok(f->p, pres);
+    parse_pres_or_fail(f->p, pres);
     for (int i = 0; i < 3; i++)
         expr_init(f->img + i);
 }

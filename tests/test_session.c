@@ -20,31 +20,10 @@
 
 #include "pres.h"
 #include "session.h"
+#include "testutil.h"
 
 /* ------------------------------------------------------------------------ */
 /* Helpers                                                                   */
-
-static uint64_t rng_state;
-
-static uint64_t rng_next(void)
-{
-    uint64_t z = (rng_state += 0x9E3779B97F4A7C15ULL);
-    z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ULL;
-    z = (z ^ (z >> 27)) * 0x94D049BB133111EBULL;
-    return z ^ (z >> 31);
-}
-
-static long rng_range(long lo, long hi)
-{
-    return lo + (long)(rng_next() % (uint64_t)(hi - lo + 1));
-}
-
-static long scaled(long n)
-{
-    const char *e = getenv("NILSTEP_SCALE");
-    long k = e ? atol(e) : 1;
-    return n * (k > 0 ? k : 1);
-}
 
 static void parse_ok(session_t s, const char *text)
 {
@@ -508,13 +487,10 @@ static char *random_text(int allow_lines)
 
 static void get_str_then_parse_should_give_an_equal_session(void **state)
 {
-    const char *e = getenv("NILSTEP_SEED");
-    long cases = scaled(300);
+    long cases = count_scaled_by("NILSTEP_SCALE", 300);
     (void)state;
 
-    rng_state = e ? strtoull(e, NULL, 0) : 20240602ULL;
-    printf("# session round trip: seed %llu (set NILSTEP_SEED to replay)\n",
-           (unsigned long long)rng_state);
+    rng_seed_test("session round trip", 20240602ULL, "set NILSTEP_SEED to replay");
     for (long c = 0; c < cases; c++) {
         session_t s, t;
         nserr_t err;
