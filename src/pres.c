@@ -318,8 +318,7 @@ static ns_status parse_angle(pres_t p, expr_scan_t s, nserr_t err)
                     s->tok.kind == EXPR_TOK_RBRACK)
                     st = err_unexpected(err, &s->tok);
                 else
-                    st = err_expected(err, &s->tok, "expected ',' or '>' after a relation",
-                                      &open);
+                    st = err_expected(err, &s->tok, "expected ',' or '>' after a relation", &open);
                 goto done;
             }
         }

@@ -53,6 +53,21 @@ static void text_copy(session_text_struct *dst, const session_text_struct *src)
         text_set(dst, src->text, strlen(src->text), src->line, src->col);
 }
 
+/* Appends the line [a, e) without its leading and trailing blanks, after a
+ * '\n' unless b is empty; a blank line adds nothing. */
+static void put_trimmed_line(strbuf_t b, const char *a, const char *e)
+{
+    while (a < e && is_blank(*a))
+        a++;
+    while (e > a && is_blank(e[-1]))
+        e--;
+    if (e > a) {
+        if (b->len > 0)
+            strbuf_puts(b, "\n");
+        strbuf_putn(b, a, (size_t)(e - a));
+    }
+}
+
 /* The normal form of a text: its lines without leading and trailing blanks,
  * empty lines left out, joined by '\n'.  NULL counts as empty.  This is
  * what survives a write and a read, so it is what equality compares. */
@@ -64,19 +79,10 @@ static char *norm_text(const char *t)
     if (t == NULL)
         return strbuf_take(b);
     while (*t != '\0') {
-        const char *e = strchr(t, '\n'), *a = t, *z;
+        const char *e = strchr(t, '\n');
         if (e == NULL)
             e = t + strlen(t);
-        while (a < e && is_blank(*a))
-            a++;
-        z = e;
-        while (z > a && is_blank(z[-1]))
-            z--;
-        if (z > a) {
-            if (b->len > 0)
-                strbuf_puts(b, "\n");
-            strbuf_putn(b, a, (size_t)(z - a));
-        }
+        put_trimmed_line(b, t, e);
         t = *e ? e + 1 : e;
     }
     return strbuf_take(b);
@@ -534,23 +540,13 @@ static void free_text(strbuf_t b, const entry *e)
 
     while (p < e->vend) {
         const char *le = memchr(p, '\n', (size_t)(e->vend - p));
-        const char *a = p, *z;
         if (le == NULL)
             le = e->vend;
         if (!first && *p == '#') {
             p = le + 1;
             continue;
         }
-        while (a < le && is_blank(*a))
-            a++;
-        z = le;
-        while (z > a && is_blank(z[-1]))
-            z--;
-        if (z > a) {
-            if (b->len > 0)
-                strbuf_puts(b, "\n");
-            strbuf_putn(b, a, (size_t)(z - a));
-        }
+        put_trimmed_line(b, p, le);
         first = 0;
         p = le + 1;
     }
