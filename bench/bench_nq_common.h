@@ -96,7 +96,7 @@ typedef struct {
     slong c;             /* the class asked of nq_compute */
     const char *formula; /* the formula's name, for the line of its ranks */
     void (*rank)(fmpz_t out, ulong param, ulong n); /* rank of layer n */
-    ulong param;         /* the formula's parameter: rank or genus */
+    ulong param;                                    /* the formula's parameter: rank or genus */
 } bench_nq_case;
 
 static double bench_cpu_seconds(void)
