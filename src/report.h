@@ -11,7 +11,7 @@ int report_parse_format(const char *s);
 
 /* The report of A (which must have a group; the map part is written when A
  * has a map).  title may be NULL.  Returns a string the caller frees with
- * free(). */
+ * flint_free(). */
 char *report_get_str(const analysis_t A, report_format fmt, const char *title);
 
 #endif

@@ -1,4 +1,6 @@
 /* strbuf.c — see strbuf.h. */
+#include <stdarg.h>
+#include <stdio.h>
 #include <string.h>
 
 #include <flint/flint.h>
@@ -20,7 +22,8 @@ void strbuf_clear(strbuf_t b)
     b->len = b->cap = 0;
 }
 
-void strbuf_putn(strbuf_t b, const char *s, size_t n)
+/* Room for n more bytes and the terminating NUL. */
+static void strbuf_grow(strbuf_t b, size_t n)
 {
     if (b->len + n + 1 > b->cap) {
         size_t cap = b->cap ? b->cap : 64;
@@ -29,6 +32,11 @@ void strbuf_putn(strbuf_t b, const char *s, size_t n)
         b->s = flint_realloc(b->s, cap);
         b->cap = cap;
     }
+}
+
+void strbuf_putn(strbuf_t b, const char *s, size_t n)
+{
+    strbuf_grow(b, n);
     memcpy(b->s + b->len, s, n);
     b->len += n;
     b->s[b->len] = '\0';
@@ -45,4 +53,59 @@ char *strbuf_take(strbuf_t b)
     b->s = NULL;
     b->len = b->cap = 0;
     return s;
+}
+
+void strbuf_printf(strbuf_t b, const char *fmt, ...)
+{
+    va_list ap;
+    va_start(ap, fmt);
+    int n = vsnprintf(NULL, 0, fmt, ap);
+    va_end(ap);
+    if (n <= 0)
+        return;
+    strbuf_grow(b, (size_t)n);
+    va_start(ap, fmt);
+    vsnprintf(b->s + b->len, (size_t)n + 1, fmt, ap);
+    va_end(ap);
+    b->len += (size_t)n;
+}
+
+void strbuf_put_json_str(strbuf_t b, const char *s)
+{
+    strbuf_puts(b, "\"");
+    for (const unsigned char *p = (const unsigned char *)s; *p; p++) {
+        if (*p == '"' || *p == '\\')
+            strbuf_printf(b, "\\%c", *p);
+        else if (*p == '\n')
+            strbuf_puts(b, "\\n");
+        else if (*p == '\t')
+            strbuf_puts(b, "\\t");
+        else if (*p < 0x20)
+            strbuf_printf(b, "\\u%04x", *p);
+        else
+            strbuf_putn(b, (const char *)p, 1);
+    }
+    strbuf_puts(b, "\"");
+}
+
+void strbuf_put_latex_str(strbuf_t b, const char *s)
+{
+    for (const char *p = s; *p; p++) {
+        switch (*p) {
+        case '\\':
+            strbuf_puts(b, "\\textbackslash{}");
+            break;
+        case '{': case '}': case '$': case '&': case '#': case '_': case '%':
+            strbuf_printf(b, "\\%c", *p);
+            break;
+        case '^':
+            strbuf_puts(b, "\\^{}");
+            break;
+        case '~':
+            strbuf_puts(b, "\\~{}");
+            break;
+        default:
+            strbuf_putn(b, p, 1);
+        }
+    }
 }

@@ -1,8 +1,8 @@
 /* strbuf.h — a growing string allocated with FLINT's allocator.
  *
- * Internal to the engine: the printers of expr, pres and session build their
- * strings here, and their callers free them with flint_free().  (The report
- * writers use sbuf.h, whose strings are freed with free().) */
+ * Internal to the engine: the printers of expr, pres and session and the
+ * report writers build their strings here, and their callers free them with
+ * flint_free(). */
 #ifndef NILSTEP_STRBUF_H
 #define NILSTEP_STRBUF_H
 
@@ -22,6 +22,13 @@ void strbuf_clear(strbuf_t b);
  * string s. */
 void strbuf_putn(strbuf_t b, const char *s, size_t n);
 void strbuf_puts(strbuf_t b, const char *s);
+
+/* Appends printf-style formatted text. */
+void strbuf_printf(strbuf_t b, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
+/* Appends s as a JSON string literal, quotes included. */
+void strbuf_put_json_str(strbuf_t b, const char *s);
+/* Appends s with the LaTeX special characters escaped. */
+void strbuf_put_latex_str(strbuf_t b, const char *s);
 
 /* Hands the string over to the caller (flint_free()); b is left empty and
  * needs strbuf_init before it is used again. */

@@ -245,7 +245,7 @@ int cli_report(int argc, char **argv)
     }
     char *out = report_get_str(A, (report_format)fmt, title);
     fputs(out, stdout);
-    free(out);
+    flint_free(out);
     if (A->has_map && !A->valid)
         status = 1;
 done:
