@@ -158,6 +158,8 @@ void session_init(session_t s)
     s->group.line = s->group.col = 0;
     s->map.line = s->map.col = 0;
     s->iterate_word.line = s->iterate_word.col = 0;
+    s->comments.text = NULL;
+    s->comments.line = s->comments.col = 0;
     s->cls = 0;
     s->nnotes = 0;
     s->notes = NULL;
@@ -181,6 +183,7 @@ void session_clear(session_t s)
     text_clear(&s->group);
     text_clear(&s->map);
     text_clear(&s->iterate_word);
+    text_clear(&s->comments);
     session_clear_notes(s);
     session_init(s);
 }
@@ -207,6 +210,7 @@ void session_set(session_t dst, const session_t src)
     text_copy(&t->group, &src->group);
     text_copy(&t->map, &src->map);
     text_copy(&t->iterate_word, &src->iterate_word);
+    text_copy(&t->comments, &src->comments);
     t->cls = src->cls;
     for (slong i = 0; i < src->nnotes; i++)
         push_note(t, src->notes[i].text, strlen(src->notes[i].text), src->notes[i].line,
@@ -627,6 +631,8 @@ static ns_status parse_buf(session_struct *s, const char *buf, size_t len, nserr
     memset(&cur, 0, sizeof cur);
     cur.key = -1;
     cur.vstart = NULL;
+    const char *cstart = NULL, *cend = NULL; /* the comment block before the first key */
+    int cline = 0;
     while (p < end) {
         const char *q, *z;
         le = memchr(p, '\n', (size_t)(end - p));
@@ -640,7 +646,14 @@ static ns_status parse_buf(session_struct *s, const char *buf, size_t len, nserr
             z--;
 
         if (q == le || *p == '#') {
-            /* blank or comment line */
+            /* blank or comment line; the comments before the first key are kept */
+            if (*p == '#' && cur.key < 0) {
+                if (cstart == NULL) {
+                    cstart = p;
+                    cline = line;
+                }
+                cend = z;
+            }
         } else if (is_blank(*p)) {
             if (cur.key < 0)
                 return nserr_set(err, NS_ERR_SYNTAX, line, col_of(p, q),
@@ -690,6 +703,26 @@ static ns_status parse_buf(session_struct *s, const char *buf, size_t len, nserr
     }
     if ((st = finish_entry(s, &cur, err)) != NS_OK)
         return st;
+    if (cstart != NULL) {
+        /* verbatim, but without blank lines or a CR before a line break */
+        strbuf_t c;
+        strbuf_init(c);
+        for (const char *a = cstart; a < cend;) {
+            const char *e = memchr(a, '\n', (size_t)(cend - a));
+            const char *f = e ? e : cend;
+            const char *g = f;
+            while (g > a && (g[-1] == '\r' || is_blank(g[-1])))
+                g--;
+            if (g > a && *a == '#') {
+                if (c->len)
+                    strbuf_puts(c, "\n");
+                strbuf_putn(c, a, (size_t)(g - a));
+            }
+            a = e ? e + 1 : cend;
+        }
+        text_set(&s->comments, c->s, c->len, cline, 1);
+        strbuf_clear(c);
+    }
     if (s->group.text == NULL)
         return nserr_set(err, NS_ERR_INPUT, 0, 0, "missing key 'group' (the presentation)");
     if (s->cls == 0)
@@ -807,6 +840,10 @@ char *session_get_str(const session_t s)
 
     strbuf_init(b);
     strbuf_puts(b, SESSION_MAGIC "\n");
+    if (has_text(s->comments.text)) {
+        strbuf_puts(b, s->comments.text);
+        strbuf_puts(b, "\n");
+    }
     if (has_text(s->title.text))
         put_entry(b, "title", NULL, s->title.text);
     if (has_text(s->group.text))

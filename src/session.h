@@ -80,6 +80,10 @@ typedef struct {
     slong cursor_layer;         /* -1 = absent */
     slong cursor_image;         /* -1 = absent */
     session_text_struct iterate_word; /* raw, as in the file */
+    session_text_struct comments; /* the '#' lines between the first line and
+                                     the first key, kept verbatim and written
+                                     back there on saving (other comments are
+                                     not kept); NULL = none */
     slong iterate_steps;        /* -1 = absent */
 } session_struct;
 typedef session_struct session_t[1];

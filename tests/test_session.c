@@ -685,6 +685,43 @@ static void save_should_fail_cleanly_and_keep_the_old_file(void **state)
     session_clear(s);
 }
 
+/* Saving over a scenario must not lose the comment that explains it: the
+ * '#' lines before the first key come back after the first line. */
+static void get_str_should_keep_the_leading_comment_block(void **state)
+{
+    (void)state;
+    const char *text = "nilstep session 1\n"
+                       "# what this shows,\n"
+                       "#   over two lines   \n"
+                       "\n"
+                       "title  T\n"
+                       "# a comment between keys is not kept\n"
+                       "group  <a | >\n"
+                       "class  2\n";
+    session_t s, t;
+    nserr_t err;
+    session_init(s);
+    session_init(t);
+    nserr_init(err);
+    assert_int_equal(session_parse(s, text, err), NS_OK);
+    assert_non_null(s->comments.text);
+    assert_string_equal(s->comments.text, "# what this shows,\n#   over two lines");
+    assert_int_equal(s->comments.line, 2);
+    char *out = session_get_str(s);
+    assert_string_equal(out, "nilstep session 1\n"
+                             "# what this shows,\n"
+                             "#   over two lines\n"
+                             "title   T\n"
+                             "group   <a | >\n"
+                             "class   2\n");
+    assert_int_equal(session_parse(t, out, err), NS_OK);
+    assert_string_equal(t->comments.text, s->comments.text);
+    flint_free(out);
+    session_clear(s);
+    session_clear(t);
+    nserr_clear(err);
+}
+
 static void failed_parse_should_leave_the_session_unchanged(void **state)
 {
     session_t s;
@@ -723,6 +760,7 @@ int main(void)
         cmocka_unit_test(save_should_replace_the_file_and_leave_no_temporary),
         cmocka_unit_test(save_should_fail_cleanly_and_keep_the_old_file),
         cmocka_unit_test(failed_parse_should_leave_the_session_unchanged),
+        cmocka_unit_test(get_str_should_keep_the_leading_comment_block),
     };
     int failed = cmocka_run_group_tests(tests, NULL, NULL);
     flint_cleanup_master(); /* FLINT's cache of big integers, for valgrind */
