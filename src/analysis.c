@@ -336,7 +336,7 @@ ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_pro
             analysis_clear_map(A);
             return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
         }
-        st = spectrum_compute(L->spectrum, L->matrix, e2);
+        st = spectrum_compute_progress(L->spectrum, L->matrix, progress, e2);
         if (st != NS_OK) {
             analysis_clear_map(A);
             return nserr_set(err, st, 0, 0, "layer %ld: %s", (long)j, e2->msg);

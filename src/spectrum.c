@@ -12,6 +12,9 @@
 #include <flint/ulong_extras.h>
 #include <arb_fmpz_poly.h>
 
+#include <flint/nmod_mat.h>
+#include <flint/nmod_poly.h>
+#include <flint/ulong_extras.h>
 #include "spectrum.h"
 
 /* Rounds of precision doubling spent separating the candidates for the
@@ -899,7 +902,81 @@ static void compute_entropy(spectrum_t S)
     arb_clear(t);
 }
 
+/* det(xI - M) by reduction modulo word-size primes and signed Chinese
+ * remaindering, polling progress between primes so that large layers can be
+ * cancelled.  Every eigenvalue has |lambda| <= R = min(max row sum, max
+ * column sum) of |M| (Gershgorin), so |c_k| = |e_k(lambda)| <= C(d,k) R^k <=
+ * (1 + R)^d: bits((1 + R)^d) + 2 bits of modulus suffice.  For the layer
+ * matrices of nilpotent groups R is small, and this bound needs far fewer
+ * primes than a Hadamard bound.  Returns 1 when cancelled. */
+static int charpoly_multimodular(fmpz_poly_t cp, const fmpz_mat_t M,
+                                 const ns_progress_t *progress)
+{
+    slong d = fmpz_mat_nrows(M);
+    fmpz_t R, t, m;
+    fmpz_init(R);
+    fmpz_init(t);
+    fmpz_init(m);
+    /* R = min(max row sum, max column sum) of |M| */
+    for (int pass = 0; pass < 2; pass++) {
+        fmpz_t best;
+        fmpz_init(best);
+        for (slong i = 0; i < d; i++) {
+            fmpz_zero(t);
+            for (slong j = 0; j < d; j++) {
+                const fmpz *x = pass ? fmpz_mat_entry(M, j, i) : fmpz_mat_entry(M, i, j);
+                if (fmpz_sgn(x) < 0)
+                    fmpz_sub(t, t, x);
+                else
+                    fmpz_add(t, t, x);
+            }
+            if (fmpz_cmp(t, best) > 0)
+                fmpz_set(best, t);
+        }
+        if (pass == 0 || fmpz_cmp(best, R) < 0)
+            fmpz_set(R, best);
+        fmpz_clear(best);
+    }
+    fmpz_add_ui(t, R, 1);
+    fmpz_pow_ui(t, t, (ulong)d);
+    flint_bitcnt_t need = fmpz_bits(t) + 2;
+    int cancelled = 0;
+    nmod_mat_t Mp;
+    nmod_poly_t cpp;
+    mp_limb_t p = UWORD(1) << (FLINT_BITS - 2);
+    fmpz_poly_zero(cp);
+    fmpz_one(m);
+    while (fmpz_bits(m) <= need) {
+        if (progress && ns_progress_report(progress, NULL, -1.0)) {
+            cancelled = 1;
+            break;
+        }
+        p = n_nextprime(p, 1);
+        nmod_mat_init(Mp, d, d, p);
+        nmod_poly_init(cpp, p);
+        fmpz_mat_get_nmod_mat(Mp, M);
+        nmod_mat_charpoly(cpp, Mp);
+        fmpz_poly_CRT_ui(cp, cp, m, cpp, 1);
+        fmpz_mul_ui(m, m, p);
+        nmod_poly_clear(cpp);
+        nmod_mat_clear(Mp);
+    }
+    fmpz_clear(R);
+    fmpz_clear(t);
+    fmpz_clear(m);
+    return cancelled;
+}
+
+/* Below this dimension FLINT's own charpoly is quick enough. */
+#define SPECTRUM_MULTIMODULAR_MIN_DIM 12
+
 ns_status spectrum_compute(spectrum_t S, const fmpz_mat_t M, nserr_t err)
+{
+    return spectrum_compute_progress(S, M, NULL, err);
+}
+
+ns_status spectrum_compute_progress(spectrum_t S, const fmpz_mat_t M,
+                                    const ns_progress_t *progress, nserr_t err)
 {
     slong d, nf, k, i, n;
     ns_status st = NS_OK;
@@ -913,7 +990,13 @@ ns_status spectrum_compute(spectrum_t S, const fmpz_mat_t M, nserr_t err)
 
     d = fmpz_mat_nrows(M);
     S->dim = d;
-    fmpz_mat_charpoly(S->charpoly, M);
+    if (d < SPECTRUM_MULTIMODULAR_MIN_DIM)
+        fmpz_mat_charpoly(S->charpoly, M);
+    else if (charpoly_multimodular(S->charpoly, M, progress))
+    {
+        spectrum_reset(S);
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+    }
     fmpz_poly_get_coeff_fmpz(S->det, S->charpoly, 0);
     if (d % 2 != 0)
         fmpz_neg(S->det, S->det);

@@ -172,6 +172,12 @@ void spectrum_clear(spectrum_t S);
  * <= SPECTRUM_QQBAR_ABS_MAX_DEGREE. */
 ns_status spectrum_compute(spectrum_t S, const fmpz_mat_t M, nserr_t err);
 
+/* The same, polling progress (may be NULL) while the characteristic
+ * polynomial of a large matrix is computed prime by prime; a nonzero answer
+ * stops with NS_ERR_CANCELLED and S as for d = 0. */
+ns_status spectrum_compute_progress(spectrum_t S, const fmpz_mat_t M,
+                                    const ns_progress_t *progress, nserr_t err);
+
 /* ---- polynomial data --------------------------------------------------- */
 
 /* d, the dimension of M. */

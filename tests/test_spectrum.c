@@ -1284,6 +1284,69 @@ static void random_properties(void **state)
     flint_randclear(st);
 }
 
+/* The charpoly of a large matrix is computed prime by prime with our own
+ * coefficient bound; it must agree with FLINT's fmpz_mat_charpoly, which
+ * uses its own (Hadamard-type) bound, on matrices with small and with huge
+ * entries. */
+static void charpoly_agrees_with_flint(void **state)
+{
+    (void)state;
+    flint_rand_t rs;
+    flint_randinit(rs);
+    nserr_t err;
+    nserr_init(err);
+    for (slong it = 0; it < 24; it++) {
+        slong d = 12 + (it % 6) * 5;
+        fmpz_mat_t M;
+        fmpz_poly_t ref;
+        fmpz_mat_init(M, d, d);
+        fmpz_poly_init(ref);
+        if (it % 3 == 0)
+            fmpz_mat_randtest(M, rs, 200);
+        else
+            for (slong i = 0; i < d; i++)
+                for (slong j = 0; j < d; j++)
+                    fmpz_set_si(fmpz_mat_entry(M, i, j),
+                                (slong)n_randint(rs, 7) - 3);
+        fmpz_mat_charpoly(ref, M);
+        spectrum_t S;
+        spectrum_init(S);
+        assert_int_equal(spectrum_compute(S, M, err), NS_OK);
+        assert_true(fmpz_poly_equal(spectrum_charpoly(S), ref));
+        spectrum_clear(S);
+        fmpz_poly_clear(ref);
+        fmpz_mat_clear(M);
+    }
+    nserr_clear(err);
+    flint_randclear(rs);
+}
+
+static int stop_now(void *ctx, const char *stage, double f)
+{
+    (void)ctx;
+    (void)stage;
+    (void)f;
+    return 1;
+}
+
+static void large_charpoly_can_be_cancelled(void **state)
+{
+    (void)state;
+    fmpz_mat_t M;
+    fmpz_mat_init(M, 40, 40);
+    fmpz_mat_one(M);
+    ns_progress_t p = {stop_now, NULL};
+    nserr_t err;
+    nserr_init(err);
+    spectrum_t S;
+    spectrum_init(S);
+    assert_int_equal(spectrum_compute_progress(S, M, &p, err), NS_ERR_CANCELLED);
+    assert_int_equal(spectrum_dim(S), 0);
+    spectrum_clear(S);
+    nserr_clear(err);
+    fmpz_mat_clear(M);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -1304,6 +1367,8 @@ int main(void)
         cmocka_unit_test(ball_strings),
         cmocka_unit_test(reference_file),
         cmocka_unit_test(random_properties),
+        cmocka_unit_test(charpoly_agrees_with_flint),
+        cmocka_unit_test(large_charpoly_can_be_cancelled),
     };
     int rc = cmocka_run_group_tests(tests, NULL, NULL);
     flint_cleanup_master();
