@@ -230,6 +230,13 @@ ns_status analysis_set_map_text(analysis_t A, const char *text, int line, int co
     return st;
 }
 
+/* v := column k of the matrix M. */
+static void mat_column(fmpz *v, const fmpz_mat_t M, slong k)
+{
+    for (slong i = 0; i < fmpz_mat_nrows(M); i++)
+        fmpz_set(v + i, fmpz_mat_entry(M, i, k));
+}
+
 /* 1 if the map induced on the whole layer (torsion included) is nilpotent:
  * the free part is nilpotent by assumption, so some power A^N with N the
  * number of generators plus the number of prime factors of the torsion
@@ -248,8 +255,7 @@ static int layer_map_nilpotent(const analysis_layer_struct *L)
     int nil = 1;
     fmpz *v = _fmpz_vec_init(cnt);
     for (slong k = 0; k < cnt && nil; k++) {
-        for (slong i = 0; i < cnt; i++)
-            fmpz_set(v + i, fmpz_mat_entry(P, i, k));
+        mat_column(v, P, k);
         nil = layer_is_trivial_vec(L->lcs, v);
     }
     _fmpz_vec_clear(v, cnt);
@@ -268,8 +274,7 @@ static int layer_map_onto(const analysis_layer_struct *L)
     elim_init(E, cnt);
     fmpz *v = _fmpz_vec_init(cnt);
     for (slong k = 0; k < cnt; k++) {
-        for (slong i = 0; i < cnt; i++)
-            fmpz_set(v + i, fmpz_mat_entry(L->action, i, k));
+        mat_column(v, L->action, k);
         elim_add_dense(E, v);
     }
     for (slong k = 0; k < L->lcs->nfinite; k++)

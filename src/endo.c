@@ -114,7 +114,7 @@ int endo_ensure_pc_images(const endo_t E, const nq_t Q, pcp_work_t W)
 
 static ns_status finish(endo_t E, const nq_t Q, pcp_work_t W, nserr_t err)
 {
-    slong n = Q->pcp->n, X = Q->pres->gens->n;
+    slong n = Q->pcp->n;
     fmpz *val = _fmpz_vec_init(FLINT_MAX(n, 1));
     E->valid = 1;
     for (slong r = 0; r < Q->pres->nrels && !W->overflow; r++) {
@@ -135,14 +135,16 @@ static ns_status finish(endo_t E, const nq_t Q, pcp_work_t W, nserr_t err)
     if (E->valid && !W->overflow)
         layer_actions(E, Q);
     _fmpz_vec_clear(val, FLINT_MAX(n, 1));
-    (void)X;
     if (W->overflow)
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "the map's analysis was stopped");
     return NS_OK;
 }
 
-ns_status endo_set(endo_t E, const nq_t Q, const expr_struct *images,
-                   const ns_progress_t *progress, nserr_t err)
+/* The common part of endo_set and endo_set_elts: the images come either as
+ * words (images) or as elements (gen_img). */
+static ns_status endo_set_from(endo_t E, const nq_t Q, const expr_struct *images,
+                               const fmpz *gen_img, const ns_progress_t *progress,
+                               nserr_t err)
 {
     endo_clear(E);
     slong n = Q->pcp->n, X = Q->pres->gens->n;
@@ -152,8 +154,11 @@ ns_status endo_set(endo_t E, const nq_t Q, const expr_struct *images,
     pcp_work_t W;
     pcp_work_init(W, Q->pcp);
     W->progress = progress;
-    for (slong x = 0; x < X && !W->overflow; x++)
-        pcp_eval_expr(W, E->gen_img + x * n, images[x].root, Q->images);
+    if (images)
+        for (slong x = 0; x < X && !W->overflow; x++)
+            pcp_eval_expr(W, E->gen_img + x * n, images[x].root, Q->images);
+    else
+        _fmpz_vec_set(E->gen_img, gen_img, X * n);
     ns_status st = finish(E, Q, W, err);
     pcp_work_clear(W);
     if (st != NS_OK)
@@ -161,23 +166,16 @@ ns_status endo_set(endo_t E, const nq_t Q, const expr_struct *images,
     return st;
 }
 
+ns_status endo_set(endo_t E, const nq_t Q, const expr_struct *images,
+                   const ns_progress_t *progress, nserr_t err)
+{
+    return endo_set_from(E, Q, images, NULL, progress, err);
+}
+
 ns_status endo_set_elts(endo_t E, const nq_t Q, const fmpz *gen_img,
                         const ns_progress_t *progress, nserr_t err)
 {
-    endo_clear(E);
-    slong n = Q->pcp->n, X = Q->pres->gens->n;
-    E->n = n;
-    E->ngens = X;
-    E->gen_img = _fmpz_vec_init(FLINT_MAX(X * n, 1));
-    _fmpz_vec_set(E->gen_img, gen_img, X * n);
-    pcp_work_t W;
-    pcp_work_init(W, Q->pcp);
-    W->progress = progress;
-    ns_status st = finish(E, Q, W, err);
-    pcp_work_clear(W);
-    if (st != NS_OK)
-        endo_clear(E);
-    return st;
+    return endo_set_from(E, Q, NULL, gen_img, progress, err);
 }
 
 void endo_apply(const endo_t E, const nq_t Q, fmpz *out, const fmpz *g, pcp_work_t W)

@@ -90,6 +90,22 @@ static void tail_value(fmpz *v, const elim_quotient_t q, slong t)
     reduce_central(v, q);
 }
 
+/* w := the class-c right-hand side of a_k^(a_i): the stored word, or a_k
+ * itself for a pair that commuted. */
+static void old_conj_word(pcw_t w, const pcp_struct *P, slong k, slong i)
+{
+    slong s = pcp_slot(k, i);
+    if (k < P->ncore && !P->trivial[s])
+        pcw_set(w, P->conj + s);
+    else {
+        fmpz_t one;
+        fmpz_init_set_ui(one, 1);
+        pcw_zero(w);
+        pcw_push(w, k, one);
+        fmpz_clear(one);
+    }
+}
+
 /* Sets the power relations of the survivors (indices base.. in P). */
 static void set_survivor_powers(pcp_t P, const elim_quotient_t q, slong base)
 {
@@ -270,12 +286,7 @@ static ns_status step(nq_t Q, slong c, pcp_work_t W, const ns_progress_t *prog, 
             slong s = pcp_slot(k, i);
             if (P->weight[i] + P->weight[k] > c + 1)
                 continue;
-            if (k < P->ncore && !P->trivial[s])
-                pcw_set(w, P->conj + s);
-            else {
-                pcw_zero(w);
-                pcw_push(w, k, one);
-            }
+            old_conj_word(w, P, k, i);
             if (tailof[s] >= 0)
                 pcw_push(w, n + tailof[s], one);
             pcp_set_conj(E, k, i, w);
@@ -377,12 +388,7 @@ static ns_status step(nq_t Q, slong c, pcp_work_t W, const ns_progress_t *prog, 
                 slong s = pcp_slot(k, i);
                 if (P->weight[i] + P->weight[k] > c + 1)
                     continue;
-                if (k < P->ncore && !P->trivial[s])
-                    pcw_set(w, P->conj + s);
-                else {
-                    pcw_zero(w);
-                    pcw_push(w, k, one);
-                }
+                old_conj_word(w, P, k, i);
                 if (tailof[s] >= 0) {
                     tail_value(v, q, tailof[s]);
                     push_central(w, v, ns, n);
