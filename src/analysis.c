@@ -335,8 +335,19 @@ ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_pro
     nserr_init(e2);
     for (slong j = 1; j <= A->nlayers; j++) {
         analysis_layer_struct *L = A->layers + j - 1;
-        if (j <= c)
+        if (j <= c) {
             endo_layer_matrices(L->action, L->matrix, A->endo, L->lcs);
+            /* show the action by canonical representatives modulo the
+             * layer's relations, so that torsion entries stay small */
+            fmpz *v = _fmpz_vec_init(FLINT_MAX(L->npc, 1));
+            for (slong k = 0; k < L->npc; k++) {
+                mat_column(v, L->action, k);
+                layer_reduce_vec(L->lcs, v);
+                for (slong i = 0; i < L->npc; i++)
+                    fmpz_set(fmpz_mat_entry(L->action, i, k), v + i);
+            }
+            _fmpz_vec_clear(v, FLINT_MAX(L->npc, 1));
+        }
         if (progress && ns_progress_report(progress, "spectra", (double)j / (double)A->nlayers)) {
             analysis_clear_map(A);
             return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");

@@ -9,6 +9,7 @@ void layer_init(layer_t L)
     fmpz_mat_init(L->rel, 0, 0);
     fmpz_mat_init(L->phi, 0, 0);
     fmpz_mat_init(L->sigma, 0, 0);
+    fmpz_mat_init(L->hnf, 0, 0);
 }
 
 void layer_clear(layer_t L)
@@ -19,6 +20,7 @@ void layer_clear(layer_t L)
     fmpz_mat_clear(L->rel);
     fmpz_mat_clear(L->phi);
     fmpz_mat_clear(L->sigma);
+    fmpz_mat_clear(L->hnf);
     memset(L, 0, sizeof(layer_struct));
 }
 
@@ -75,6 +77,10 @@ void layer_compute(layer_t L, const nq_t Q, slong j)
                          fmpz_mat_entry(L->rel, row, w->gen[t] - s), w->exp + t);
         row++;
     }
+    fmpz_mat_clear(L->hnf);
+    fmpz_mat_init(L->hnf, f, cnt);
+    if (f > 0)
+        fmpz_mat_hnf(L->hnf, L->rel);
     if (f == 0) {
         fmpz_mat_one(L->phi);
         fmpz_mat_one(L->sigma);
@@ -111,6 +117,23 @@ void layer_compute(layer_t L, const nq_t Q, slong j)
         L->basis[k] = vec_label(v, cnt, Q->labels + s);
     }
     _fmpz_vec_clear(v, FLINT_MAX(cnt, 1));
+}
+
+void layer_reduce_vec(const layer_t L, fmpz *v)
+{
+    fmpz_t q;
+    fmpz_init(q);
+    slong p = 0;
+    for (slong r = 0; r < fmpz_mat_nrows(L->hnf); r++) {
+        while (p < L->count && fmpz_is_zero(fmpz_mat_entry(L->hnf, r, p)))
+            p++;
+        if (p >= L->count)
+            break;
+        fmpz_fdiv_q(q, v + p, fmpz_mat_entry(L->hnf, r, p));
+        if (!fmpz_is_zero(q))
+            _fmpz_vec_scalar_submul_fmpz(v, L->hnf->rows[r], L->count, q);
+    }
+    fmpz_clear(q);
 }
 
 int layer_is_trivial_vec(const layer_t L, const fmpz *v)

@@ -21,6 +21,7 @@ typedef struct {
     fmpz_mat_t rel;   /* nfinite x count */
     fmpz_mat_t phi;   /* free_rank x count */
     fmpz_mat_t sigma; /* count x free_rank */
+    fmpz_mat_t hnf;   /* nfinite x count: the Hermite normal form of rel */
     char **basis;     /* free_rank labels, owned */
 } layer_struct;
 typedef layer_struct layer_t[1];
@@ -29,6 +30,11 @@ void layer_init(layer_t L);
 void layer_clear(layer_t L);
 /* Reads layer j (1-based, j <= Q->class_reached) of Q. */
 void layer_compute(layer_t L, const nq_t Q, slong j);
+
+/* Reduces the layer vector v (count entries) in place to the canonical
+ * representative of its class modulo the rows of rel: each pivot entry of
+ * the Hermite form ends in [0, pivot). */
+void layer_reduce_vec(const layer_t L, fmpz *v);
 
 /* 1 if the layer vector v (count entries) lies in the row lattice of rel. */
 int layer_is_trivial_vec(const layer_t L, const fmpz *v);

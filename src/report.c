@@ -357,7 +357,8 @@ static void report_json(strbuf_t b, const analysis_t A, const char *title)
         strbuf_printf(b,
                     ",\n   \"automorphism\": %s, \"injective\": %s, \"hyperbolic\": %s, "
                     "\"expanding\": %s, \"image_index\": ",
-                    A->automorphism ? "true" : "false", A->injective ? "true" : "false",
+                    A->automorphism ? "true" : "false",
+                    !A->injective_defined ? "null" : A->injective ? "true" : "false",
                     A->hyperbolic ? "true" : "false", A->expanding ? "true" : "false");
         json_fmpz_or_null(b, A->index_defined, A->image_index);
         strbuf_printf(b, ", \"injective_defined\": %s", A->injective_defined ? "true" : "false");
@@ -376,6 +377,12 @@ static void report_json(strbuf_t b, const analysis_t A, const char *title)
         } else
             strbuf_puts(b, "null");
         free_images(A, inv);
+    } else {
+        /* a map that is not well defined has none of these numbers */
+        strbuf_puts(b, ",\n   \"lower_bound\": null, \"upper_bound\": null, \"growth_rate\": null, "
+                       "\"entropy\": null, \"lefschetz\": null, \"nielsen\": null, "
+                       "\"reidemeister\": null,\n   \"automorphism\": null, \"injective\": null, "
+                       "\"hyperbolic\": null, \"expanding\": null, \"image_index\": null");
     }
     strbuf_puts(b, "}}\n");
 }
@@ -430,8 +437,14 @@ static void report_latex(strbuf_t b, const analysis_t A, const char *title)
     char *pres = presentation(A);
     strbuf_puts(b, "% nilstep report (LaTeX); needs \\usepackage{amsmath,amssymb}\n");
     if (title) {
+        /* every line of a multi-line title stays inside the comment */
         strbuf_puts(b, "% ");
-        strbuf_puts(b, title);
+        for (const char *p = title; *p; p++) {
+            if (*p == '\n')
+                strbuf_puts(b, "\n% ");
+            else
+                strbuf_putn(b, p, 1);
+        }
         strbuf_puts(b, "\n");
     }
     strbuf_puts(b, "\\noindent Group: \\texttt{");
