@@ -562,16 +562,21 @@ ns_status analysis_inverse_images(char ***out, const analysis_t A,
 ns_status analysis_inverse_map_str(char **out, const analysis_t A,
                                    const ns_progress_t *progress, nserr_t err)
 {
-    ns_status st = need_valid(A, err);
+    char **v = NULL;
+    ns_status st = analysis_inverse_images(&v, A, progress, err);
     if (st != NS_OK)
         return st;
-    if (!A->automorphism)
-        return nserr_set(err, NS_ERR_INPUT, 0, 0, "the map is not an automorphism");
-    endo_t I;
-    endo_init(I);
-    st = endo_inverse(I, A->endo, A->nq, progress, err);
-    if (st == NS_OK)
-        *out = map_text_of(A->nq, I->gen_img);
-    endo_clear(I);
-    return st;
+    const names_struct *g = A->nq->pres->gens;
+    size_t len = 1;
+    for (slong x = 0; x < g->n; x++)
+        len += strlen(g->name[x]) + strlen(v[x]) + 6;
+    char *s = malloc(len);
+    s[0] = '\0';
+    for (slong x = 0; x < g->n; x++) {
+        sprintf(s + strlen(s), "%s%s -> %s", x ? ", " : "", g->name[x], v[x]);
+        free(v[x]);
+    }
+    free(v);
+    *out = s;
+    return NS_OK;
 }

@@ -282,5 +282,29 @@ assert m["expanding"] is True and m["growth_rate"] == "2", m
 assert m["lefschetz"] == -3 and m["reidemeister"] == 3, m
 ' "$tmp/out" || fail "session file report: doubling on the Heisenberg group"
 
+# ---------------------------------------------------------------------------
+# Powers, composites, inverses: alpha^-1 followed by alpha is the identity
+# (checked on the images as printed, in the pc labels)
+
+expect_status 0 "inverse then the map" report --group 'free(2)' --class 4 \
+    --map 'a -> a^2 b [a,b], b -> a b' --power -1 --then 'a -> a^2 b [a,b], b -> a b' --format json
+$PY -c '
+import json, sys
+m = json.load(open(sys.argv[1]))["map"]
+assert m["images"] == {"a": "a", "b": "b"}, m["images"]
+' "$tmp/out" || fail "alpha^-1 then alpha should be the identity"
+expect_status 0 "square by --power and by --then" report --group 'free(2)' --class 4 \
+    --map 'a -> a^2 b, b -> a b [a,b]' --power 2 --format json
+cp "$tmp/out" "$tmp/pow2"
+expect_status 0 "square by --then" report --group 'free(2)' --class 4 \
+    --map 'a -> a^2 b, b -> a b [a,b]' --then 'a -> a^2 b, b -> a b [a,b]' --format json
+$PY -c '
+import json, sys
+a = json.load(open(sys.argv[1]))["map"]; b = json.load(open(sys.argv[2]))["map"]
+assert a["images"] == b["images"], (a["images"], b["images"])
+' "$tmp/pow2" "$tmp/out" || fail "--power 2 and --then with the same map should agree"
+expect_status 2 "inverse of a non-automorphism" report --group 'free(2)' --class 2 \
+    --map 'a -> a^2, b -> b' --power -1
+
 echo "# $checks checks passed, $failures failed"
 (( failures == 0 ))

@@ -28,7 +28,8 @@ void cli_print_help(FILE *out)
           "    --group PRES      a presentation, e.g. '<a, b | [a,b,a], [a,b,b]>'\n"
           "    --class C         the nilpotency class, 1..64\n"
           "    --map MAP         images of the generators, e.g. 'a -> a^2 b, b -> a b'\n"
-          "    --power K         analyse the K-th power of the map instead\n"
+          "    --power K         analyse the K-th power of the map instead (K < 0: of\n"
+          "                      its inverse, for automorphisms)\n"
           "    --then MAP2       analyse the composite: first the map, then MAP2\n"
           "\n"
           "Conventions: [x,y] = x^-1 y^-1 x y, [x,y,z] = [[x,y],z], x^y = y^-1 x y;\n"
@@ -92,9 +93,19 @@ static int derived_map(analysis_t A, const char *power, const char *then,
     if (power) {
         char *end;
         long k = strtol(power, &end, 10);
-        if (*power == '\0' || *end != '\0' || k < 0 || k > 1000000)
-            return usage("--power takes a whole number from 0 to 1000000");
-        st = analysis_power_map_str(&text, A, (ulong)k, pp, err);
+        if (*power == '\0' || *end != '\0' || k < -1000000 || k > 1000000)
+            return usage("--power takes a whole number from -1000000 to 1000000");
+        if (k < 0) {
+            /* alpha^-k = (alpha^-1)^k, for automorphisms */
+            st = analysis_inverse_map_str(&text, A, pp, err);
+            if (st == NS_OK)
+                st = analysis_set_map_text(A, text, 1, 1, pp, err);
+            free(text);
+            text = NULL;
+            k = -k;
+        }
+        if (st == NS_OK)
+            st = analysis_power_map_str(&text, A, (ulong)k, pp, err);
         if (st == NS_OK)
             st = analysis_set_map_text(A, text, 1, 1, pp, err);
         free(text);
