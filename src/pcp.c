@@ -512,10 +512,6 @@ void pcp_elt_pow(pcp_work_t W, fmpz *out, const fmpz *u, const fmpz_t e)
     fmpz_t E;
     fmpz_init(E);
     fmpz_abs(E, e);
-    if (fmpz_sgn(e) < 0)
-        pcp_elt_inv(W, base, u);
-    else
-        _fmpz_vec_set(base, u, n);
     /* A single generator to a power is one collection step:
      * (a_g^x)^e = a_g^(x e) in any group. */
     slong nz = 0, g = -1;
@@ -535,6 +531,11 @@ void pcp_elt_pow(pcp_work_t W, fmpz *out, const fmpz *u, const fmpz_t e)
         newton_eval(res, smp, D, n, e);
         _fmpz_vec_clear(smp, (D + 1) * n);
     } else {
+        /* square and multiply; only this branch needs u^-1 for e < 0 */
+        if (fmpz_sgn(e) < 0)
+            pcp_elt_inv(W, base, u);
+        else
+            _fmpz_vec_set(base, u, n);
         slong bits = fmpz_bits(E);
         for (slong b = bits - 1; b >= 0 && !W->overflow; b--) {
             pcp_elt_mul(W, res, res, res);

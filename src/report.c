@@ -26,6 +26,22 @@ static void put_fmpz(strbuf_t b, const fmpz_t x)
     flint_free(s);
 }
 
+/* The Lefschetz, Nielsen and Reidemeister numbers, each after its label;
+ * inf is written for an infinite Reidemeister number. */
+static void put_fixed_point_numbers(strbuf_t b, const analysis_t A, const char *l_label,
+                                    const char *n_label, const char *r_label, const char *inf)
+{
+    strbuf_puts(b, l_label);
+    put_fmpz(b, A->lefschetz);
+    strbuf_puts(b, n_label);
+    put_fmpz(b, A->nielsen);
+    strbuf_puts(b, r_label);
+    if (A->reid_kind == ANALYSIS_REID_INFINITE)
+        strbuf_puts(b, inf);
+    else
+        put_fmpz(b, A->reidemeister);
+}
+
 static const char *yes_no(int v)
 {
     return v ? "yes" : "no";
@@ -165,15 +181,8 @@ static void report_text(strbuf_t b, const analysis_t A, const char *title)
         if (A->log_growth_str)
             strbuf_printf(b, "log growth    %s  (a lower bound for the entropy)\n",
                         A->log_growth_str);
-        strbuf_puts(b, "Lefschetz     ");
-        put_fmpz(b, A->lefschetz);
-        strbuf_puts(b, "\nNielsen       ");
-        put_fmpz(b, A->nielsen);
-        strbuf_puts(b, "\nReidemeister  ");
-        if (A->reid_kind == ANALYSIS_REID_INFINITE)
-            strbuf_puts(b, "infinite");
-        else
-            put_fmpz(b, A->reidemeister);
+        put_fixed_point_numbers(b, A, "Lefschetz     ", "\nNielsen       ",
+                                "\nReidemeister  ", "infinite");
         strbuf_puts(b, "\n");
     }
     strbuf_printf(b, "automorphism  %s\n", yes_no(A->automorphism));
@@ -489,15 +498,8 @@ static void report_latex(strbuf_t b, const analysis_t A, const char *title)
         strbuf_put_latex_str(b, A->undefined_reason);
         strbuf_puts(b, ").\\\\\n");
     } else {
-        strbuf_printf(b, "Entropy $h = %s$; $L = ", A->entropy_str);
-        put_fmpz(b, A->lefschetz);
-        strbuf_puts(b, "$, $N = ");
-        put_fmpz(b, A->nielsen);
-        strbuf_puts(b, "$, $R = ");
-        if (A->reid_kind == ANALYSIS_REID_INFINITE)
-            strbuf_puts(b, "\\infty");
-        else
-            put_fmpz(b, A->reidemeister);
+        strbuf_printf(b, "Entropy $h = %s$", A->entropy_str);
+        put_fixed_point_numbers(b, A, "; $L = ", "$, $N = ", "$, $R = ", "\\infty");
         strbuf_puts(b, "$.\\\\\n");
     }
     strbuf_printf(b, "Automorphism: %s; hyperbolic: %s; expanding: %s.\n",
