@@ -109,3 +109,16 @@ void strbuf_put_latex_str(strbuf_t b, const char *s)
         }
     }
 }
+
+char *strbuf_dup_strn(const char *s, size_t n)
+{
+    char *t = flint_malloc(n + 1);
+    memcpy(t, s, n);
+    t[n] = '\0';
+    return t;
+}
+
+char *strbuf_dup_str(const char *s)
+{
+    return strbuf_dup_strn(s, strlen(s));
+}
