@@ -62,12 +62,6 @@ static void layer_map_clear(analysis_layer_struct *L)
 void analysis_clear_map(analysis_t A)
 {
     slong X = A->has_group ? A->nq->pres->gens->n : 0;
-    if (A->images) {
-        for (slong x = 0; x < X; x++)
-            expr_clear(A->images + x);
-        flint_free(A->images);
-    }
-    A->images = NULL;
     free(A->map_str);
     A->map_str = NULL;
     free_strs(A->fail_relator, A->nfail);
@@ -294,46 +288,14 @@ static char *arb_str(const arb_t x)
     return s ? s : dup_str("(not certified)");
 }
 
-ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_progress_t *progress,
-                           nserr_t err)
+/* Matrices and spectra of every layer (valid map). */
+static ns_status analyse_layers(analysis_t A, const ns_progress_t *progress, nserr_t err)
 {
-    if (!A->has_group)
-        return nserr_set(err, NS_ERR_INPUT, 0, 0, "no group to map");
-    analysis_clear_map(A);
-    const nq_struct *Q = A->nq;
-    slong X = Q->pres->gens->n, n = Q->pcp->n, c = Q->class_reached;
-    A->images = flint_malloc(FLINT_MAX(X, 1) * sizeof(expr_struct));
-    for (slong x = 0; x < X; x++) {
-        expr_init(A->images + x);
-        expr_set(A->images + x, images + x);
-    }
-    A->has_map = 1;
-    A->map_str = own(pres_get_map_str(images, Q->pres));
-    ns_status st = endo_set(A->endo, Q, images, progress, err);
-    if (st != NS_OK) {
-        analysis_clear_map(A);
-        return st;
-    }
-    A->gen_image_str = malloc(FLINT_MAX(X, 1) * sizeof(char *));
-    for (slong x = 0; x < X; x++)
-        A->gen_image_str[x] = own(nq_elt_get_str(Q, A->endo->gen_img + x * n));
-    A->valid = A->endo->valid;
-    if (!A->valid) {
-        A->nfail = A->endo->nfail;
-        A->fail_relator = malloc(A->nfail * sizeof(char *));
-        A->fail_image = malloc(A->nfail * sizeof(char *));
-        for (slong k = 0; k < A->nfail; k++) {
-            slong r = A->endo->fail_rel[k];
-            A->fail_relator[k] = dup_str(Q->pres->text[r]);
-            A->fail_image[k] = own(nq_elt_get_str(Q, A->endo->fail_val + k * n));
-        }
-        return NS_OK;
-    }
-
-    /* Per layer: matrices and spectra. */
+    slong c = A->nq->class_reached;
+    ns_status st = NS_OK;
     nserr_t e2;
     nserr_init(e2);
-    for (slong j = 1; j <= A->nlayers; j++) {
+    for (slong j = 1; j <= A->nlayers && st == NS_OK; j++) {
         analysis_layer_struct *L = A->layers + j - 1;
         if (j <= c) {
             endo_layer_matrices(L->action, L->matrix, A->endo, L->lcs);
@@ -349,13 +311,13 @@ ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_pro
             _fmpz_vec_clear(v, FLINT_MAX(L->npc, 1));
         }
         if (progress && ns_progress_report(progress, "spectra", (double)j / (double)A->nlayers)) {
-            analysis_clear_map(A);
-            return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+            st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+            break;
         }
         st = spectrum_compute_progress(L->spectrum, L->matrix, progress, e2);
         if (st != NS_OK) {
-            analysis_clear_map(A);
-            return nserr_set(err, st, 0, 0, "layer %ld: %s", (long)j, e2->msg);
+            nserr_set(err, st, 0, 0, "layer %ld: %s", (long)j, e2->msg);
+            break;
         }
         const spectrum_struct *S = L->spectrum;
         slong d = spectrum_dim(S);
@@ -382,9 +344,13 @@ ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_pro
         L->n_above_one = spectrum_count_above_one(S);
     }
     nserr_clear(e2);
+    return st;
+}
 
-    /* Bounds: the first layer attaining each maximum.  An undecidable
-     * comparison (equal to thousands of bits) keeps the earlier layer. */
+/* Bounds: the first layer attaining each maximum.  An undecidable
+ * comparison (equal to thousands of bits) keeps the earlier layer. */
+static void analyse_bounds(analysis_t A)
+{
     slong lo = 1, up = 1;
     for (slong j = 2; j <= A->nlayers; j++) {
         int cr = spectrum_cmp_root_bound(A->layers[j - 1].spectrum, (ulong)j,
@@ -404,20 +370,24 @@ ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_pro
         A->lower_bound_str = dup_str("0");
         A->upper_bound_str = dup_str("0");
     }
+}
 
-    /* The exact growth rate (Koberda 2013; Fel'shtyn, Jo and Lee 2014). */
-    arb_t t;
-    arb_init(t);
-    if (c == 0) {
+/* The exact growth rate (Koberda 2013; Fel'shtyn, Jo and Lee 2014). */
+static void analyse_growth(analysis_t A)
+{
+    if (A->nq->class_reached == 0) {
         A->growth_str = dup_str("0");
         A->growth_reason = "the quotient is trivial";
     } else if (spectrum_radius_cmp_one(A->layers[0].spectrum) >= 0) {
+        arb_t t;
+        arb_init(t);
         A->growth_str = dup_str(A->layers[0].rho_str);
         A->growth_reason = "rho_1 >= 1, and the growth rate of a map of a nilpotent group is "
                            "the spectral radius on the abelianisation";
         spectrum_radius_arb(t, A->layers[0].spectrum, 4 * ANALYSIS_DIGITS + 64);
         arb_log(t, t, 4 * ANALYSIS_DIGITS + 64);
         A->log_growth_str = arb_str(t);
+        arb_clear(t);
     } else if (layer_map_nilpotent(A->layers)) {
         A->growth_str = dup_str("0");
         A->growth_reason = "the map is nilpotent on the abelianisation, so a power of it is "
@@ -428,14 +398,19 @@ ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_pro
                            "abelianisation, so word lengths stay bounded and nonzero";
         A->log_growth_str = dup_str("0");
     }
+}
 
-    /* Invariants. */
-    A->automorphism = c == 0 || layer_map_onto(A->layers);
+/* Automorphism, injectivity, hyperbolicity, entropy and the fixed-point
+ * numbers. */
+static void analyse_invariants(analysis_t A)
+{
+    arb_t t;
+    arb_init(t);
+    A->automorphism = A->nq->class_reached == 0 || layer_map_onto(A->layers);
     A->hyperbolic = A->expanding = 1;
     A->injective = 1;
     fmpz_one(A->lefschetz);
     fmpz_one(A->image_index);
-    arb_zero(t);
     int reid_inf = 0;
     for (slong j = 0; j < A->nlayers; j++) {
         const analysis_layer_struct *L = A->layers + j;
@@ -469,10 +444,60 @@ ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_pro
             fmpz_zero(A->image_index);
     }
     arb_clear(t);
+}
+
+/* Everything after the map is set on A->endo (and map_str is written):
+ * the images as normal words, validity, and for a valid map the layers,
+ * bounds, growth and invariants.  On error the map is forgotten. */
+static ns_status analyse_endo(analysis_t A, const ns_progress_t *progress, nserr_t err)
+{
+    const nq_struct *Q = A->nq;
+    slong X = Q->pres->gens->n, n = Q->pcp->n;
+    A->gen_image_str = malloc(FLINT_MAX(X, 1) * sizeof(char *));
+    for (slong x = 0; x < X; x++)
+        A->gen_image_str[x] = own(nq_elt_get_str(Q, A->endo->gen_img + x * n));
+    A->valid = A->endo->valid;
+    if (!A->valid) {
+        A->nfail = A->endo->nfail;
+        A->fail_relator = malloc(FLINT_MAX(A->nfail, 1) * sizeof(char *));
+        A->fail_image = malloc(FLINT_MAX(A->nfail, 1) * sizeof(char *));
+        for (slong k = 0; k < A->nfail; k++) {
+            slong r = A->endo->fail_rel[k];
+            A->fail_relator[k] = dup_str(Q->pres->text[r]);
+            A->fail_image[k] = own(nq_elt_get_str(Q, A->endo->fail_val + k * n));
+        }
+        return NS_OK;
+    }
+    ns_status st = analyse_layers(A, progress, err);
+    if (st != NS_OK) {
+        analysis_clear_map(A);
+        return st;
+    }
+    analyse_bounds(A);
+    analyse_growth(A);
+    analyse_invariants(A);
     return NS_OK;
 }
 
-/* "a -> w_a, b -> w_b" from images given as elements. */
+ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_progress_t *progress,
+                           nserr_t err)
+{
+    if (!A->has_group)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "no group to map");
+    analysis_clear_map(A);
+    const nq_struct *Q = A->nq;
+    A->has_map = 1;
+    A->map_str = own(pres_get_map_str(images, Q->pres));
+    ns_status st = endo_set(A->endo, Q, images, progress, err);
+    if (st != NS_OK) {
+        analysis_clear_map(A);
+        return st;
+    }
+    return analyse_endo(A, progress, err);
+}
+
+/* "a -> w_a, b -> w_b" from images given as elements: the words are the
+ * normal words in the pc labels, exactly as gen_image_str shows them. */
 static char *map_text_of(const nq_struct *Q, const fmpz *gen_img)
 {
     slong X = Q->pres->gens->n, n = Q->pcp->n;
@@ -493,6 +518,29 @@ static char *map_text_of(const nq_struct *Q, const fmpz *gen_img)
     return s;
 }
 
+ns_status analysis_set_map_endo(analysis_t A, endo_t E, const ns_progress_t *progress,
+                                nserr_t err)
+{
+    if (E == A->endo)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "internal error: the map is the analysed one");
+    if (!A->has_group || E->n != A->nq->pcp->n || E->ngens != A->nq->pres->gens->n ||
+        !E->gen_img) {
+        endo_clear(E);
+        return nserr_set(err, NS_ERR_INPUT, 0, 0,
+                         A->has_group ? "internal error: the map is not one of this quotient"
+                                      : "no group to map");
+    }
+    endo_t M;
+    memcpy(M, E, sizeof(endo_struct)); /* move first: clearing the map must not touch E */
+    endo_init(E);
+    analysis_clear_map(A);
+    endo_clear(A->endo);
+    memcpy(A->endo, M, sizeof(endo_struct));
+    A->has_map = 1;
+    A->map_str = map_text_of(A->nq, A->endo->gen_img);
+    return analyse_endo(A, progress, err);
+}
+
 static ns_status need_valid(const analysis_t A, nserr_t err)
 {
     if (!A->has_group || !A->has_map || !A->valid)
@@ -500,55 +548,57 @@ static ns_status need_valid(const analysis_t A, nserr_t err)
     return NS_OK;
 }
 
-ns_status analysis_power_map_str(char **out, const analysis_t A, ulong k,
-                                 const ns_progress_t *progress, nserr_t err)
+ns_status analysis_power_endo(endo_t out, const analysis_t A, ulong k,
+                              const ns_progress_t *progress, nserr_t err)
 {
     ns_status st = need_valid(A, err);
-    if (st != NS_OK)
-        return st;
-    endo_t P;
-    endo_init(P);
-    st = endo_pow(P, A->endo, k, A->nq, progress, err);
     if (st == NS_OK)
-        *out = map_text_of(A->nq, P->gen_img);
-    endo_clear(P);
+        st = endo_pow(out, A->endo, k, A->nq, progress, err);
+    if (st != NS_OK)
+        endo_clear(out);
     return st;
 }
 
-ns_status analysis_compose_map_str(char **out, const analysis_t A, const expr_struct *images2,
-                                   const ns_progress_t *progress, nserr_t err)
+ns_status analysis_compose_endo(endo_t out, const analysis_t A, const expr_struct *images2,
+                                const ns_progress_t *progress, nserr_t err)
 {
     ns_status st = need_valid(A, err);
     if (st != NS_OK)
         return st;
-    endo_t B, C;
+    endo_t B;
     endo_init(B);
-    endo_init(C);
     st = endo_set(B, A->nq, images2, progress, err);
     if (st == NS_OK && !B->valid)
         st = nserr_set(err, NS_ERR_INPUT, 0, 0,
                        "the second map is not well defined on the class-%ld quotient",
                        (long)A->class_requested);
     if (st == NS_OK)
-        st = endo_compose(C, B, A->endo, A->nq, progress, err);
-    if (st == NS_OK)
-        *out = map_text_of(A->nq, C->gen_img);
+        st = endo_compose(out, B, A->endo, A->nq, progress, err);
+    if (st != NS_OK)
+        endo_clear(out);
     endo_clear(B);
-    endo_clear(C);
+    return st;
+}
+
+ns_status analysis_inverse_endo(endo_t out, const analysis_t A, const ns_progress_t *progress,
+                                nserr_t err)
+{
+    ns_status st = need_valid(A, err);
+    if (st == NS_OK && !A->automorphism)
+        st = nserr_set(err, NS_ERR_INPUT, 0, 0, "the map is not an automorphism");
+    if (st == NS_OK)
+        st = endo_inverse(out, A->endo, A->nq, progress, err);
+    if (st != NS_OK)
+        endo_clear(out);
     return st;
 }
 
 ns_status analysis_inverse_images(char ***out, const analysis_t A,
                                   const ns_progress_t *progress, nserr_t err)
 {
-    ns_status st = need_valid(A, err);
-    if (st != NS_OK)
-        return st;
-    if (!A->automorphism)
-        return nserr_set(err, NS_ERR_INPUT, 0, 0, "the map is not an automorphism");
     endo_t I;
     endo_init(I);
-    st = endo_inverse(I, A->endo, A->nq, progress, err);
+    ns_status st = analysis_inverse_endo(I, A, progress, err);
     if (st == NS_OK) {
         slong X = A->nq->pres->gens->n, n = A->nq->pcp->n;
         *out = malloc(FLINT_MAX(X, 1) * sizeof(char *));
@@ -557,26 +607,4 @@ ns_status analysis_inverse_images(char ***out, const analysis_t A,
     }
     endo_clear(I);
     return st;
-}
-
-ns_status analysis_inverse_map_str(char **out, const analysis_t A,
-                                   const ns_progress_t *progress, nserr_t err)
-{
-    char **v = NULL;
-    ns_status st = analysis_inverse_images(&v, A, progress, err);
-    if (st != NS_OK)
-        return st;
-    const names_struct *g = A->nq->pres->gens;
-    size_t len = 1;
-    for (slong x = 0; x < g->n; x++)
-        len += strlen(g->name[x]) + strlen(v[x]) + 6;
-    char *s = malloc(len);
-    s[0] = '\0';
-    for (slong x = 0; x < g->n; x++) {
-        sprintf(s + strlen(s), "%s%s -> %s", x ? ", " : "", g->name[x], v[x]);
-        free(v[x]);
-    }
-    free(v);
-    *out = s;
-    return NS_OK;
 }

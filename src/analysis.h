@@ -7,6 +7,11 @@
  *                         the presentation to the class (slow, cancellable);
  *   analysis_set_map    — images of the generators; validity, layer
  *                         matrices, spectra, bounds and invariants (fast).
+ *                         The map comes as text (analysis_set_map_text),
+ *                         as parsed words (analysis_set_map) or as a value,
+ *                         an endo_t of the quotient (analysis_set_map_endo:
+ *                         powers, composites, inverses, iterates), never
+ *                         through a round trip via text.
  * All strings are owned by the analysis and stay valid until the next
  * analysis_set_* or analysis_clear. */
 #ifndef NILSTEP_ANALYSIS_H
@@ -72,8 +77,10 @@ typedef struct {
     /* map stage */
     int has_map;
     endo_t endo;                 /* the map on the quotient (internal) */
-    expr_struct *images;         /* generator images, nq->pres->gens.n of them */
-    char *map_str;               /* the map printed back */
+    char *map_str;               /* the map printed back: the words as given
+                                    (set_map, set_map_text), or for a map
+                                    given as a value (set_map_endo) the
+                                    images as normal words in the pc labels */
     int valid;                   /* images define an endomorphism of the class-c quotient */
     slong nfail;
     char **fail_relator;         /* the relators whose images are not trivial */
@@ -127,23 +134,38 @@ ns_status analysis_set_map_text(analysis_t A, const char *text, int line, int co
 ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_progress_t *progress,
                            nserr_t err);
 
+/* The same from a map given as a value: E is a map of this analysis'
+ * quotient A->nq (from endo_set / endo_set_elts on A->nq, or from
+ * analysis_power_endo, analysis_compose_endo, analysis_inverse_endo),
+ * valid or not.  E is moved into the analysis and left as after endo_init;
+ * it must not be A->endo itself.  map_str and gen_image_str then show the
+ * images of the input generators as normal words in the pc labels, e.g.
+ * "a -> a^2 b [b,a]^-1, b -> a b".  Errors: NS_ERR_CANCELLED from the
+ * spectra; a map of another quotient is refused.  On error the analysis
+ * is left without a map and E is cleared. */
+ns_status analysis_set_map_endo(analysis_t A, endo_t E, const ns_progress_t *progress,
+                                nserr_t err);
+
 /* Forgets the map. */
 void analysis_clear_map(analysis_t A);
 
-/* The map text ("a -> ..., b -> ...") of alpha^k (k >= 0), of beta o alpha
- * (first the analysed map alpha, then beta, given by images2 in the input
- * generators) or of alpha^-1 (automorphisms of quotients with torsion-free
- * layers), as normal words in the pc labels, which parse back as words in
- * the input generators.  Needs a valid map.  *out is set to a string the
- * caller frees with free(). */
-ns_status analysis_power_map_str(char **out, const analysis_t A, ulong k,
-                                 const ns_progress_t *progress, nserr_t err);
-ns_status analysis_compose_map_str(char **out, const analysis_t A, const expr_struct *images2,
-                                   const ns_progress_t *progress, nserr_t err);
-ns_status analysis_inverse_map_str(char **out, const analysis_t A,
-                                   const ns_progress_t *progress, nserr_t err);
-/* The same inverse as one normal word per input generator: *out is set to
- * an array of nq->pres->gens.n strings; free each and the array with
+/* Maps derived from the analysed map alpha, as values to hand to
+ * analysis_set_map_endo: alpha^k (k >= 0), beta o alpha (first alpha, then
+ * beta, given by images2 in the input generators; NS_ERR_INPUT if beta is
+ * not well defined on the quotient) and alpha^-1 (automorphisms of
+ * quotients whose layers are torsion-free; NS_ERR_INPUT otherwise).  All
+ * need a valid map (NS_ERR_INPUT otherwise) and can be cancelled
+ * (NS_ERR_CANCELLED).  out must be initialised (endo_init); on error it is
+ * left empty, as after endo_init. */
+ns_status analysis_power_endo(endo_t out, const analysis_t A, ulong k,
+                              const ns_progress_t *progress, nserr_t err);
+ns_status analysis_compose_endo(endo_t out, const analysis_t A, const expr_struct *images2,
+                                const ns_progress_t *progress, nserr_t err);
+ns_status analysis_inverse_endo(endo_t out, const analysis_t A, const ns_progress_t *progress,
+                                nserr_t err);
+
+/* The inverse as one normal word per input generator: *out is set to an
+ * array of nq->pres->gens.n strings; free each and the array with
  * free(). */
 ns_status analysis_inverse_images(char ***out, const analysis_t A,
                                   const ns_progress_t *progress, nserr_t err);

@@ -32,6 +32,7 @@
 #include <flint/ulong_extras.h>
 
 #include "analysis.h"
+#include "strbuf.h"
 #include "testutil.h"
 
 /* ------------------------------------------------------------------------ */
@@ -748,6 +749,190 @@ static void validity_fails_in_abelianisation(void **state)
     analysis_clear(A);
 }
 
+/* ------------------------------------------------------------------------ */
+/* Maps given as values (analysis_set_map_endo)                             */
+
+/* M_j(alpha^k) = M_j(alpha)^k, M_j(beta o alpha) = M_j(beta) M_j(alpha) and
+ * M_j(alpha^-1) M_j(alpha) = I on every layer of N(2,4): the layer matrices
+ * of a free nilpotent group are functorial (each layer is torsion-free and
+ * the matrix is the action on it), so FLINT's fmpz_mat_pow / fmpz_mat_mul
+ * of the matrices of alpha and beta, read from maps given as text, check
+ * the power, composite and inverse computed on the group.  Also: map_str
+ * of a map given as a value parses back to itself, and analysing that text
+ * gives the same images and matrices (so reports show the map as before). */
+static void layer_matrices_equal(const analysis_t A, const fmpz_mat_struct *want, const char *what)
+{
+    for (slong j = 0; j < A->nlayers; j++)
+        if (!fmpz_mat_equal(A->layers[j].matrix, want + j)) {
+            char got[2048];
+            snprintf(got, sizeof got, "%s", mat_str(A->layers[j].matrix));
+            fail_msg("%s: layer %ld matrix %s, want %s", what, (long)j + 1, got,
+                     mat_str(want + j));
+        }
+}
+
+static void save_matrices(fmpz_mat_struct *M, const analysis_t A)
+{
+    for (slong j = 0; j < A->nlayers; j++) {
+        fmpz_mat_init_set(M + j, A->layers[j].matrix);
+    }
+}
+
+static void clear_matrices(fmpz_mat_struct *M, slong n)
+{
+    for (slong j = 0; j < n; j++)
+        fmpz_mat_clear(M + j);
+}
+
+static void map_value_round_trip(analysis_t A, const char *what)
+{
+    slong X = A->nq->pres->gens->n, c = A->nlayers;
+    char *text = strbuf_dup_str(A->map_str);
+    char **img = flint_malloc(X * sizeof(char *));
+    for (slong x = 0; x < X; x++)
+        img[x] = strbuf_dup_str(A->gen_image_str[x]);
+    /* map_str is "a -> w_a, b -> w_b" with the words of gen_image_str */
+    char want[4096] = "";
+    for (slong x = 0; x < X; x++) {
+        size_t len = strlen(want);
+        snprintf(want + len, sizeof want - len, "%s%s -> %s", x ? ", " : "", gen_name(A, x),
+                 img[x]);
+    }
+    assert_string_equal(A->map_str, want);
+    fmpz_mat_struct *M = flint_malloc(c * sizeof(fmpz_mat_struct));
+    save_matrices(M, A);
+    set_map(A, text);
+    if (strcmp(A->map_str, text) != 0)
+        fail_msg("%s: %s prints back as %s", what, text, A->map_str);
+    for (slong x = 0; x < X; x++)
+        assert_string_equal(A->gen_image_str[x], img[x]);
+    layer_matrices_equal(A, M, what);
+    clear_matrices(M, c);
+    flint_free(M);
+    for (slong x = 0; x < X; x++)
+        flint_free(img[x]);
+    flint_free(img);
+    flint_free(text);
+}
+
+static void maps_given_as_values(void **state)
+{
+    (void)state;
+    seed("maps_given_as_values");
+    const slong c = 4;
+    analysis_t A;
+    nserr_t err;
+    analysis_init(A);
+    nserr_init(err);
+    set_group(A, "free(2)", c);
+    fmpz_mat_struct *Ma = flint_malloc(c * sizeof(fmpz_mat_struct));
+    fmpz_mat_struct *Mb = flint_malloc(c * sizeof(fmpz_mat_struct));
+    fmpz_mat_struct *W = flint_malloc(c * sizeof(fmpz_mat_struct));
+    long cases = iters(6);
+    for (long t = 0; t < cases; t++) {
+        char alpha[1024], beta[1024], tail[2][256];
+        fmpz_mat_t M1;
+        fmpz_mat_init(M1, 2, 2);
+        random_gl2(M1);
+        const char *tl[2] = {random_tail(tail[0], sizeof tail[0], A),
+                             random_tail(tail[1], sizeof tail[1], A)};
+        map_text_from_matrix(alpha, sizeof alpha, A, M1, tl);
+        random_matrix(M1, -2, 2);
+        map_text_from_matrix(beta, sizeof beta, A, M1, NULL);
+        fmpz_mat_clear(M1);
+        printf("# alpha: %s; beta: %s\n", alpha, beta);
+
+        set_map(A, beta);
+        save_matrices(Mb, A);
+        set_map(A, alpha);
+        assert_true(A->valid && A->automorphism);
+        save_matrices(Ma, A);
+        for (slong j = 0; j < c; j++)
+            fmpz_mat_init(W + j, fmpz_mat_nrows(Ma + j), fmpz_mat_ncols(Ma + j));
+
+        /* powers 0..3 */
+        for (ulong k = 0; k <= 3; k++) {
+            set_map(A, alpha);
+            endo_t E;
+            endo_init(E);
+            if (analysis_power_endo(E, A, k, NULL, err) != NS_OK ||
+                analysis_set_map_endo(A, E, NULL, err) != NS_OK)
+                fail_msg("alpha^%lu: %s", (unsigned long)k, err->msg);
+            assert_null(E->gen_img); /* moved into the analysis */
+            endo_clear(E);
+            for (slong j = 0; j < c; j++)
+                fmpz_mat_pow(W + j, Ma + j, k);
+            layer_matrices_equal(A, W, "alpha^k");
+            map_value_round_trip(A, "alpha^k");
+        }
+        /* beta o alpha */
+        set_map(A, alpha);
+        {
+            expr_struct im[2];
+            expr_init(im + 0);
+            expr_init(im + 1);
+            if (pres_parse_map(im, A->nq->pres, beta, 1, 1, err) != NS_OK)
+                fail_msg("%s: %s", beta, err->msg);
+            endo_t E;
+            endo_init(E);
+            if (analysis_compose_endo(E, A, im, NULL, err) != NS_OK ||
+                analysis_set_map_endo(A, E, NULL, err) != NS_OK)
+                fail_msg("beta o alpha: %s", err->msg);
+            endo_clear(E);
+            expr_clear(im + 0);
+            expr_clear(im + 1);
+            for (slong j = 0; j < c; j++)
+                fmpz_mat_mul(W + j, Mb + j, Ma + j);
+            layer_matrices_equal(A, W, "beta o alpha");
+            map_value_round_trip(A, "beta o alpha");
+        }
+        /* alpha^-1 */
+        set_map(A, alpha);
+        {
+            endo_t E;
+            endo_init(E);
+            if (analysis_inverse_endo(E, A, NULL, err) != NS_OK ||
+                analysis_set_map_endo(A, E, NULL, err) != NS_OK)
+                fail_msg("alpha^-1: %s", err->msg);
+            endo_clear(E);
+            for (slong j = 0; j < c; j++)
+                fmpz_mat_mul(W + j, A->layers[j].matrix, Ma + j);
+            map_value_round_trip(A, "alpha^-1");
+            for (slong j = 0; j < c; j++)
+                if (!fmpz_mat_is_one(W + j))
+                    fail_msg("alpha^-1 alpha is not the identity on layer %ld", (long)j + 1);
+        }
+        clear_matrices(Ma, c);
+        clear_matrices(Mb, c);
+        clear_matrices(W, c);
+    }
+    /* a derived map needs a valid map; a map of another quotient is refused */
+    set_map(A, "a -> a, b -> b");
+    endo_t E, F;
+    endo_init(E);
+    endo_init(F);
+    assert_int_equal(analysis_power_endo(E, A, 2, NULL, err), NS_OK);
+    analysis_t B;
+    analysis_init(B);
+    set_group(B, "free(3)", 2);
+    assert_int_not_equal(analysis_set_map_endo(B, E, NULL, err), NS_OK);
+    assert_false(B->has_map);
+    assert_int_not_equal(analysis_set_map_endo(A, A->endo, NULL, err), NS_OK);
+    set_group(A, "<a, b | a^2>", 1);
+    set_map(A, "a -> b, b -> a");
+    assert_false(A->valid);
+    assert_int_equal(analysis_power_endo(F, A, 2, NULL, err), NS_ERR_INPUT);
+    assert_null(F->gen_img);
+    endo_clear(E);
+    endo_clear(F);
+    analysis_clear(B);
+    flint_free(Ma);
+    flint_free(Mb);
+    flint_free(W);
+    nserr_clear(err);
+    analysis_clear(A);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -763,6 +948,7 @@ int main(void)
         cmocka_unit_test(growth_rate_torsion_keeps_it_one),
         cmocka_unit_test(validity_relator_in_gamma3),
         cmocka_unit_test(validity_fails_in_abelianisation),
+        cmocka_unit_test(maps_given_as_values),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

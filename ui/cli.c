@@ -80,7 +80,8 @@ static int show_progress(void *ctx, const char *stage, double fraction)
 }
 
 /* Replaces the analysed map by alpha^k (--power) and then by beta o alpha
- * (--then MAP: first the map, then MAP).  Returns an exit status. */
+ * (--then MAP: first the map, then MAP), each handed over as a value.
+ * Returns an exit status. */
 static int derived_map(analysis_t A, const char *power, const char *then,
                        const ns_progress_t *pp, nserr_t err)
 {
@@ -88,8 +89,9 @@ static int derived_map(analysis_t A, const char *power, const char *then,
         fprintf(stderr, "nilstep report: --power and --then need a well-defined map\n");
         return 1;
     }
-    char *text = NULL;
     ns_status st = NS_OK;
+    endo_t E;
+    endo_init(E);
     if (power) {
         char *end;
         long k = strtol(power, &end, 10);
@@ -97,20 +99,19 @@ static int derived_map(analysis_t A, const char *power, const char *then,
             return usage("--power takes a whole number from -1000000 to 1000000");
         if (k < 0) {
             /* alpha^-k = (alpha^-1)^k, for automorphisms */
-            st = analysis_inverse_map_str(&text, A, pp, err);
+            st = analysis_inverse_endo(E, A, pp, err);
             if (st == NS_OK)
-                st = analysis_set_map_text(A, text, 1, 1, pp, err);
-            free(text);
-            text = NULL;
+                st = analysis_set_map_endo(A, E, pp, err);
             k = -k;
         }
         if (st == NS_OK)
-            st = analysis_power_map_str(&text, A, (ulong)k, pp, err);
+            st = analysis_power_endo(E, A, (ulong)k, pp, err);
         if (st == NS_OK)
-            st = analysis_set_map_text(A, text, 1, 1, pp, err);
-        free(text);
-        if (st != NS_OK)
+            st = analysis_set_map_endo(A, E, pp, err);
+        if (st != NS_OK) {
+            endo_clear(E);
             return report_error(err, "--power");
+        }
     }
     if (then) {
         slong X = A->nq->pres->gens->n;
@@ -119,17 +120,18 @@ static int derived_map(analysis_t A, const char *power, const char *then,
             expr_init(im + x);
         st = pres_parse_map(im, A->nq->pres, then, 1, 1, err);
         if (st == NS_OK)
-            st = analysis_compose_map_str(&text, A, im, pp, err);
+            st = analysis_compose_endo(E, A, im, pp, err);
         for (slong x = 0; x < X; x++)
             expr_clear(im + x);
         flint_free(im);
-        if (st == NS_OK) {
-            st = analysis_set_map_text(A, text, 1, 1, pp, err);
-            free(text);
-        }
-        if (st != NS_OK)
+        if (st == NS_OK)
+            st = analysis_set_map_endo(A, E, pp, err);
+        if (st != NS_OK) {
+            endo_clear(E);
             return report_error(err, "--then");
+        }
     }
+    endo_clear(E);
     return 0;
 }
 
