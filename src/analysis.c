@@ -67,6 +67,10 @@ void analysis_clear_map(analysis_t A)
     free_strs(A->fail_relator, A->nfail);
     free_strs(A->fail_image, A->nfail);
     free_strs(A->gen_image_str, A->gen_image_str ? X : 0);
+    free_strs(A->inverse_str, A->inverse_str ? X : 0);
+    A->inverse_str = NULL;
+    A->inverse_reason = NULL;
+    A->inverse_requested = 0;
     A->fail_relator = A->fail_image = A->gen_image_str = NULL;
     A->nfail = 0;
     A->has_map = A->valid = 0;
@@ -593,18 +597,35 @@ ns_status analysis_inverse_endo(endo_t out, const analysis_t A, const ns_progres
     return st;
 }
 
-ns_status analysis_inverse_images(char ***out, const analysis_t A,
-                                  const ns_progress_t *progress, nserr_t err)
+ns_status analysis_set_inverse(analysis_t A, const ns_progress_t *progress, nserr_t err)
 {
-    endo_t I;
-    endo_init(I);
-    ns_status st = analysis_inverse_endo(I, A, progress, err);
-    if (st == NS_OK) {
+    if (!A->has_group || !A->has_map)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "the inverse needs a map");
+    const char *none = NULL;
+    if (!A->valid)
+        none = "the map is not well defined";
+    else if (!A->automorphism)
+        none = "the map is not an automorphism";
+    else if (!A->layers_torsion_free)
+        none = "inverse maps are computed only when every layer is torsion-free";
+    char **v = NULL;
+    if (!none) {
+        endo_t I;
+        endo_init(I);
+        ns_status st = endo_inverse(I, A->endo, A->nq, progress, err);
+        if (st != NS_OK) {
+            endo_clear(I);
+            return st;
+        }
         slong X = A->nq->pres->gens->n, n = A->nq->pcp->n;
-        *out = malloc(FLINT_MAX(X, 1) * sizeof(char *));
+        v = malloc(FLINT_MAX(X, 1) * sizeof(char *));
         for (slong x = 0; x < X; x++)
-            (*out)[x] = own(nq_elt_get_str(A->nq, I->gen_img + x * n));
+            v[x] = own(nq_elt_get_str(A->nq, I->gen_img + x * n));
+        endo_clear(I);
     }
-    endo_clear(I);
-    return st;
+    free_strs(A->inverse_str, A->inverse_str ? A->nq->pres->gens->n : 0);
+    A->inverse_str = v;
+    A->inverse_reason = none;
+    A->inverse_requested = 1;
+    return NS_OK;
 }

@@ -112,6 +112,14 @@ typedef struct {
     fmpz_t image_index;          /* prod |det M_j| when injective */
     int hyperbolic;              /* no |lambda| = 1 in any layer */
     int expanding;               /* all |lambda| > 1 in every layer */
+
+    /* the inverse, computed only on request (analysis_set_inverse): it
+     * collects the images of every pc generator, far slower than the rest */
+    int inverse_requested;       /* analysis_set_inverse succeeded for this map */
+    char **inverse_str;          /* nq->pres->gens.n normal words in the pc labels
+                                    (the images of the input generators under
+                                    the inverse), or NULL when there is none */
+    const char *inverse_reason;  /* requested but none: why (static text) */
 } analysis_struct;
 typedef analysis_struct analysis_t[1];
 
@@ -164,10 +172,12 @@ ns_status analysis_compose_endo(endo_t out, const analysis_t A, const expr_struc
 ns_status analysis_inverse_endo(endo_t out, const analysis_t A, const ns_progress_t *progress,
                                 nserr_t err);
 
-/* The inverse as one normal word per input generator: *out is set to an
- * array of nq->pres->gens.n strings; free each and the array with
- * free(). */
-ns_status analysis_inverse_images(char ***out, const analysis_t A,
-                                  const ns_progress_t *progress, nserr_t err);
+/* Computes the inverse of the analysed map for the report (inverse_str),
+ * or says why there is none (inverse_reason: the map is not well defined,
+ * not an automorphism, or the layers have torsion); both are "done" and
+ * set inverse_requested.  Needs a map (NS_ERR_INPUT otherwise).  Returns
+ * NS_ERR_CANCELLED when stopped, and leaves the analysis as it was on any
+ * error.  A new map forgets the inverse. */
+ns_status analysis_set_inverse(analysis_t A, const ns_progress_t *progress, nserr_t err);
 
 #endif

@@ -56,30 +56,12 @@ static char *presentation(const analysis_t A)
     return s;
 }
 
-/* The images of the inverse of an automorphism of a quotient with
- * torsion-free layers, or NULL.  Computed here, not in the analysis,
- * because it collects the images of every pc generator: too slow to redo at
- * every keystroke of the explorer. */
-static char **inverse_images(const analysis_t A)
+/* "a -> w_a, b -> w_b" from one word per input generator. */
+static void put_map_words(strbuf_t b, const analysis_t A, char *const *w)
 {
-    if (!A->has_map || !A->valid || !A->automorphism || !A->layers_torsion_free)
-        return NULL;
-    char **v = NULL;
-    nserr_t err;
-    nserr_init(err);
-    if (analysis_inverse_images(&v, A, NULL, err) != NS_OK)
-        v = NULL;
-    nserr_clear(err);
-    return v;
-}
-
-static void free_images(const analysis_t A, char **v)
-{
-    if (!v)
-        return;
-    for (slong x = 0; x < A->nq->pres->gens->n; x++)
-        free(v[x]);
-    free(v);
+    const names_struct *g = A->nq->pres->gens;
+    for (slong x = 0; x < g->n; x++)
+        strbuf_printf(b, "%s%s -> %s", x ? ", " : "", g->name[x], w[x]);
 }
 
 /* ------------------------------------------------------------------ text */
@@ -196,14 +178,14 @@ static void report_text(strbuf_t b, const analysis_t A, const char *title)
     }
     strbuf_printf(b, "hyperbolic    %s\n", yes_no(A->hyperbolic));
     strbuf_printf(b, "expanding     %s\n", yes_no(A->expanding));
-    char **inv = inverse_images(A);
-    if (inv) {
+    if (A->inverse_requested) {
         strbuf_puts(b, "inverse       ");
-        for (slong x = 0; x < Q->pres->gens->n; x++)
-            strbuf_printf(b, "%s%s -> %s", x ? ", " : "", Q->pres->gens->name[x], inv[x]);
+        if (A->inverse_str)
+            put_map_words(b, A, A->inverse_str);
+        else
+            strbuf_printf(b, "none (%s)", A->inverse_reason);
         strbuf_puts(b, "\n");
     }
-    free_images(A, inv);
 }
 
 /* ------------------------------------------------------------------ JSON */
@@ -214,6 +196,19 @@ static void json_fmpz_or_null(strbuf_t b, int defined, const fmpz_t x)
         put_fmpz(b, x);
     else
         strbuf_puts(b, "null");
+}
+
+static void json_slong_or_null(strbuf_t b, int defined, slong x)
+{
+    if (defined)
+        strbuf_printf(b, "%ld", (long)x);
+    else
+        strbuf_puts(b, "null");
+}
+
+static void json_bool_or_null(strbuf_t b, int defined, int v)
+{
+    strbuf_puts(b, !defined ? "null" : v ? "true" : "false");
 }
 
 static void json_str_or_null(strbuf_t b, const char *s)
@@ -239,7 +234,13 @@ static void json_matrix(strbuf_t b, const fmpz_mat_t M)
     strbuf_puts(b, "]");
 }
 
-static void report_json(strbuf_t b, const analysis_t A, const char *title)
+static const char *json_bool(int v)
+{
+    return v ? "true" : "false";
+}
+
+/* The title and the group: presentation, generators and its layers. */
+static void json_group(strbuf_t b, const analysis_t A, const char *title)
 {
     const nq_struct *Q = A->nq;
     char *pres = presentation(A);
@@ -256,16 +257,15 @@ static void report_json(strbuf_t b, const analysis_t A, const char *title)
         strbuf_put_json_str(b, Q->pres->gens->name[x]);
     }
     strbuf_printf(b,
-                "],\n   \"class\": %ld, \"class_reached\": %ld, \"stabilised\": %s, "
-                "\"hirsch_length\": %ld, \"pc_generators\": %ld, \"torsion_free_layers\": %s,\n"
-                "   \"layers\": [",
-                (long)A->class_requested, (long)Q->class_reached,
-                Q->stabilised ? "true" : "false", (long)Q->hirsch_length, (long)Q->pcp->n,
-                A->layers_torsion_free ? "true" : "false");
+                  "],\n   \"class\": %ld, \"class_reached\": %ld, \"stabilised\": %s, "
+                  "\"hirsch_length\": %ld, \"pc_generators\": %ld, \"torsion_free_layers\": %s,\n"
+                  "   \"layers\": [",
+                  (long)A->class_requested, (long)Q->class_reached, json_bool(Q->stabilised),
+                  (long)Q->hirsch_length, (long)Q->pcp->n, json_bool(A->layers_torsion_free));
     for (slong j = 0; j < A->nlayers; j++) {
         const analysis_layer_struct *L = A->layers + j;
-        strbuf_printf(b, "%s\n     {\"weight\": %ld, \"free_rank\": %ld, \"torsion\": [", j ? "," : "",
-                    (long)L->weight, (long)L->free_rank);
+        strbuf_printf(b, "%s\n     {\"weight\": %ld, \"free_rank\": %ld, \"torsion\": [",
+                      j ? "," : "", (long)L->weight, (long)L->free_rank);
         for (slong t = 0; t < L->ntors; t++) {
             if (t)
                 strbuf_puts(b, ", ");
@@ -282,13 +282,15 @@ static void report_json(strbuf_t b, const analysis_t A, const char *title)
         strbuf_puts(b, "]}");
     }
     strbuf_puts(b, "]}");
-    if (!A->has_map) {
-        strbuf_puts(b, "}\n");
-        return;
-    }
+}
+
+/* The map as given, its validity, failing relators and images. */
+static void json_map_images(strbuf_t b, const analysis_t A)
+{
+    const names_struct *g = A->nq->pres->gens;
     strbuf_puts(b, ",\n \"map\": {\"text\": ");
     strbuf_put_json_str(b, A->map_str);
-    strbuf_printf(b, ", \"valid\": %s, \"failures\": [", A->valid ? "true" : "false");
+    strbuf_printf(b, ", \"valid\": %s, \"failures\": [", json_bool(A->valid));
     for (slong k = 0; k < A->nfail; k++) {
         strbuf_puts(b, k ? ", {\"relator\": " : "{\"relator\": ");
         strbuf_put_json_str(b, A->fail_relator[k]);
@@ -297,14 +299,20 @@ static void report_json(strbuf_t b, const analysis_t A, const char *title)
         strbuf_puts(b, "}");
     }
     strbuf_puts(b, "],\n   \"images\": {");
-    for (slong x = 0; x < Q->pres->gens->n; x++) {
+    for (slong x = 0; x < g->n; x++) {
         if (x)
             strbuf_puts(b, ", ");
-        strbuf_put_json_str(b, Q->pres->gens->name[x]);
+        strbuf_put_json_str(b, g->name[x]);
         strbuf_puts(b, ": ");
         strbuf_put_json_str(b, A->gen_image_str[x]);
     }
-    strbuf_puts(b, "},\n   \"layers\": [");
+    strbuf_puts(b, "}");
+}
+
+/* The matrices and spectra of the layers (none for an invalid map). */
+static void json_map_layers(strbuf_t b, const analysis_t A)
+{
+    strbuf_puts(b, ",\n   \"layers\": [");
     for (slong j = 0; A->valid && j < A->nlayers; j++) {
         const analysis_layer_struct *L = A->layers + j;
         strbuf_printf(b, "%s\n     {\"weight\": %ld, \"matrix\": ", j ? "," : "", (long)L->weight);
@@ -330,7 +338,7 @@ static void report_json(strbuf_t b, const analysis_t A, const char *title)
         strbuf_puts(b, ", \"action\": ");
         json_matrix(b, L->action);
         strbuf_printf(b, ", \"unimodular_eigenvalues\": %ld, \"eigenvalues\": [",
-                    (long)L->n_unimodular);
+                      (long)L->n_unimodular);
         for (slong k = 0; k < L->nev; k++) {
             if (k)
                 strbuf_puts(b, ", ");
@@ -339,61 +347,85 @@ static void report_json(strbuf_t b, const analysis_t A, const char *title)
         strbuf_puts(b, "]}");
     }
     strbuf_puts(b, "]");
-    if (A->valid) {
-        strbuf_puts(b, ",\n   \"lower_bound\": ");
-        strbuf_put_json_str(b, A->lower_bound_str);
-        strbuf_printf(b, ", \"lower_bound_layer\": %ld, \"upper_bound\": ", (long)A->lower_layer);
-        strbuf_put_json_str(b, A->upper_bound_str);
-        strbuf_printf(b, ", \"upper_bound_layer\": %ld,\n   \"growth_rate\": ", (long)A->upper_layer);
-        strbuf_put_json_str(b, A->growth_str);
-        strbuf_puts(b, ", \"growth_reason\": ");
-        strbuf_put_json_str(b, A->growth_reason);
-        strbuf_puts(b, ", \"log_growth_rate\": ");
-        json_str_or_null(b, A->log_growth_str);
-        strbuf_puts(b, ",\n   \"entropy\": ");
-        json_str_or_null(b, A->entropy_str);
-        strbuf_puts(b, ", \"lefschetz\": ");
-        json_fmpz_or_null(b, A->lefschetz_defined, A->lefschetz);
-        strbuf_puts(b, ", \"nielsen\": ");
-        json_fmpz_or_null(b, A->lefschetz_defined, A->nielsen);
-        strbuf_puts(b, ", \"reidemeister\": ");
-        if (A->reid_kind == ANALYSIS_REID_INFINITE)
-            strbuf_puts(b, "\"infinite\"");
-        else
-            json_fmpz_or_null(b, A->reid_kind == ANALYSIS_REID_FINITE, A->reidemeister);
-        strbuf_puts(b, ", \"undefined_reason\": ");
-        json_str_or_null(b, A->undefined_reason);
-        strbuf_printf(b,
-                    ",\n   \"automorphism\": %s, \"injective\": %s, \"hyperbolic\": %s, "
-                    "\"expanding\": %s, \"image_index\": ",
-                    A->automorphism ? "true" : "false",
-                    !A->injective_defined ? "null" : A->injective ? "true" : "false",
-                    A->hyperbolic ? "true" : "false", A->expanding ? "true" : "false");
-        json_fmpz_or_null(b, A->index_defined, A->image_index);
-        strbuf_printf(b, ", \"injective_defined\": %s", A->injective_defined ? "true" : "false");
-        strbuf_puts(b, ",\n   \"inverse\": ");
-        char **inv = inverse_images(A);
-        if (inv) {
-            strbuf_puts(b, "{");
-            for (slong x = 0; x < Q->pres->gens->n; x++) {
-                if (x)
-                    strbuf_puts(b, ", ");
-                strbuf_put_json_str(b, Q->pres->gens->name[x]);
-                strbuf_puts(b, ": ");
-                strbuf_put_json_str(b, inv[x]);
-            }
-            strbuf_puts(b, "}");
-        } else
-            strbuf_puts(b, "null");
-        free_images(A, inv);
-    } else {
-        /* a map that is not well defined has none of these numbers */
-        strbuf_puts(b, ",\n   \"lower_bound\": null, \"upper_bound\": null, \"growth_rate\": null, "
-                       "\"entropy\": null, \"lefschetz\": null, \"nielsen\": null, "
-                       "\"reidemeister\": null,\n   \"automorphism\": null, \"injective\": null, "
-                       "\"hyperbolic\": null, \"expanding\": null, \"image_index\": null");
+}
+
+/* Bounds, growth and invariants: every key is written; a map that is not
+ * well defined has none of these numbers, so all are null then. */
+static void json_map_numbers(strbuf_t b, const analysis_t A)
+{
+    int v = A->valid;
+    strbuf_puts(b, ",\n   \"lower_bound\": ");
+    json_str_or_null(b, v ? A->lower_bound_str : NULL);
+    strbuf_puts(b, ", \"lower_bound_layer\": ");
+    json_slong_or_null(b, v, A->lower_layer);
+    strbuf_puts(b, ", \"upper_bound\": ");
+    json_str_or_null(b, v ? A->upper_bound_str : NULL);
+    strbuf_puts(b, ", \"upper_bound_layer\": ");
+    json_slong_or_null(b, v, A->upper_layer);
+    strbuf_puts(b, ",\n   \"growth_rate\": ");
+    json_str_or_null(b, v ? A->growth_str : NULL);
+    strbuf_puts(b, ", \"growth_reason\": ");
+    json_str_or_null(b, v ? A->growth_reason : NULL);
+    strbuf_puts(b, ", \"log_growth_rate\": ");
+    json_str_or_null(b, v ? A->log_growth_str : NULL);
+    strbuf_puts(b, ",\n   \"entropy\": ");
+    json_str_or_null(b, v ? A->entropy_str : NULL);
+    strbuf_puts(b, ", \"lefschetz\": ");
+    json_fmpz_or_null(b, v && A->lefschetz_defined, A->lefschetz);
+    strbuf_puts(b, ", \"nielsen\": ");
+    json_fmpz_or_null(b, v && A->lefschetz_defined, A->nielsen);
+    strbuf_puts(b, ", \"reidemeister\": ");
+    if (v && A->reid_kind == ANALYSIS_REID_INFINITE)
+        strbuf_puts(b, "\"infinite\"");
+    else
+        json_fmpz_or_null(b, v && A->reid_kind == ANALYSIS_REID_FINITE, A->reidemeister);
+    strbuf_puts(b, ", \"undefined_reason\": ");
+    json_str_or_null(b, v ? A->undefined_reason : NULL);
+    strbuf_puts(b, ",\n   \"automorphism\": ");
+    json_bool_or_null(b, v, A->automorphism);
+    strbuf_puts(b, ", \"injective\": ");
+    json_bool_or_null(b, v && A->injective_defined, A->injective);
+    strbuf_puts(b, ", \"hyperbolic\": ");
+    json_bool_or_null(b, v, A->hyperbolic);
+    strbuf_puts(b, ", \"expanding\": ");
+    json_bool_or_null(b, v, A->expanding);
+    strbuf_puts(b, ", \"image_index\": ");
+    json_fmpz_or_null(b, v && A->index_defined, A->image_index);
+    strbuf_puts(b, ", \"injective_defined\": ");
+    json_bool_or_null(b, v, A->injective_defined);
+}
+
+/* The inverse's images, or null when not requested or there is none. */
+static void json_map_inverse(strbuf_t b, const analysis_t A)
+{
+    const names_struct *g = A->nq->pres->gens;
+    strbuf_puts(b, ",\n   \"inverse\": ");
+    if (!A->inverse_str) {
+        strbuf_puts(b, "null");
+        return;
     }
-    strbuf_puts(b, "}}\n");
+    strbuf_puts(b, "{");
+    for (slong x = 0; x < g->n; x++) {
+        if (x)
+            strbuf_puts(b, ", ");
+        strbuf_put_json_str(b, g->name[x]);
+        strbuf_puts(b, ": ");
+        strbuf_put_json_str(b, A->inverse_str[x]);
+    }
+    strbuf_puts(b, "}");
+}
+
+static void report_json(strbuf_t b, const analysis_t A, const char *title)
+{
+    json_group(b, A, title);
+    if (A->has_map) {
+        json_map_images(b, A);
+        json_map_layers(b, A);
+        json_map_numbers(b, A);
+        json_map_inverse(b, A);
+        strbuf_puts(b, "}");
+    }
+    strbuf_puts(b, "}\n");
 }
 
 /* ----------------------------------------------------------------- LaTeX */
@@ -504,6 +536,22 @@ static void report_latex(strbuf_t b, const analysis_t A, const char *title)
     }
     strbuf_printf(b, "Automorphism: %s; hyperbolic: %s; expanding: %s.\n",
                 yes_no(A->automorphism), yes_no(A->hyperbolic), yes_no(A->expanding));
+    if (A->inverse_requested) {
+        strbuf_puts(b, "\\\\\nInverse: ");
+        if (A->inverse_str) {
+            strbuf_t w;
+            strbuf_init(w);
+            put_map_words(w, A, A->inverse_str);
+            strbuf_puts(b, "\\texttt{");
+            strbuf_put_latex_str(b, w->s);
+            strbuf_puts(b, "}.\n");
+            strbuf_clear(w);
+        } else {
+            strbuf_puts(b, "none (");
+            strbuf_put_latex_str(b, A->inverse_reason);
+            strbuf_puts(b, ").\n");
+        }
+    }
 }
 
 char *report_get_str(const analysis_t A, report_format fmt, const char *title)

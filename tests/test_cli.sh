@@ -263,6 +263,85 @@ m = r["map"]
 assert m["lefschetz"] is None and m["nielsen"] is None and m["reidemeister"] is None, m
 ' "$tmp/out" || fail "JSON report with torsion: invariants should be null"
 
+# The map object has one key set whether the map is valid or not (values
+# that do not exist are null); without a map there is no "map" key.
+map_keys='["text", "valid", "failures", "images", "layers", "lower_bound",
+ "lower_bound_layer", "upper_bound", "upper_bound_layer", "growth_rate",
+ "growth_reason", "log_growth_rate", "entropy", "lefschetz", "nielsen",
+ "reidemeister", "undefined_reason", "automorphism", "injective", "hyperbolic",
+ "expanding", "image_index", "injective_defined", "inverse"]'
+expect_status 0 "JSON key set, valid map" report --group 'free(2)' --class 2 \
+    --map 'a -> a b, b -> b' --format json
+cp "$tmp/out" "$tmp/valid.json"
+expect_status 1 "JSON key set, invalid map" report --group '<a, b | a^2>' --class 2 \
+    --map 'a -> b, b -> a' --format json
+cp "$tmp/out" "$tmp/invalid.json"
+expect_status 0 "JSON key set, no map" report --group '<a, b | a^2>' --class 2 --format json
+$PY - "$tmp/valid.json" "$tmp/invalid.json" "$tmp/out" "$map_keys" <<'EOF' || fail "JSON map key set"
+import json, sys
+want = json.loads(sys.argv[4])
+v, i, a = (json.load(open(f)) for f in sys.argv[1:4])
+assert list(v["map"].keys()) == want, list(v["map"].keys())
+assert list(i["map"].keys()) == want, list(i["map"].keys())
+assert "map" not in a, a.keys()
+assert i["map"]["valid"] is False and len(i["map"]["failures"]) == 1
+# every number of an invalid map is null; a valid one has them
+for k in want[5:]:
+    assert i["map"][k] is None, (k, i["map"][k])
+for k in ["lower_bound", "lower_bound_layer", "growth_rate", "growth_reason", "automorphism"]:
+    assert v["map"][k] is not None, k
+# the inverse is computed only on request
+assert v["map"]["inverse"] is None
+EOF
+ok
+
+# --inverse: the inverse of an automorphism, on request.  Its layer-1 matrix
+# is the inverse of the map's (by Python's exact fractions), and composing
+# the two gives the identity.
+expect_status 0 "--inverse" report --group 'free(2)' --class 4 \
+    --map 'a -> a^2 b [a,b], b -> a b' --inverse --format json
+cp "$tmp/out" "$tmp/inv.json"
+$PY - "$tmp/inv.json" <<'EOF' || fail "--inverse: layer 1 of the inverse"
+import json, sys
+from fractions import Fraction
+m = json.load(open(sys.argv[1]))["map"]
+inv = m["inverse"]
+assert set(inv) == {"a", "b"}, inv
+# layer-1 coordinates of a word in a, b (commutators lie in gamma_2)
+def coords(w):
+    c = {"a": 0, "b": 0}
+    for f in w.split():
+        if f.startswith("["):
+            continue
+        g, _, e = f.partition("^")
+        c[g] += int(e) if e else 1
+    return [c["a"], c["b"]]
+M = m["layers"][0]["matrix"]
+N = [list(x) for x in zip(*[coords(inv["a"]), coords(inv["b"])])]
+P = [[sum(Fraction(M[i][k]) * N[k][j] for k in range(2)) for j in range(2)] for i in range(2)]
+assert P == [[1, 0], [0, 1]], (M, N)
+EOF
+ok
+invmap=$($PY -c 'import json,sys; i=json.load(open(sys.argv[1]))["map"]["inverse"]; print(", ".join(f"{k} -> {v}" for k, v in i.items()))' "$tmp/inv.json")
+expect_status 0 "--inverse then the map" report --group 'free(2)' --class 4 \
+    --map "$invmap" --then 'a -> a^2 b [a,b], b -> a b' --format json
+$PY -c '
+import json, sys
+m = json.load(open(sys.argv[1]))["map"]
+assert m["images"] == {"a": "a", "b": "b"}, m["images"]
+' "$tmp/out" || fail "the --inverse images followed by the map should be the identity"
+expect_status 0 "--inverse in a text report" report --group 'free(2)' --class 2 \
+    --map 'a -> a b, b -> b' --inverse
+[[ $out == *$'\ninverse       a -> a b^-1, b -> b'* ]] || fail "text report: no inverse line"
+expect_status 0 "--inverse of a non-automorphism" report --group 'free(2)' --class 2 \
+    --map 'a -> a^2, b -> b' --inverse
+[[ $out == *$'\ninverse       none (the map is not an automorphism)'* ]] ||
+    fail "text report: the inverse should be none"
+expect_status 0 "no inverse unless asked" report --group 'free(2)' --class 2 \
+    --map 'a -> a b, b -> b'
+[[ $out != *inverse* ]] || fail "text report: inverse without --inverse"
+expect_status 2 "--inverse without a map" report --group 'free(2)' --class 2 --inverse
+
 # ---------------------------------------------------------------------------
 # LaTeX and text
 

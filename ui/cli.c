@@ -13,7 +13,7 @@ void cli_print_help(FILE *out)
     fputs("usage: nilstep [FILE]\n"
           "       nilstep report [--format text|json|latex] FILE\n"
           "       nilstep report --group PRES --class C [--map MAP] [--format text|json|latex]\n"
-          "                      [--power K] [--then MAP2]\n"
+          "                      [--power K] [--then MAP2] [--inverse]\n"
           "       nilstep --help | --version\n"
           "\n"
           "Explores an endomorphism of a finitely presented group on its class-c\n"
@@ -31,6 +31,8 @@ void cli_print_help(FILE *out)
           "    --power K         analyse the K-th power of the map instead (K < 0: of\n"
           "                      its inverse, for automorphisms)\n"
           "    --then MAP2       analyse the composite: first the map, then MAP2\n"
+          "    --inverse         also compute the images of the inverse of the\n"
+          "                      (resulting) map, for automorphisms\n"
           "\n"
           "Conventions: [x,y] = x^-1 y^-1 x y, [x,y,z] = [[x,y],z], x^y = y^-1 x y;\n"
           "gamma_1 = G, gamma_(j+1) = [gamma_j, G]; layer j is gamma_j/gamma_(j+1),\n"
@@ -139,6 +141,7 @@ int cli_report(int argc, char **argv)
 {
     const char *format = "text", *file = NULL, *group = NULL, *cls = NULL, *map = NULL;
     const char *power = NULL, *then = NULL;
+    int inverse = 0;
     for (int i = 1; i < argc; i++) {
         const char *a = argv[i];
         const char **slot = NULL;
@@ -154,7 +157,10 @@ int cli_report(int argc, char **argv)
             slot = &power;
         else if (!strcmp(a, "--then"))
             slot = &then;
-        else if (!strcmp(a, "--help") || !strcmp(a, "-h")) {
+        else if (!strcmp(a, "--inverse")) {
+            inverse = 1;
+            continue;
+        } else if (!strcmp(a, "--help") || !strcmp(a, "-h")) {
             cli_print_help(stdout);
             return 0;
         } else if (a[0] == '-' && a[1] != '\0') {
@@ -252,8 +258,17 @@ int cli_report(int argc, char **argv)
         status = derived_map(A, power, then, pp, err);
         if (status != 0)
             goto done;
-    } else if (power || then) {
-        status = usage("--power and --then need a map");
+        if (inverse) {
+            st = analysis_set_inverse(A, pp, err);
+            if (ps.shown)
+                fputs("\r\033[K", stderr);
+            if (st != NS_OK) {
+                status = report_error(err, "--inverse");
+                goto done;
+            }
+        }
+    } else if (power || then || inverse) {
+        status = usage("--power, --then and --inverse need a map");
         goto done;
     }
     char *out = report_get_str(A, (report_format)fmt, title);
