@@ -1,4 +1,5 @@
 /* session.c — reading and writing session files, format 1. */
+#include <dirent.h>
 #include <errno.h>
 #include <fcntl.h>
 #include <stdio.h>
@@ -883,81 +884,329 @@ char *session_get_str(const session_t s)
     return strbuf_take(b);
 }
 
+/* The longest file name (one path component) the file systems we write
+ * take; Linux's NAME_MAX. */
+#define SESSION_NAME_MAX 255
+
+/* Follows symbolic links at path (at most 40, as the kernel does) and
+ * returns the path of the file they end at, which need not exist.
+ * Caller frees with flint_free. */
+static char *resolve_links(const char *path, int *errnum)
+{
+    char *p = dup_n(path, strlen(path));
+    for (int hops = 0;; hops++) {
+        struct stat st;
+        if (lstat(p, &st) != 0 || !S_ISLNK(st.st_mode))
+            return p;
+        if (hops == 40) {
+            *errnum = ELOOP;
+            flint_free(p);
+            return NULL;
+        }
+        size_t cap = (size_t)st.st_size + 2;
+        if (cap < 256)
+            cap = 256;
+        char *target = flint_malloc(cap);
+        ssize_t n = readlink(p, target, cap - 1);
+        if (n < 0 || (size_t)n >= cap - 1) {
+            *errnum = n < 0 ? errno : ENAMETOOLONG;
+            flint_free(target);
+            flint_free(p);
+            return NULL;
+        }
+        target[n] = '\0';
+        const char *slash = strrchr(p, '/');
+        if (target[0] == '/' || slash == NULL) {
+            flint_free(p);
+            p = target;
+        } else {
+            size_t dl = (size_t)(slash - p) + 1, tl = (size_t)n;
+            char *q = flint_malloc(dl + tl + 1);
+            memcpy(q, p, dl);
+            memcpy(q + dl, target, tl + 1);
+            flint_free(target);
+            flint_free(p);
+            p = q;
+        }
+    }
+}
+
+/* The directory part of path ("." when there is none). */
+static char *dir_of(const char *path)
+{
+    const char *slash = strrchr(path, '/');
+    return slash == NULL ? dup_n(".", 1) : dup_n(path, slash == path ? 1 : (size_t)(slash - path));
+}
+
+/* How many bytes of the file name `base` a sibling name base[..k] + suffix
+ * (suffix_len bytes) may keep so that it fits SESSION_NAME_MAX, cut at a
+ * UTF-8 character boundary. */
+static size_t sibling_prefix_len(const char *base, size_t suffix_len)
+{
+    size_t k = strlen(base);
+    if (k + suffix_len > SESSION_NAME_MAX) {
+        k = SESSION_NAME_MAX - suffix_len;
+        while (k > 0 && ((unsigned char)base[k] & 0xC0) == 0x80)
+            k--;
+    }
+    return k;
+}
+
+/* "DIR/NAME" + suffix ("tmp" or "old") + "-XXXXXX", NAME shortened to fit;
+ * ready for mkstemp. */
+static char *sibling_template(const char *target, const char *kind)
+{
+    const char *slash = strrchr(target, '/');
+    const char *base = slash ? slash + 1 : target;
+    size_t dl = (size_t)(base - target);
+    size_t k = sibling_prefix_len(base, 11);
+    char *t = flint_malloc(dl + k + 12);
+    memcpy(t, target, dl + k);
+    snprintf(t + dl + k, 12, ".%s-XXXXXX", kind);
+    return t;
+}
+
+static int write_all(int fd, const char *p, size_t n)
+{
+    while (n > 0) {
+        ssize_t w = write(fd, p, n);
+        if (w < 0) {
+            if (errno == EINTR)
+                continue;
+            return errno;
+        }
+        p += w;
+        n -= (size_t)w;
+    }
+    return 0;
+}
+
+static void sync_dir_of(const char *path)
+{
+    char *dir = dir_of(path);
+    int fd = open(dir, O_RDONLY);
+    if (fd >= 0) {
+        (void)fsync(fd);
+        close(fd);
+    }
+    flint_free(dir);
+}
+
+/* Rewrites the existing file `target` in place with text: a copy of its
+ * old content is set aside and synced first, removed after. */
+static ns_status save_in_place(const char *target, const char *text, nserr_t err)
+{
+    char *aside = sibling_template(target, "old");
+    char *old = NULL;
+    size_t oldlen = 0, cap = 0;
+    int e = 0;
+    int in = open(target, O_RDWR);
+    if (in < 0) {
+        e = errno;
+        flint_free(aside);
+        return io_error(err, "cannot open", target, e);
+    }
+    for (;;) {
+        if (cap - oldlen < 65536) {
+            cap = cap ? 2 * cap : 65536;
+            old = flint_realloc(old, cap);
+        }
+        ssize_t got = read(in, old + oldlen, cap - oldlen);
+        if (got < 0 && errno == EINTR)
+            continue;
+        if (got < 0) {
+            e = errno;
+            close(in);
+            flint_free(old);
+            flint_free(aside);
+            return io_error(err, "cannot read", target, e);
+        }
+        if (got == 0)
+            break;
+        oldlen += (size_t)got;
+    }
+    int fd = mkstemp(aside);
+    if (fd < 0) {
+        e = errno;
+        close(in);
+        flint_free(old);
+        flint_free(aside);
+        return io_error(err, "cannot create a copy aside of", target, e);
+    }
+    e = write_all(fd, old, oldlen);
+    if (e == 0 && fsync(fd) != 0)
+        e = errno;
+    if (close(fd) != 0 && e == 0)
+        e = errno;
+    flint_free(old);
+    if (e != 0) {
+        unlink(aside);
+        close(in);
+        flint_free(aside);
+        return io_error(err, "cannot write", target, e);
+    }
+    sync_dir_of(aside);
+    /* From here on a failure may leave target half-written: the copy
+     * aside stays and the message says where. */
+    size_t n = strlen(text);
+    if (lseek(in, 0, SEEK_SET) != 0)
+        e = errno;
+    if (e == 0)
+        e = write_all(in, text, n);
+    if (e == 0 && ftruncate(in, (off_t)n) != 0)
+        e = errno;
+    if (e == 0 && fsync(in) != 0)
+        e = errno;
+    if (close(in) != 0 && e == 0)
+        e = errno;
+    if (e != 0) {
+        char reason[256];
+        if (strerror_r(e, reason, sizeof reason) != 0)
+            snprintf(reason, sizeof reason, "error %d", e);
+        nserr_set(err, NS_ERR_IO, 0, 0,
+                  "cannot write '%s': %s; its previous content is kept in '%s'", target, reason,
+                  aside);
+        flint_free(aside);
+        return NS_ERR_IO;
+    }
+    unlink(aside);
+    flint_free(aside);
+    return NS_OK;
+}
+
 ns_status session_save(const session_t s, const char *path, nserr_t err)
 {
-    size_t plen = strlen(path);
-    char *tmp, *text, *dir;
-    const char *slash;
+    char *tmp, *text, *target;
     struct stat old;
-    FILE *f;
-    int fd, e;
+    int fd, e = 0, exists;
+    size_t n;
 
     if (!has_text(s->group.text))
         return nserr_set(err, NS_ERR_INPUT, 0, 0, "the session has no group to save");
     if (s->cls < 1)
         return nserr_set(err, NS_ERR_INPUT, 0, 0, "the session has no class to save");
 
-    tmp = flint_malloc(plen + 16);
-    memcpy(tmp, path, plen);
-    memcpy(tmp + plen, ".tmp-XXXXXX", 12);
+    target = resolve_links(path, &e);
+    if (target == NULL)
+        return io_error(err, "cannot follow the link", path, e);
+    exists = stat(target, &old) == 0;
+    if (exists && !S_ISREG(old.st_mode)) {
+        ns_status st = nserr_set(err, NS_ERR_IO, 0, 0, "cannot write '%s': not a regular file",
+                                 target);
+        flint_free(target);
+        return st;
+    }
+    text = session_get_str(s);
+    if (exists && old.st_nlink > 1) {
+        ns_status st = save_in_place(target, text, err);
+        flint_free(text);
+        flint_free(target);
+        return st;
+    }
+
+    tmp = sibling_template(target, "tmp");
     fd = mkstemp(tmp);
     if (fd < 0) {
         e = errno;
         flint_free(tmp);
-        return io_error(err, "cannot create a temporary file for", path, e);
+        flint_free(text);
+        ns_status st = io_error(err, "cannot create a temporary file for", target, e);
+        flint_free(target);
+        return st;
+    }
+    if (exists && (old.st_uid != geteuid() || old.st_gid != getegid()) &&
+        fchown(fd, old.st_uid, old.st_gid) != 0) {
+        /* We may not give the file away: keep it (and its owner) by
+         * rewriting it in place instead. */
+        close(fd);
+        unlink(tmp);
+        flint_free(tmp);
+        ns_status st = save_in_place(target, text, err);
+        flint_free(text);
+        flint_free(target);
+        return st;
     }
     /* mkstemp makes the file private; keep the mode of the file it will
-     * replace, else the usual mode of a document. */
-    if (fchmod(fd, stat(path, &old) == 0 ? (old.st_mode & 07777) : 0644) != 0) {
+     * replace, else the usual mode of a document.  After fchown, which
+     * may clear set-id bits. */
+    if (fchmod(fd, exists ? (old.st_mode & 07777) : 0644) != 0)
         e = errno;
-        goto fail_fd;
-    }
-    f = fdopen(fd, "wb");
-    if (f == NULL) {
+    n = strlen(text);
+    if (e == 0)
+        e = write_all(fd, text, n);
+    flint_free(text);
+    if (e == 0 && fsync(fd) != 0)
         e = errno;
-        goto fail_fd;
-    }
-    text = session_get_str(s);
-    {
-        size_t n = strlen(text);
-        int ok = fwrite(text, 1, n, f) == n;
+    if (close(fd) != 0 && e == 0)
         e = errno;
-        flint_free(text);
-        if (ok && fflush(f) != 0) {
-            ok = 0;
-            e = errno;
-        }
-        if (ok && fsync(fileno(f)) != 0) {
-            ok = 0;
-            e = errno;
-        }
-        if (fclose(f) != 0 && ok) {
-            ok = 0;
-            e = errno;
-        }
-        if (!ok)
-            goto fail_file;
-    }
-    if (rename(tmp, path) != 0) {
+    if (e == 0 && rename(tmp, target) != 0)
         e = errno;
-        goto fail_file;
+    if (e != 0) {
+        unlink(tmp);
+        flint_free(tmp);
+        ns_status st = io_error(err, "cannot write", target, e);
+        flint_free(target);
+        return st;
     }
     /* Make the rename itself durable; failing here loses nothing. */
-    slash = strrchr(path, '/');
-    dir = slash == NULL ? dup_n(".", 1) : dup_n(path, slash == path ? 1 : (size_t)(slash - path));
-    fd = open(dir, O_RDONLY);
-    if (fd >= 0) {
-        (void)fsync(fd);
-        close(fd);
+    sync_dir_of(target);
+    flint_free(tmp);
+    flint_free(target);
+    return NS_OK;
+}
+
+static int is_leftover_name(const char *name, const char *base, size_t k)
+{
+    if (strncmp(name, base, k) != 0)
+        return 0;
+    name += k;
+    if (strncmp(name, ".tmp-", 5) != 0 && strncmp(name, ".old-", 5) != 0)
+        return 0;
+    name += 5;
+    for (int i = 0; i < 6; i++)
+        if (!((name[i] >= 'a' && name[i] <= 'z') || (name[i] >= 'A' && name[i] <= 'Z') ||
+              (name[i] >= '0' && name[i] <= '9')))
+            return 0;
+    return name[6] == '\0';
+}
+
+char *session_leftovers_get_str(slong *count, const char *path)
+{
+    int e = 0;
+    char *target = resolve_links(path, &e);
+    *count = 0;
+    if (target == NULL)
+        return NULL;
+    char *dir = dir_of(target);
+    const char *slash = strrchr(target, '/');
+    const char *base = slash ? slash + 1 : target;
+    size_t k = sibling_prefix_len(base, 11);
+    DIR *d = opendir(dir);
+    strbuf_t b;
+    strbuf_init(b);
+    if (d != NULL) {
+        struct dirent *ent;
+        while ((ent = readdir(d)) != NULL) {
+            if (!is_leftover_name(ent->d_name, base, k))
+                continue;
+            if (*count > 0)
+                strbuf_puts(b, "\n");
+            if (slash != NULL) {
+                strbuf_puts(b, dir);
+                if (strcmp(dir, "/") != 0)
+                    strbuf_puts(b, "/");
+            }
+            strbuf_puts(b, ent->d_name);
+            (*count)++;
+        }
+        closedir(d);
     }
     flint_free(dir);
-    flint_free(tmp);
-    return NS_OK;
-
-fail_fd:
-    close(fd);
-fail_file:
-    unlink(tmp);
-    flint_free(tmp);
-    return io_error(err, "cannot write", path, e);
+    flint_free(target);
+    char *out = strbuf_take(b);
+    if (*count == 0) {
+        flint_free(out);
+        out = NULL;
+    }
+    return out;
 }

@@ -117,13 +117,32 @@ ns_status session_load(session_t s, const char *path, nserr_t err);
  * (session_equal) to s.  Returns a string the caller frees with flint_free. */
 char *session_get_str(const session_t s);
 
-/* Writes session_get_str(s) to path atomically: a temporary file
- * "path.tmp-XXXXXX" in the same directory is written, flushed, synced and
- * renamed over path.  On any failure the temporary file is removed and an
- * existing file at path is left untouched.  The new file keeps the
- * permissions of the file it replaces (0644 for a new file).  A session
- * without group or class is refused (NS_ERR_INPUT). */
+/* Writes session_get_str(s) to path.  A symbolic link at path is followed:
+ * the file it points to is written (created when the link dangles) and the
+ * link stays.  Usually atomic: a temporary file "NAME.tmp-XXXXXX" next to
+ * that file (NAME shortened when the name would exceed 255 bytes) is
+ * written, flushed, synced, given the owner, group and mode of the file it
+ * replaces (0644 for a new file) and renamed over it.  A file with several
+ * hard links, or whose owner or group this process cannot give to a new
+ * file, is instead rewritten in place so that it stays one file with the
+ * same owner: its old content is first copied aside to "NAME.old-XXXXXX"
+ * and synced, and that copy is removed once the new content is synced.
+ * On any failure (a full disk, EFBIG at a file-size limit — the caller
+ * should ignore SIGXFSZ) the temporary file is removed and, except in the
+ * rare case of a failure half-way through an in-place rewrite (the copy
+ * aside then stays and the message names it), an existing file is left
+ * untouched.  A session without group or class is refused
+ * (NS_ERR_INPUT). */
 ns_status session_save(const session_t s, const char *path, nserr_t err);
+
+/* Files that interrupted saves of path left next to the file it names
+ * (after following symbolic links): "NAME.tmp-XXXXXX" (a new version,
+ * possibly incomplete) and "NAME.old-XXXXXX" (the content before an
+ * in-place rewrite), with NAME as session_save shortens it.  Sets *count
+ * and returns their full paths, one per line, as a string the caller
+ * frees with flint_free; NULL when there are none (or the directory cannot
+ * be read).  Nothing is removed: which copy matters is the user's call. */
+char *session_leftovers_get_str(slong *count, const char *path);
 
 /* Setters for the user interface.  Texts are copied (the caller keeps its
  * string) and must be UTF-8; NULL or a text of blanks removes the key.

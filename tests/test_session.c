@@ -12,7 +12,11 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <signal.h>
+#include <sys/resource.h>
 #include <sys/stat.h>
+#include <sys/wait.h>
+#include <time.h>
 #include <unistd.h>
 #include <cmocka.h>
 
@@ -685,6 +689,287 @@ static void save_should_fail_cleanly_and_keep_the_old_file(void **state)
     session_clear(s);
 }
 
+
+/* Saving through a symbolic link writes the file the link points to: the
+ * link stays a link, the target keeps its owner, group and mode (issue 8:
+ * the link used to be replaced by a regular file and the real file left
+ * unchanged). */
+static void save_should_follow_links_and_keep_owner_and_mode(void **state)
+{
+    session_t s, t;
+    nserr_t err;
+    char *dir = make_temp_dir(), real[4200], sub[4200], link[4200], *got;
+    struct stat st;
+    int root = geteuid() == 0;
+    (void)state;
+
+    session_init(s);
+    session_init(t);
+    nserr_init(err);
+    parse_ok(s, example);
+    snprintf(sub, sizeof sub, "%s/real", dir);
+    assert_int_equal(mkdir(sub, 0755), 0);
+    snprintf(real, sizeof real, "%s/real/t.nilstep", dir);
+    snprintf(link, sizeof link, "%s/link.nilstep", dir);
+    write_file(real, "old content\n", 12);
+    assert_int_equal(chmod(real, 0640), 0);
+    if (root) /* another owner, as when saving someone else's shared file */
+        assert_int_equal(chown(real, 65534, 65534), 0);
+    assert_int_equal(symlink("real/t.nilstep", link), 0);
+
+    session_add_note(s, "through the link");
+    assert_int_equal(session_save(s, link, err), NS_OK);
+    assert_int_equal(lstat(link, &st), 0);
+    assert_true(S_ISLNK(st.st_mode));
+    assert_int_equal(stat(real, &st), 0);
+    assert_int_equal(st.st_mode & 07777, 0640);
+    if (root) {
+        assert_int_equal(st.st_uid, 65534);
+        assert_int_equal(st.st_gid, 65534);
+    }
+    assert_int_equal(session_load(t, real, err), NS_OK);
+    assert_true(session_equal(s, t));
+    assert_int_equal(count_entries(sub), 1);
+    assert_int_equal(count_entries(dir), 2);
+
+    /* a dangling link: the file is created where the link points */
+    assert_int_equal(unlink(real), 0);
+    assert_int_equal(session_save(s, link, err), NS_OK);
+    assert_int_equal(lstat(link, &st), 0);
+    assert_true(S_ISLNK(st.st_mode));
+    got = read_file(real);
+    {
+        char *want = session_get_str(s);
+        assert_string_equal(got, want);
+        flint_free(want);
+    }
+    free(got);
+    remove_tree(dir);
+    free(dir);
+    session_clear(s);
+    session_clear(t);
+}
+
+/* A file with two names stays one file: both names see the new content. */
+static void save_should_not_split_hard_links(void **state)
+{
+    session_t s;
+    nserr_t err;
+    char *dir = make_temp_dir(), a[4200], b[4200], *got, *want;
+    struct stat sa, sb;
+    (void)state;
+
+    session_init(s);
+    nserr_init(err);
+    parse_ok(s, example);
+    snprintf(a, sizeof a, "%s/a.nilstep", dir);
+    snprintf(b, sizeof b, "%s/b.nilstep", dir);
+    write_file(a, "a much longer old content than the new one will be, to be cut\n"
+                  "a much longer old content than the new one will be, to be cut\n"
+                  "a much longer old content than the new one will be, to be cut\n"
+                  "a much longer old content than the new one will be, to be cut\n"
+                  "a much longer old content than the new one will be, to be cut\n",
+               315);
+    assert_int_equal(chmod(a, 0600), 0);
+    assert_int_equal(link(a, b), 0);
+    assert_int_equal(session_save(s, a, err), NS_OK);
+    assert_int_equal(stat(a, &sa), 0);
+    assert_int_equal(stat(b, &sb), 0);
+    assert_true(sa.st_ino == sb.st_ino);
+    assert_int_equal(sa.st_nlink, 2);
+    assert_int_equal(sa.st_mode & 07777, 0600);
+    want = session_get_str(s);
+    got = read_file(b);
+    assert_string_equal(got, want);
+    free(got);
+    flint_free(want);
+    assert_int_equal(count_entries(dir), 2); /* the copy set aside is gone */
+    remove_tree(dir);
+    free(dir);
+    session_clear(s);
+}
+
+/* The longest legal name (NAME_MAX = 255 bytes on Linux file systems)
+ * leaves no room for a suffix: the temporary name is shortened. */
+static void save_should_work_for_the_longest_names(void **state)
+{
+    session_t s, t;
+    nserr_t err;
+    char *dir = make_temp_dir(), path[4400], name[300];
+    (void)state;
+
+    session_init(s);
+    session_init(t);
+    nserr_init(err);
+    parse_ok(s, example);
+    for (int len = 248; len <= 255; len += 7) {
+        memset(name, 'n', (size_t)len);
+        name[len] = '\0';
+        snprintf(path, sizeof path, "%s/%s", dir, name);
+        if (session_save(s, path, err) != NS_OK)
+            fail_msg("length %d: %s", len, err->msg);
+        assert_int_equal(session_load(t, path, err), NS_OK);
+        assert_true(session_equal(s, t));
+    }
+    assert_int_equal(count_entries(dir), 2);
+    remove_tree(dir);
+    free(dir);
+    session_clear(s);
+    session_clear(t);
+}
+
+/* A file-size limit (ulimit -f) is a write error like a full disk: the old
+ * file stays and the temporary file goes.  Runs in a child because the
+ * limit and the ignored SIGXFSZ must not leak into the other tests. */
+static void save_should_fail_cleanly_at_the_file_size_limit(void **state)
+{
+    char *dir = make_temp_dir(), path[4200];
+    (void)state;
+    snprintf(path, sizeof path, "%s/big.nilstep", dir);
+    write_file(path, "old\n", 4);
+    pid_t pid = fork();
+    assert_true(pid >= 0);
+    if (pid == 0) {
+        session_t s;
+        nserr_t err;
+        struct rlimit rl = {64, 64};
+        session_init(s);
+        nserr_init(err);
+        if (session_parse(s, example, err) != NS_OK)
+            _exit(10);
+        signal(SIGXFSZ, SIG_IGN);
+        if (setrlimit(RLIMIT_FSIZE, &rl) != 0)
+            _exit(11);
+        if (session_save(s, path, err) != NS_ERR_IO)
+            _exit(12);
+        if (strstr(err->msg, strerror(EFBIG)) == NULL)
+            _exit(13);
+        _exit(0);
+    }
+    int ws;
+    assert_int_equal(waitpid(pid, &ws, 0), pid);
+    assert_true(WIFEXITED(ws));
+    assert_int_equal(WEXITSTATUS(ws), 0);
+    char *got = read_file(path);
+    assert_string_equal(got, "old\n");
+    free(got);
+    assert_int_equal(count_entries(dir), 1);
+    remove_tree(dir);
+    free(dir);
+}
+
+/* Temporary files left by a killed save are recognised next to the
+ * session (and only those: similar names are not taken). */
+static void leftovers_should_be_recognised(void **state)
+{
+    char *dir = make_temp_dir(), path[4200], other[4200];
+    slong n = -1;
+    (void)state;
+    snprintf(path, sizeof path, "%s/w.nilstep", dir);
+    write_file(path, "x\n", 2);
+    assert_null(session_leftovers_get_str(&n, path));
+    assert_int_equal(n, 0);
+    snprintf(other, sizeof other, "%s/w.nilstep.tmp-Ab12Z9", dir);
+    write_file(other, "x\n", 2);
+    snprintf(other, sizeof other, "%s/w.nilstep.old-q1w2e3", dir);
+    write_file(other, "x\n", 2);
+    snprintf(other, sizeof other, "%s/w.nilstep.tmp-toolong1", dir);
+    write_file(other, "x\n", 2);
+    snprintf(other, sizeof other, "%s/v.nilstep.tmp-Ab12Z9", dir);
+    write_file(other, "x\n", 2);
+    char *s = session_leftovers_get_str(&n, path);
+    assert_non_null(s);
+    assert_int_equal(n, 2);
+    assert_non_null(strstr(s, "w.nilstep.tmp-Ab12Z9"));
+    assert_non_null(strstr(s, "w.nilstep.old-q1w2e3"));
+    assert_null(strstr(s, "toolong"));
+    assert_null(strstr(s, "v.nilstep"));
+    flint_free(s);
+    remove_tree(dir);
+    free(dir);
+}
+
+/* Kill -9 at random moments while a child saves, alternately, two
+ * sessions through a symbolic link to a file of another owner with mode
+ * 0640.  After every kill: the link is still a link, the target is one of
+ * the two sessions whole, owner and mode are those of the original, and
+ * every temporary file left in the directory is recognised as a leftover.
+ * Seeded: NILSTEP_SEED repeats a run. */
+static void kill_while_saving_should_leave_a_whole_file(void **state)
+{
+    char *dir = make_temp_dir(), real[4200], link[4200], sub[4200];
+    int root = geteuid() == 0, trials = (int)count_scaled_by("NILSTEP_SCALE", 40), changed = 0;
+    slong leftovers = 0;
+    session_t a, b, t, last;
+    nserr_t err;
+    (void)state;
+
+    session_init(a);
+    session_init(b);
+    session_init(t);
+    nserr_init(err);
+    parse_ok(a, example);
+    parse_ok(b, example);
+    session_add_note(b, "the other version, somewhat longer than the first one");
+    snprintf(sub, sizeof sub, "%s/real", dir);
+    assert_int_equal(mkdir(sub, 0755), 0);
+    snprintf(real, sizeof real, "%s/real/k.nilstep", dir);
+    snprintf(link, sizeof link, "%s/k.nilstep", dir);
+    assert_int_equal(session_save(a, real, err), NS_OK);
+    assert_int_equal(chmod(real, 0640), 0);
+    if (root)
+        assert_int_equal(chown(real, 65534, 65534), 0);
+    assert_int_equal(symlink(real, link), 0);
+    session_init(last);
+    session_set(last, a);
+    rng_seed_test("kill_while_saving", 8, "kill times");
+    for (int i = 0; i < trials; i++) {
+        pid_t pid = fork();
+        assert_true(pid >= 0);
+        if (pid == 0) {
+            nserr_t e;
+            nserr_init(e);
+            for (unsigned k = 0;; k++)
+                if (session_save(k % 2 ? b : a, link, e) != NS_OK)
+                    _exit(1);
+        }
+        struct timespec d = {0, rng_range(1000000, 30000000)};
+        nanosleep(&d, NULL);
+        kill(pid, SIGKILL);
+        int ws;
+        assert_int_equal(waitpid(pid, &ws, 0), pid);
+        if (!WIFSIGNALED(ws))
+            fail_msg("trial %d: the saving child stopped on its own", i);
+        struct stat st;
+        assert_int_equal(lstat(link, &st), 0);
+        assert_true(S_ISLNK(st.st_mode));
+        assert_int_equal(stat(real, &st), 0);
+        assert_int_equal(st.st_mode & 07777, 0640);
+        if (root) {
+            assert_int_equal(st.st_uid, 65534);
+            assert_int_equal(st.st_gid, 65534);
+        }
+        if (session_load(t, real, err) != NS_OK)
+            fail_msg("trial %d: torn file: %s", i, err->msg);
+        assert_true(session_equal(t, a) || session_equal(t, b));
+        slong n;
+        char *left = session_leftovers_get_str(&n, link);
+        assert_int_equal(n + 1, count_entries(sub));
+        flint_free(left);
+        leftovers = n;
+        changed += !session_equal(t, last);
+        session_set(last, t);
+    }
+    printf("# %d kills: the file changed between %d of them, %ld temporary files left\n", trials,
+           changed, (long)leftovers);
+    session_clear(last);
+    remove_tree(dir);
+    free(dir);
+    session_clear(a);
+    session_clear(b);
+    session_clear(t);
+}
+
 /* Saving over a scenario must not lose the comment that explains it: the
  * '#' lines before the first key come back after the first line. */
 static void get_str_should_keep_the_leading_comment_block(void **state)
@@ -759,6 +1044,12 @@ int main(void)
         cmocka_unit_test(load_should_reject_nul_bytes_and_huge_files),
         cmocka_unit_test(save_should_replace_the_file_and_leave_no_temporary),
         cmocka_unit_test(save_should_fail_cleanly_and_keep_the_old_file),
+        cmocka_unit_test(save_should_follow_links_and_keep_owner_and_mode),
+        cmocka_unit_test(save_should_not_split_hard_links),
+        cmocka_unit_test(save_should_work_for_the_longest_names),
+        cmocka_unit_test(save_should_fail_cleanly_at_the_file_size_limit),
+        cmocka_unit_test(leftovers_should_be_recognised),
+        cmocka_unit_test(kill_while_saving_should_leave_a_whole_file),
         cmocka_unit_test(failed_parse_should_leave_the_session_unchanged),
         cmocka_unit_test(get_str_should_keep_the_leading_comment_block),
     };
