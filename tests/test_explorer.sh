@@ -94,7 +94,7 @@ start() {
     local i
     for ((i = 0; i < 50; i++)); do
         if tmux -L "$sock" -f /dev/null new-session -d -s nilstep -x "$cols" -y "$lines" \
-            "cd '$tmp' && env NO_COLOR=1 TERM=screen LANG=$lang LC_ALL=$lang '$NILSTEP_BINARY'$args; echo \"EXIT=\$?\"; sleep 600" \
+            "cd '$tmp' && ${start_pre:-} env NO_COLOR=1 TERM=screen LANG=$lang LC_ALL=$lang XDG_STATE_HOME='$tmp/state' '$NILSTEP_BINARY'$args; echo \"EXIT=\$?\"; sleep 600" \
             2>/dev/null; then
             break
         fi
@@ -353,6 +353,162 @@ wait_for "Invariants"
 if tmux -L "$sock" capture-pane -p -e -t nilstep | grep -qE $'\e\\[[0-9;]*(3[0-7]|4[0-7]|38|48)[;m]'; then
     fail "colour escape sequences on the screen although NO_COLOR is set"
 fi
+keys q
+wait_for "EXIT=0"
+
+# ---------------------------------------------------------------------------
+# Issue 8: no lost work.
+
+# The program's pid inside the tmux pane.
+prog_pid() {
+    local shell_pid
+    shell_pid=$(tmux -L "$sock" display-message -p -t nilstep '#{pane_pid}')
+    child_of "$shell_pid"
+}
+
+# wait_file PATTERN [SECONDS]: until a file matches the glob (or fail).
+wait_file() {
+    local pat=$1 limit=${2:-10} i
+    for ((i = 0; i < limit * 10; i++)); do
+        if compgen -G "$pat" >/dev/null; then
+            return 0
+        fi
+        sleep 0.1
+    done
+    fail "timed out waiting for a file $pat"
+    return 1
+}
+
+current="SIGTERM keeps the unsaved work; the next start offers it back"
+cat >"$tmp/rec.nilstep" <<'END'
+nilstep session 1
+title   Recover me
+group   <a, b | >
+class   2
+map     a -> a b, b -> b
+END
+rm -rf "$tmp/state"
+start 100 30 rec.nilstep
+wait_for "Images of the generators"
+keys e C-u
+type_text "a^3 b"
+wait_for "parses"
+keys Enter
+wait_for "[modified]"
+pid=$(prog_pid)
+kill -TERM "$pid"
+wait_for "EXIT=143"
+wait_file "$tmp/state/nilstep/*.nilstep"
+grep -q 'a^3 b' "$tmp"/state/nilstep/*.nilstep || fail "the recovery copy lacks the edit"
+grep -q 'a -> a b, b -> b' "$tmp/rec.nilstep" || fail "the session file itself changed"
+start 100 30 rec.nilstep
+wait_for "Unsaved work"
+wait_for "map"
+wait_for "a^3 b"                   # what differs is shown
+keys r
+wait_for "restored"
+wait_for "[modified]"
+keys s
+wait_for "saved rec.nilstep"
+grep -q 'a^3 b' "$tmp/rec.nilstep" || fail "the restored work was not saved"
+compgen -G "$tmp/state/nilstep/*.nilstep" >/dev/null && fail "the recovery copy outlived the save"
+keys q
+wait_for "EXIT=0"
+
+current="a recovery copy appears a few seconds after a change; closing the terminal keeps it"
+rm -rf "$tmp/state"
+start 100 30 rec.nilstep
+wait_for "Images of the generators"
+keys t C-u
+type_text "Changed title"
+keys Enter
+wait_for "[modified]"
+wait_file "$tmp/state/nilstep/*.nilstep" 15   # written by the running program
+pid=$(prog_pid)
+kill -HUP "$pid"
+wait_for "EXIT=129"
+grep -q 'Changed title' "$tmp"/state/nilstep/*.nilstep || fail "the recovery copy lacks the title"
+start 100 30 rec.nilstep
+wait_for "Unsaved work"
+wait_for "title"
+keys x                             # only r or d answer
+wait_for "Unsaved work"
+keys d
+wait_for "discarded"
+compgen -G "$tmp/state/nilstep/*.nilstep" >/dev/null && fail "a discarded copy is still there"
+wait_for "Recover me"
+keys q
+wait_for "EXIT=0"
+
+current="the built-in scenario keeps its unsaved work too"
+rm -rf "$tmp/state"
+start 100 30
+wait_for "2.618033988 U"
+keys e C-u
+type_text "a^3"
+keys Enter
+wait_for "9.0 U"
+kill -TERM "$(prog_pid)"
+wait_for "EXIT=143"
+start 100 30
+wait_for "Unsaved work"
+keys r
+wait_for "9.0 U"
+keys q
+wait_for "unsaved changes"
+keys y
+wait_for "EXIT=0"
+compgen -G "$tmp/state/nilstep/*.nilstep" >/dev/null && fail "quitting without saving left the copy"
+
+current="a file-size limit is a save error, not a crash"
+{
+    printf 'nilstep session 1\ntitle   Big\ngroup   <a, b | >\nclass   2\nmap     a -> a b, b -> b\n'
+    for i in $(seq 1 60); do
+        printf 'note    line %d of a long note that makes the file larger than two KiB\n' "$i"
+    done
+} >"$tmp/big.nilstep"
+cp "$tmp/big.nilstep" "$tmp/big.orig"
+start_pre="ulimit -f 2;" start 100 30 big.nilstep
+wait_for "Images of the generators"
+keys t C-u
+type_text "Bigger"
+keys Enter
+keys s
+wait_for "not saved"
+wait_for "too large"
+wait_for "[modified]"
+cmp -s "$tmp/big.nilstep" "$tmp/big.orig" || fail "the old file changed"
+compgen -G "$tmp/big.nilstep.tmp-*" >/dev/null && fail "a temporary file was left behind"
+keys q
+wait_for "unsaved changes"
+keys y
+wait_for "EXIT=0"
+
+current="temporary files of an interrupted save are reported on opening"
+cp "$tmp/rec.nilstep" "$tmp/left.nilstep"
+printf 'half a sess' >"$tmp/left.nilstep.tmp-Q7w2Ab"
+start 100 30 left.nilstep
+wait_for "interrupted save"
+wait_for "left.nilstep.tmp-Q7w2Ab"
+keys q
+wait_for "EXIT=0"
+
+current="no keystroke typed during a computation is lost"
+cat >"$tmp/slow.nilstep" <<'END'
+nilstep session 1
+title   Slow
+group   <a, b, c>
+class   8
+END
+rm -rf "$tmp/state"
+start 100 30 slow.nilstep
+wait_for "class-8 quotient" 30
+long=$(printf 'k%.0s' $(seq 1 100))
+keys t C-u
+type_text "$long"
+keys Enter s
+wait_for "saved slow.nilstep" 180
+grep -q "^title *$long\$" "$tmp/slow.nilstep" || fail "the title lost letters: $(grep '^title' "$tmp/slow.nilstep")"
 keys q
 wait_for "EXIT=0"
 

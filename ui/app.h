@@ -31,7 +31,9 @@ enum {
     ACT_GROUP = 4,  /* app->pending_group / pending_cls: recompute the quotient */
     ACT_OPEN = 8,   /* app->pending_doc: open it (recomputes everything) */
     ACT_SAVE = 16,  /* write the session to app->path */
-    ACT_QUIT = 32
+    ACT_QUIT = 32,
+    ACT_RESTORE = 64, /* take the recovery copy (app->recovered) */
+    ACT_DISCARD = 128 /* remove the recovery copy */
 };
 
 typedef enum { SCREEN_MAIN, SCREEN_LAYER, SCREEN_HELP } screen_id;
@@ -44,7 +46,8 @@ typedef enum {
     PROMPT_SAVE_AS,      /* a path to save to */
     PROMPT_OPEN,         /* a path to open */
     PROMPT_CONFIRM_QUIT, /* unsaved changes: y quits */
-    PROMPT_CONFIRM_OPEN  /* unsaved changes: y goes on to PROMPT_OPEN */
+    PROMPT_CONFIRM_OPEN, /* unsaved changes: y goes on to PROMPT_OPEN */
+    PROMPT_RECOVER       /* a recovery copy exists: r restores, d discards */
 } prompt_kind;
 
 /* Keys: a Unicode character is its code point; a curses function key
@@ -118,9 +121,18 @@ struct explorer_app_struct {
     char status[700];
     int status_error;
 
-    /* keys typed while a computation ran, replayed after it (Esc excepted) */
-    int typeahead[64];
-    int ntypeahead;
+    /* keys typed while a computation ran, replayed after it (Esc excepted);
+     * a queue that grows as needed, so that no key is ever dropped */
+    int *typeahead;
+    size_t typeahead_head, ntypeahead, typeahead_cap;
+
+    /* the recovery copy of unsaved work (recovery.h) */
+    char *recovery_path;    /* NULL: no place to keep one */
+    char *recovery_text;    /* the session text last seen, or NULL */
+    double recovery_due;    /* when to write it (monotonic seconds), 0 none */
+    int recovery_written;   /* this run wrote the copy at recovery_path */
+    session_t recovered;    /* the copy found at start (PROMPT_RECOVER) */
+    char recovery_diff[2000];
 
     int utf8; /* the terminal takes UTF-8: use ρ, ↦, … */
     int running;

@@ -12,12 +12,14 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <termios.h>
 #include <time.h>
 #include <unistd.h>
 
 #include "app.h"
 #include "defaults.h"
 #include "paint.h"
+#include "recovery.h"
 
 #define EXPLORER_MIN_COLS  80
 #define EXPLORER_MIN_LINES 24
@@ -47,25 +49,46 @@ void app_status(explorer_app *app, int is_error, const char *fmt, ...)
 
 static volatile sig_atomic_t explorer_curses_on;
 
-/* A fatal signal must not leave the terminal in raw mode: restore it, then
- * die of the same signal so the exit status tells what happened. */
+/* A termination request (SIGINT, SIGTERM, SIGHUP) only sets this flag; the
+ * main loop (or the progress hook, which then cancels the computation)
+ * sees it, keeps a recovery copy of unsaved work, restores the terminal and
+ * dies of the same signal.  Nothing but the flag is touched here: curses
+ * is not async-signal-safe. */
+static volatile sig_atomic_t explorer_term_signal;
+
+static void explorer_on_term_signal(int sig)
+{
+    explorer_term_signal = sig;
+}
+
+/* The terminal modes before curses, for the fatal signals below. */
+static struct termios explorer_saved_tty;
+static volatile sig_atomic_t explorer_saved_tty_ok;
+
+/* SIGQUIT and SIGABRT end the program at once: put the terminal modes
+ * back with tcsetattr (async-signal-safe), then die of the same signal so
+ * the exit status tells what happened. */
 static void explorer_on_fatal_signal(int sig)
 {
-    if (explorer_curses_on)
-        endwin();
+    if (explorer_saved_tty_ok)
+        tcsetattr(STDIN_FILENO, TCSANOW, &explorer_saved_tty);
     signal(sig, SIG_DFL);
     raise(sig);
 }
 
 static void explorer_catch_signals(void)
 {
-    static const int sigs[] = {SIGINT, SIGTERM, SIGHUP, SIGQUIT, SIGABRT};
+    static const int term[] = {SIGINT, SIGTERM, SIGHUP};
+    static const int fatal[] = {SIGQUIT, SIGABRT};
     struct sigaction sa;
     memset(&sa, 0, sizeof sa);
-    sa.sa_handler = explorer_on_fatal_signal;
     sigemptyset(&sa.sa_mask);
-    for (size_t i = 0; i < sizeof sigs / sizeof sigs[0]; i++)
-        sigaction(sigs[i], &sa, NULL);
+    sa.sa_handler = explorer_on_term_signal;
+    for (size_t i = 0; i < sizeof term / sizeof term[0]; i++)
+        sigaction(term[i], &sa, NULL);
+    sa.sa_handler = explorer_on_fatal_signal;
+    for (size_t i = 0; i < sizeof fatal / sizeof fatal[0]; i++)
+        sigaction(fatal[i], &sa, NULL);
 }
 
 static int explorer_term_start(explorer_app *app)
@@ -75,6 +98,8 @@ static int explorer_term_start(explorer_app *app)
                         "(nilstep report FILE writes the analysis as text)\n");
         return 1;
     }
+    if (tcgetattr(STDIN_FILENO, &explorer_saved_tty) == 0)
+        explorer_saved_tty_ok = 1;
     if (initscr() == NULL) {
         fprintf(stderr, "nilstep: cannot initialise the terminal\n");
         return 1;
@@ -220,6 +245,25 @@ static double explorer_seconds_since(const struct timespec *t)
     return (double)(now.tv_sec - t->tv_sec) + 1e-9 * (double)(now.tv_nsec - t->tv_nsec);
 }
 
+/* Queues a key typed during a computation; the queue grows as needed. */
+static void explorer_typeahead_push(explorer_app *app, int key)
+{
+    if (app->typeahead_head > 0 && app->typeahead_head + app->ntypeahead == app->typeahead_cap) {
+        memmove(app->typeahead, app->typeahead + app->typeahead_head,
+                app->ntypeahead * sizeof app->typeahead[0]);
+        app->typeahead_head = 0;
+    }
+    if (app->ntypeahead == app->typeahead_cap) {
+        size_t cap = app->typeahead_cap ? 2 * app->typeahead_cap : 256;
+        int *t = realloc(app->typeahead, cap * sizeof *t);
+        if (t == NULL)
+            abort();
+        app->typeahead = t;
+        app->typeahead_cap = cap;
+    }
+    app->typeahead[app->typeahead_head + app->ntypeahead++] = key;
+}
+
 /* Called by the engine from inside the computation: redraws a progress
  * line now and then and polls the keyboard without blocking, so that Esc
  * cancels and a resize repaints, all without threads. */
@@ -238,9 +282,11 @@ static int explorer_progress_cb(void *ctx, const char *stage, double fraction)
             p->cancelled = 1;
         else if (r == KEY_CODE_YES && ch == KEY_RESIZE)
             explorer_draw(app);
-        else if (app->ntypeahead < (int)(sizeof app->typeahead / sizeof app->typeahead[0]))
-            app->typeahead[app->ntypeahead++] = r == KEY_CODE_YES ? UIKEY_FN((int)ch) : (int)ch;
+        else
+            explorer_typeahead_push(app, r == KEY_CODE_YES ? UIKEY_FN((int)ch) : (int)ch);
     }
+    if (explorer_term_signal)
+        p->cancelled = 1; /* the main loop keeps the work and ends */
     if (!explorer_too_small()) {
         int y = LINES - 2;
         paint_fill(y, 0, COLS, ROLE_NORMAL);
@@ -275,10 +321,16 @@ static void explorer_progress_begin(explorer_progress *p, ns_progress_t *hook, e
     }
 }
 
+/* How long the main loop waits for a key before it looks at signals and
+ * the recovery copy (milliseconds). */
+#define EXPLORER_POLL_MS 250
+
 static void explorer_progress_end(void)
 {
-    if (explorer_curses_on)
+    if (explorer_curses_on) {
         nodelay(stdscr, FALSE);
+        timeout(EXPLORER_POLL_MS);
+    }
 }
 
 /* ---- the document ------------------------------------------------------ */
@@ -390,7 +442,8 @@ static analysis_struct *explorer_compute_group(explorer_app *app, const pres_t G
     explorer_progress_end();
     if (st != NS_OK) {
         explorer_analysis_free(B);
-        app->ntypeahead = 0; /* keys typed for a result that will not come */
+        if (pr.cancelled) /* Esc: keys typed for a result that will not come */
+            app->ntypeahead = app->typeahead_head = 0;
         return NULL;
     }
     return B;
@@ -512,6 +565,9 @@ done:
     nserr_clear(err);
 }
 
+static void explorer_drop_recovery(explorer_app *app);
+static void explorer_check_leftovers(explorer_app *app);
+
 /* Opens app->pending_doc (loaded by the open prompt).  Nothing changes
  * unless the new quotient is computed. */
 static void explorer_do_open(explorer_app *app)
@@ -537,6 +593,7 @@ static void explorer_do_open(explorer_app *app)
     session_swap(app->doc, app->pending_doc);
     explorer_adopt_parts(app, &p, B);
     viewmodel_set_cursor(app->vm, app->doc->cursor_layer, app->doc->cursor_image);
+    explorer_drop_recovery(app); /* leaving unsaved work was confirmed */
     free(app->path);
     app->path = path;
     path = NULL;
@@ -544,6 +601,7 @@ static void explorer_do_open(explorer_app *app)
     explorer_apply_map(app);
     if (app->group_problem[0] == '\0') /* else apply_map said what went wrong */
         app_status(app, 0, "opened %s", app->path);
+    explorer_check_leftovers(app);
 done:
     session_clear(app->pending_doc);
     free(path);
@@ -551,18 +609,11 @@ done:
     nserr_clear(err);
 }
 
-/* Writes the session to pending_path (save as) or app->path. */
-static void explorer_do_save(explorer_app *app)
+/* s := the session as it would be saved now. */
+static void explorer_build_session(explorer_app *app, session_t s)
 {
-    char *path = app->pending_path ? app->pending_path : app->path;
-    if (path == NULL) {
-        prompt_open(app, PROMPT_SAVE_AS, "");
-        return;
-    }
     nserr_t err;
     nserr_init(err);
-    session_t s;
-    session_init(s);
     session_set(s, app->doc);
     /* Keys the user did not touch keep their text from the file (layout,
      * comments in continuation lines); changed ones are written fresh. */
@@ -579,15 +630,92 @@ static void explorer_do_save(explorer_app *app)
     long layer, image;
     viewmodel_get_cursor(app->vm, &layer, &image);
     session_set_cursor(s, layer, image);
+    nserr_clear(err);
+}
+
+static double explorer_now(void)
+{
+    struct timespec t;
+    clock_gettime(CLOCK_MONOTONIC, &t);
+    return (double)t.tv_sec + 1e-9 * (double)t.tv_nsec;
+}
+
+/* Seconds between a change and its recovery copy. */
+#define EXPLORER_RECOVERY_DELAY 2.0
+
+/* Writes the recovery copy now when there is unsaved work. */
+static void explorer_write_recovery(explorer_app *app)
+{
+    app->recovery_due = 0;
+    if (app->recovery_path == NULL || !app->vm->dirty)
+        return;
+    nserr_t err;
+    nserr_init(err);
+    session_t s;
+    session_init(s);
+    explorer_build_session(app, s);
+    if (recovery_write(app->recovery_path, s, err) == NS_OK)
+        app->recovery_written = 1;
+    else
+        app_status(app, 1, "no recovery copy: %s", err->msg);
+    session_clear(s);
+    nserr_clear(err);
+}
+
+/* After every action: when the unsaved work changed, schedule its copy a
+ * few seconds later (a burst of keys then costs one write). */
+static void explorer_note_change(explorer_app *app)
+{
+    if (app->recovery_path == NULL || !app->vm->dirty || app->prompt == PROMPT_RECOVER)
+        return;
+    session_t s;
+    session_init(s);
+    explorer_build_session(app, s);
+    char *text = session_get_str(s);
+    if (app->recovery_text == NULL || strcmp(text, app->recovery_text) != 0) {
+        free(app->recovery_text);
+        app->recovery_text = explorer_strdup(text);
+        app->recovery_due = explorer_now() + EXPLORER_RECOVERY_DELAY;
+    }
+    flint_free(text);
+    session_clear(s);
+}
+
+/* The copy is no longer needed: saved, discarded or quit on purpose. */
+static void explorer_drop_recovery(explorer_app *app)
+{
+    recovery_remove(app->recovery_path);
+    app->recovery_written = 0;
+    app->recovery_due = 0;
+    free(app->recovery_text);
+    app->recovery_text = NULL;
+}
+
+/* Writes the session to pending_path (save as) or app->path. */
+static void explorer_do_save(explorer_app *app)
+{
+    char *path = app->pending_path ? app->pending_path : app->path;
+    if (path == NULL) {
+        prompt_open(app, PROMPT_SAVE_AS, "");
+        return;
+    }
+    nserr_t err;
+    nserr_init(err);
+    session_t s;
+    session_init(s);
+    explorer_build_session(app, s);
     if (session_save(s, path, err) != NS_OK) {
         app_status(app, 1, "not saved: %s", err->msg);
     } else {
         session_swap(app->doc, s);
         viewmodel_mark_saved(app->vm);
+        explorer_drop_recovery(app);
         if (app->pending_path) {
             free(app->path);
             app->path = app->pending_path;
             app->pending_path = NULL;
+            free(app->recovery_path);
+            app->recovery_path = recovery_path_for(app->path);
         }
         app_status(app, 0, "saved %s", app->path);
     }
@@ -635,10 +763,9 @@ static int explorer_key(explorer_app *app, int key)
 static int explorer_read_key(explorer_app *app)
 {
     if (app->ntypeahead > 0) {
-        int key = app->typeahead[0];
-        app->ntypeahead--;
-        memmove(app->typeahead, app->typeahead + 1,
-                (size_t)app->ntypeahead * sizeof app->typeahead[0]);
+        int key = app->typeahead[app->typeahead_head++];
+        if (--app->ntypeahead == 0)
+            app->typeahead_head = 0;
         return key;
     }
     wint_t ch;
@@ -650,18 +777,113 @@ static int explorer_read_key(explorer_app *app)
     return (int)ch;
 }
 
+/* Restores the recovery copy found at start (app->recovered) as unsaved
+ * work on the same path. */
+static void explorer_do_restore(explorer_app *app)
+{
+    nserr_t err;
+    nserr_init(err);
+    explorer_parts p;
+    explorer_parts_init(&p);
+    if (explorer_parts_from_session(&p, app->recovered, err) != NS_OK) {
+        app_status(app, 1, "not restored: %s:%d:%d: %s", app->recovery_path, err->line, err->col,
+                   err->msg);
+        goto done;
+    }
+    analysis_struct *B = explorer_compute_group(app, p.pres, p.cls, err);
+    if (B == NULL) {
+        app_status(app, err->status != NS_ERR_CANCELLED, "not restored (%s); the copy stays in %s",
+                   err->msg, app->recovery_path);
+        goto done;
+    }
+    session_swap(app->doc, app->recovered);
+    explorer_adopt_parts(app, &p, B);
+    viewmodel_set_cursor(app->vm, app->doc->cursor_layer, app->doc->cursor_image);
+    viewmodel_mark_dirty(app->vm);
+    app->group_edited = app->map_edited = app->title_edited = 1;
+    app->recovery_written = 1;
+    explorer_apply_map(app);
+    if (app->group_problem[0] == '\0')
+        app_status(app, 0, "restored the unsaved work: s saves it");
+done:
+    session_clear(app->recovered);
+    explorer_parts_clear(&p);
+    nserr_clear(err);
+}
+
+/* On opening app->path: names the files an interrupted save left there,
+ * and offers a recovery copy of unsaved work from an earlier run. */
+static void explorer_check_leftovers(explorer_app *app)
+{
+    free(app->recovery_path);
+    app->recovery_path = recovery_path_for(app->path);
+    free(app->recovery_text);
+    app->recovery_text = NULL;
+    app->recovery_due = 0;
+    app->recovery_written = 0;
+    if (app->path) {
+        slong n;
+        char *left = session_leftovers_get_str(&n, app->path);
+        if (left) {
+            for (char *c = left; *c; c++)
+                if (*c == '\n')
+                    *c = ' ';
+            app_status(app, 1, "%ld file%s left by an interrupted save (check, then remove): %s",
+                       (long)n, n == 1 ? "" : "s", left);
+            flint_free(left);
+        }
+    }
+    if (app->recovery_path == NULL || access(app->recovery_path, F_OK) != 0)
+        return;
+    nserr_t err;
+    nserr_init(err);
+    session_clear(app->recovered);
+    session_init(app->recovered);
+    if (session_load(app->recovered, app->recovery_path, err) != NS_OK) {
+        app_status(app, 1, "recovery copy %s unreadable: %s", app->recovery_path, err->msg);
+        free(app->recovery_path); /* leave it for the user, write none */
+        app->recovery_path = NULL;
+    } else {
+        char *diff = recovery_describe(app->doc, app->recovered);
+        if (diff[0] == '\0') {
+            recovery_remove(app->recovery_path); /* nothing unsaved in it */
+        } else {
+            snprintf(app->recovery_diff, sizeof app->recovery_diff, "%s", diff);
+            app->prompt = PROMPT_RECOVER;
+        }
+        free(diff);
+    }
+    nserr_clear(err);
+}
+
 static void explorer_loop(explorer_app *app)
 {
     int flags = ACT_REDRAW;
-    while (app->running) {
+    timeout(EXPLORER_POLL_MS);
+    while (app->running && !explorer_term_signal) {
         if (flags & ACT_REDRAW)
             explorer_draw(app);
+        if (app->recovery_due > 0 && explorer_now() >= app->recovery_due)
+            explorer_write_recovery(app);
         int key = explorer_read_key(app);
-        if (key < 0)
+        if (key < 0) {
+            flags = ACT_NONE;
             continue;
+        }
         flags = explorer_key(app, key);
-        if (flags & ACT_QUIT)
+        if (flags & ACT_QUIT) {
+            /* quitting with unsaved work was confirmed: a discard */
+            explorer_drop_recovery(app);
             break;
+        }
+        if (flags & ACT_RESTORE)
+            explorer_do_restore(app);
+        if (flags & ACT_DISCARD) {
+            explorer_drop_recovery(app);
+            session_clear(app->recovered);
+            session_init(app->recovered);
+            app_status(app, 0, "discarded the recovery copy");
+        }
         if (flags & ACT_OPEN)
             explorer_do_open(app);
         if (flags & ACT_GROUP)
@@ -671,8 +893,9 @@ static void explorer_loop(explorer_app *app)
         }
         if (flags & ACT_SAVE)
             explorer_do_save(app);
-        if (flags & (ACT_OPEN | ACT_GROUP | ACT_MAP | ACT_SAVE))
+        if (flags & (ACT_OPEN | ACT_GROUP | ACT_MAP | ACT_SAVE | ACT_RESTORE))
             flags |= ACT_REDRAW;
+        explorer_note_change(app);
     }
 }
 
@@ -683,6 +906,7 @@ static void explorer_app_init(explorer_app *app)
     memset(app, 0, sizeof *app);
     session_init(app->doc);
     session_init(app->pending_doc);
+    session_init(app->recovered);
     pres_init(app->pres);
     viewmodel_init(app->vm);
     lineedit_init(app->edit);
@@ -697,6 +921,10 @@ static void explorer_app_clear(explorer_app *app)
 {
     session_clear(app->doc);
     session_clear(app->pending_doc);
+    session_clear(app->recovered);
+    free(app->typeahead);
+    free(app->recovery_path);
+    free(app->recovery_text);
     pres_clear(app->pres);
     viewmodel_clear(app->vm);
     lineedit_clear(app->edit);
@@ -750,7 +978,16 @@ int explorer_run(const char *path)
     explorer_apply_map(&app);
     if (is_new)
         app_status(&app, 0, "%s is a new file: s saves this scenario there", path);
+    explorer_check_leftovers(&app);
     explorer_loop(&app);
+    int sig = explorer_term_signal;
+    if (sig) {
+        /* killed or hung up: keep the unsaved work, then die of the signal */
+        explorer_write_recovery(&app);
+        explorer_term_stop();
+        signal(sig, SIG_DFL);
+        raise(sig);
+    }
     explorer_term_stop();
 done:
     explorer_parts_clear(&p);

@@ -1,4 +1,5 @@
 /* main.c — nilstep's entry point: the explorer, or a subcommand. */
+#include <signal.h>
 #include <stdio.h>
 #include <string.h>
 #include "cli.h"
@@ -10,6 +11,9 @@
 
 int main(int argc, char **argv)
 {
+    /* A file-size limit (ulimit -f) must be a write error (EFBIG) that we
+     * report, not a signal that kills the explorer with the work unsaved. */
+    signal(SIGXFSZ, SIG_IGN);
     if (argc >= 2 && !strcmp(argv[1], "report"))
         return cli_report(argc - 1, argv + 1);
     if (argc >= 2 && (!strcmp(argv[1], "--help") || !strcmp(argv[1], "-h"))) {

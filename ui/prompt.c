@@ -179,6 +179,20 @@ void prompt_draw(explorer_app *app)
     int y0 = LINES - 2 - PROMPT_ROWS;
     for (int r = 0; r < PROMPT_ROWS; r++)
         paint_fill(y0 + r, 0, COLS, ROLE_NORMAL);
+    if (app->prompt == PROMPT_RECOVER) {
+        paint_fill(LINES - 1, 0, COLS, ROLE_NORMAL);
+        int hx = paint_text(LINES - 1, 0, COLS, ROLE_KEY, "r");
+        hx += paint_text(LINES - 1, hx, COLS - hx, ROLE_NORMAL, " restore  ");
+        hx += paint_text(LINES - 1, hx, COLS - hx, ROLE_KEY, "d");
+        paint_text(LINES - 1, hx, COLS - hx, ROLE_NORMAL, " discard");
+        paint_fill(y0, 0, COLS, ROLE_BAR);
+        paint_text(y0, 1, COLS - 1, ROLE_BAR,
+                   "Unsaved work from an earlier run was kept. It changes:");
+        paint_text(y0 + 1, 1, COLS - 1, ROLE_MARKER, app->recovery_diff);
+        paint_text(y0 + 2, 1, COLS - 1, ROLE_NORMAL,
+                   "r restores it (s then saves it), d discards it for good.");
+        return;
+    }
     if (app->prompt == PROMPT_CONFIRM_QUIT || app->prompt == PROMPT_CONFIRM_OPEN) {
         paint_fill(LINES - 1, 0, COLS, ROLE_NORMAL);
         int hx = paint_text(LINES - 1, 0, COLS, ROLE_KEY, "y");
@@ -379,6 +393,18 @@ const ui_keymap *prompt_keys(void)
 
 int prompt_key(explorer_app *app, int key)
 {
+    if (app->prompt == PROMPT_RECOVER) {
+        /* only an explicit answer: the copy is the user's only one */
+        if (key == 'r' || key == 'R') {
+            app->prompt = PROMPT_NONE;
+            return ACT_RESTORE | ACT_REDRAW;
+        }
+        if (key == 'd' || key == 'D') {
+            app->prompt = PROMPT_NONE;
+            return ACT_DISCARD | ACT_REDRAW;
+        }
+        return ACT_NONE;
+    }
     if (app->prompt == PROMPT_CONFIRM_QUIT || app->prompt == PROMPT_CONFIRM_OPEN) {
         prompt_kind kind = app->prompt;
         app->prompt = PROMPT_NONE;
