@@ -185,24 +185,77 @@ static int cons_row(void *vctx, const fmpz *l, const fmpz *r)
     return 0;
 }
 
-/* One step c -> c+1.  *grew is set to the number of new generators. */
-static ns_status step(nq_t Q, slong c, pcp_work_t W, const ns_progress_t *prog, slong *grew,
-                      nserr_t err)
-{
-    pcp_struct *P = Q->pcp;
-    slong n = P->n, X = Q->pres->gens->n, nslots = n * (n - 1) / 2;
-    ns_status st = NS_OK;
-    *grew = 0;
-    if (n > NQ_MAX_PCGENS)
-        return nserr_set(err, NS_ERR_LIMIT, 0, 0,
-                         "class %ld would extend a presentation on %ld pc generators "
-                         "(limit %d)",
-                         (long)(c + 1), (long)n, NQ_MAX_PCGENS);
-    if (progress_stage(prog, c + 1, "tails", 0.0))
-        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+/* The state of one step c -> c+1, shared by its phases.  Each phase
+ * reads what the earlier ones left here; step_clear frees whatever exists. */
+typedef struct {
+    slong c;            /* the class of the presentation being extended */
+    slong n, X, nslots; /* pc generators, input generators, conjugate slots */
+    /* the tails: one new central generator per relation that is not a
+     * definition; the commutator tails [a_k, a_i] (weight 1, weight c) last */
+    slong T, cap, last; /* tails, allocated, first commutator tail */
+    tail_struct *tails;
+    slong *tailof;      /* nslots: the tail of conjugate slot s, or -1 */
+    slong *powtail;     /* n: the tail of a_i's power relation, or -1 */
+    slong *imgtail;     /* X: the tail of input generator x's image, or -1 */
+    /* the tailed presentation on N = n + T generators and the images */
+    slong N;
+    pcp_t E;
+    fmpz *img;          /* X x N */
+    /* the relation lattice on the tails and its quotient */
+    elim_t L;
+    elim_quotient_t q;
+} step_struct;
 
-    /* Which relations are definitions and carry no tail. */
-    char *isdef = flint_calloc(FLINT_MAX(nslots, 1), 1);
+static void step_init(step_struct *S, const nq_t Q, slong c)
+{
+    memset(S, 0, sizeof(step_struct));
+    S->c = c;
+    S->n = Q->pcp->n;
+    S->X = Q->pres->gens->n;
+    S->nslots = S->n * (S->n - 1) / 2;
+    S->cap = 16;
+    S->tails = flint_malloc(S->cap * sizeof(tail_struct));
+    S->tailof = flint_malloc(FLINT_MAX(S->nslots, 1) * sizeof(slong));
+    S->powtail = flint_malloc(FLINT_MAX(S->n, 1) * sizeof(slong));
+    S->imgtail = flint_malloc(FLINT_MAX(S->X, 1) * sizeof(slong));
+    pcp_init(S->E);
+    elim_init(S->L, 0);
+    elim_quotient_init(S->q);
+}
+
+static void step_clear(step_struct *S)
+{
+    elim_quotient_clear(S->q);
+    elim_clear(S->L);
+    if (S->img)
+        _fmpz_vec_clear(S->img, FLINT_MAX(S->X * S->N, 1));
+    pcp_clear(S->E);
+    flint_free(S->tails);
+    flint_free(S->tailof);
+    flint_free(S->powtail);
+    flint_free(S->imgtail);
+}
+
+static slong add_tail(step_struct *S, tail_kind kind, slong a, slong b)
+{
+    if (S->T == S->cap) {
+        S->cap *= 2;
+        S->tails = flint_realloc(S->tails, S->cap * sizeof(tail_struct));
+    }
+    S->tails[S->T].kind = kind;
+    S->tails[S->T].a = a;
+    S->tails[S->T].b = b;
+    return S->T++;
+}
+
+/* Phase 1: a tail on every power relation, on every image of an input
+ * generator and every conjugate relation of weight <= c+1 that is not a
+ * definition; the commutator tails of weight (c, 1) last. */
+static ns_status step_plan_tails(step_struct *S, const nq_t Q, nserr_t err)
+{
+    const pcp_struct *P = Q->pcp;
+    slong n = S->n, X = S->X, c = S->c;
+    char *isdef = flint_calloc(FLINT_MAX(S->nslots, 1), 1);
     char *imgdef = flint_calloc(FLINT_MAX(X, 1), 1);
     for (slong g = 0; g < n; g++) {
         if (P->def[g].kind == PCP_DEF_COMM)
@@ -210,68 +263,45 @@ static ns_status step(nq_t Q, slong c, pcp_work_t W, const ns_progress_t *prog, 
         else if (P->def[g].kind == PCP_DEF_IMAGE)
             imgdef[P->def[g].a] = 1;
     }
-    slong cap = 16, T = 0;
-    tail_struct *tails = flint_malloc(cap * sizeof(tail_struct));
-    slong *tailof = flint_malloc(FLINT_MAX(nslots, 1) * sizeof(slong));
-    slong *powtail = flint_malloc(FLINT_MAX(n, 1) * sizeof(slong));
-    slong *imgtail = flint_malloc(FLINT_MAX(X, 1) * sizeof(slong));
-#define ADD_TAIL(K, A, B)                                                                    \
-    do {                                                                                     \
-        if (T == cap) {                                                                      \
-            cap *= 2;                                                                        \
-            tails = flint_realloc(tails, cap * sizeof(tail_struct));                         \
-        }                                                                                    \
-        tails[T].kind = (K);                                                                 \
-        tails[T].a = (A);                                                                    \
-        tails[T].b = (B);                                                                    \
-        T++;                                                                                 \
-    } while (0)
-    for (slong s = 0; s < nslots; s++)
-        tailof[s] = -1;
-    for (slong i = 0; i < n; i++) {
-        powtail[i] = -1;
-        if (!fmpz_is_zero(P->relorder + i)) {
-            powtail[i] = T;
-            ADD_TAIL(TAIL_POW, i, 0);
-        }
-    }
-    for (slong x = 0; x < X; x++) {
-        imgtail[x] = -1;
-        if (!imgdef[x]) {
-            imgtail[x] = T;
-            ADD_TAIL(TAIL_IMG, x, 0);
-        }
-    }
+    for (slong s = 0; s < S->nslots; s++)
+        S->tailof[s] = -1;
+    for (slong i = 0; i < n; i++)
+        S->powtail[i] = fmpz_is_zero(P->relorder + i) ? -1 : add_tail(S, TAIL_POW, i, 0);
+    for (slong x = 0; x < X; x++)
+        S->imgtail[x] = imgdef[x] ? -1 : add_tail(S, TAIL_IMG, x, 0);
     for (slong k = 0; k < n; k++)
         for (slong i = 0; i < k; i++) {
             slong wi = P->weight[i], wk = P->weight[k];
             if (wi + wk > c + 1 || isdef[pcp_slot(k, i)] || (wi == 1 && wk == c))
                 continue;
-            tailof[pcp_slot(k, i)] = T;
-            ADD_TAIL(TAIL_CONJ, k, i);
+            S->tailof[pcp_slot(k, i)] = add_tail(S, TAIL_CONJ, k, i);
         }
-    slong last = T;
+    S->last = S->T;
     for (slong k = 0; k < n; k++)
         for (slong i = 0; i < k; i++)
-            if (P->weight[i] == 1 && P->weight[k] == c) {
-                tailof[pcp_slot(k, i)] = T;
-                ADD_TAIL(TAIL_CONJ, k, i);
-            }
-#undef ADD_TAIL
-    if (T > NQ_MAX_TAILS) {
-        st = nserr_set(err, NS_ERR_LIMIT, 0, 0, "class %ld needs %ld tails (limit %d)",
-                       (long)(c + 1), (long)T, NQ_MAX_TAILS);
-        goto out_tails;
-    }
+            if (P->weight[i] == 1 && P->weight[k] == c)
+                S->tailof[pcp_slot(k, i)] = add_tail(S, TAIL_CONJ, k, i);
+    flint_free(isdef);
+    flint_free(imgdef);
+    if (S->T > NQ_MAX_TAILS)
+        return nserr_set(err, NS_ERR_LIMIT, 0, 0, "class %ld needs %ld tails (limit %d)",
+                         (long)(c + 1), (long)S->T, NQ_MAX_TAILS);
+    return NS_OK;
+}
 
-    /* The tailed presentation on n + T generators. */
-    slong N = n + T;
+/* Phase 2: the tailed presentation on n + T generators, and the images of
+ * the input generators in it. */
+static ns_status step_tailed_presentation(step_struct *S, const nq_t Q, pcp_work_t W,
+                                          nserr_t err)
+{
+    const pcp_struct *P = Q->pcp;
+    slong n = S->n, X = S->X, c = S->c, N = n + S->T;
+    S->N = N;
     slong *wt = flint_malloc(N * sizeof(slong));
     for (slong g = 0; g < N; g++)
         wt[g] = g < n ? P->weight[g] : c + 1;
-    pcp_t E;
-    pcp_init(E);
-    pcp_reset(E, N, wt, c + 1);
+    pcp_reset(S->E, N, wt, c + 1);
+    flint_free(wt);
     pcw_t w;
     pcw_init(w);
     fmpz_t one;
@@ -280,8 +310,8 @@ static ns_status step(nq_t Q, slong c, pcp_work_t W, const ns_progress_t *prog, 
         if (fmpz_is_zero(P->relorder + i))
             continue;
         pcw_set(w, P->pow + i);
-        pcw_push(w, n + powtail[i], one);
-        pcp_set_power(E, i, P->relorder + i, w);
+        pcw_push(w, n + S->powtail[i], one);
+        pcp_set_power(S->E, i, P->relorder + i, w);
     }
     for (slong k = 0; k < n; k++)
         for (slong i = 0; i < k; i++) {
@@ -289,47 +319,48 @@ static ns_status step(nq_t Q, slong c, pcp_work_t W, const ns_progress_t *prog, 
             if (P->weight[i] + P->weight[k] > c + 1)
                 continue;
             old_conj_word(w, P, k, i);
-            if (tailof[s] >= 0)
-                pcw_push(w, n + tailof[s], one);
-            pcp_set_conj(E, k, i, w);
+            if (S->tailof[s] >= 0)
+                pcw_push(w, n + S->tailof[s], one);
+            pcp_set_conj(S->E, k, i, w);
         }
-    fmpz *img = _fmpz_vec_init(FLINT_MAX(X * N, 1));
+    fmpz_clear(one);
+    pcw_clear(w);
+    S->img = _fmpz_vec_init(FLINT_MAX(X * N, 1));
     for (slong x = 0; x < X; x++) {
-        _fmpz_vec_set(img + x * N, Q->images + x * n, n);
-        if (imgtail[x] >= 0)
-            fmpz_one(img + x * N + n + imgtail[x]);
+        _fmpz_vec_set(S->img + x * N, Q->images + x * n, n);
+        if (S->imgtail[x] >= 0)
+            fmpz_one(S->img + x * N + n + S->imgtail[x]);
     }
-    W->P = E;
-    if (pcp_complete(E, W)) {
-        st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld", (long)(c + 1));
-        goto out_ext;
-    }
+    W->P = S->E;
+    if (pcp_complete(S->E, W))
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld", (long)(c + 1));
+    return NS_OK;
+}
 
-    /* Consistency and relators give the relation lattice on the tails. */
-    elim_t L;
-    elim_init(L, T);
-    if (progress_stage(prog, c + 1, "consistency", 0.3)) {
-        st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
-        goto out_elim;
-    }
-    cons_ctx cc = {n, T, L, _fmpz_vec_init(FLINT_MAX(T, 1)), 0};
-    int rc = pcp_consistency_run(E, W, cons_row, &cc);
-    if (rc < 0) {
-        st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld", (long)(c + 1));
-        goto out_cons;
-    }
-    if (cc.bad) {
-        st = nserr_set(err, NS_ERR_INPUT, 0, 0,
-                       "internal error: the class-%ld presentation is not consistent", (long)c);
-        goto out_cons;
-    }
-    if (progress_stage(prog, c + 1, "relators", 0.7)) {
-        st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
-        goto out_cons;
-    }
+/* Phase 3: every consistency test and every relator gives a linear
+ * relation between the tails; they go into the lattice L. */
+static ns_status step_tail_relations(step_struct *S, const nq_t Q, pcp_work_t W,
+                                     const ns_progress_t *prog, nserr_t err)
+{
+    slong n = S->n, T = S->T, c = S->c, N = S->N;
+    elim_clear(S->L);
+    elim_init(S->L, T);
+    if (progress_stage(prog, c + 1, "consistency", 0.3))
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+    cons_ctx cc = {n, T, S->L, _fmpz_vec_init(FLINT_MAX(T, 1)), 0};
+    int rc = pcp_consistency_run(S->E, W, cons_row, &cc);
+    _fmpz_vec_clear(cc.row, FLINT_MAX(T, 1));
+    if (rc < 0)
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld", (long)(c + 1));
+    if (cc.bad)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0,
+                         "internal error: the class-%ld presentation is not consistent", (long)c);
+    if (progress_stage(prog, c + 1, "relators", 0.7))
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+    ns_status st = NS_OK;
     fmpz *val = _fmpz_vec_init(N);
     for (slong r = 0; r < Q->pres->nrels; r++) {
-        if (pcp_eval_expr(W, val, Q->pres->rels[r].root, img)) {
+        if (pcp_eval_expr(W, val, Q->pres->rels[r].root, S->img)) {
             st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld", (long)(c + 1));
             break;
         }
@@ -340,112 +371,125 @@ static ns_status step(nq_t Q, slong c, pcp_work_t W, const ns_progress_t *prog, 
             break;
         }
         if (!_fmpz_vec_is_zero(val + n, T))
-            elim_add_dense(L, val + n);
+            elim_add_dense(S->L, val + n);
     }
     _fmpz_vec_clear(val, N);
-    if (st != NS_OK)
-        goto out_cons;
-    if (progress_stage(prog, c + 1, "elimination", 0.9)) {
-        st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
-        goto out_cons;
+    return st;
+}
+
+/* Phase 4: the quotient of the tails by L; only commutator tails may
+ * survive (they generate the new layer). */
+static ns_status step_quotient(step_struct *S, const ns_progress_t *prog, nserr_t err)
+{
+    if (progress_stage(prog, S->c + 1, "elimination", 0.9))
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+    elim_get_quotient(S->q, S->L);
+    for (slong s = 0; s < S->q->nsurv; s++)
+        if (S->q->surv[s] < S->last)
+            return nserr_set(err, NS_ERR_INPUT, 0, 0,
+                             "internal error: a non-commutator tail survived in class %ld",
+                             (long)(S->c + 1));
+    return NS_OK;
+}
+
+/* Phase 5: the class-(c+1) presentation, the old one with the tails
+ * replaced by their values in the survivors, replaces Q's. */
+static ns_status step_extend(step_struct *S, nq_t Q, pcp_work_t W, nserr_t err)
+{
+    const pcp_struct *P = Q->pcp;
+    const elim_quotient_struct *q = S->q;
+    slong n = S->n, X = S->X, c = S->c, ns = q->nsurv, M = n + ns;
+    slong *wt2 = flint_malloc(M * sizeof(slong));
+    for (slong g = 0; g < M; g++)
+        wt2[g] = g < n ? P->weight[g] : c + 1;
+    pcp_t R;
+    pcp_init(R);
+    pcp_reset(R, M, wt2, c + 1);
+    flint_free(wt2);
+    fmpz *v = _fmpz_vec_init(ns);
+    pcw_t w;
+    pcw_init(w);
+    set_survivor_powers(R, q, n);
+    for (slong i = 0; i < n; i++) {
+        if (fmpz_is_zero(P->relorder + i))
+            continue;
+        pcw_set(w, P->pow + i);
+        tail_value(v, q, S->powtail[i]);
+        push_central(w, v, ns, n);
+        pcp_set_power(R, i, P->relorder + i, w);
     }
-
-    elim_quotient_t q;
-    elim_quotient_init(q);
-    elim_get_quotient(q, L);
-    slong ns = q->nsurv;
-    for (slong s = 0; s < ns; s++)
-        if (q->surv[s] < last) {
-            st = nserr_set(err, NS_ERR_INPUT, 0, 0,
-                           "internal error: a non-commutator tail survived in class %ld",
-                           (long)(c + 1));
-            goto out_q;
-        }
-    *grew = ns;
-    if (ns == 0)
-        goto out_q;
-
-    /* The class-(c+1) presentation: the old one with the tails replaced by
-     * their values in the survivors. */
-    {
-        slong M = n + ns;
-        slong *wt2 = flint_malloc(M * sizeof(slong));
-        for (slong g = 0; g < M; g++)
-            wt2[g] = g < n ? P->weight[g] : c + 1;
-        pcp_t R;
-        pcp_init(R);
-        pcp_reset(R, M, wt2, c + 1);
-        fmpz *v = _fmpz_vec_init(ns);
-        set_survivor_powers(R, q, n);
-        for (slong i = 0; i < n; i++) {
-            if (fmpz_is_zero(P->relorder + i))
+    for (slong k = 0; k < n; k++)
+        for (slong i = 0; i < k; i++) {
+            slong s = pcp_slot(k, i);
+            if (P->weight[i] + P->weight[k] > c + 1)
                 continue;
-            pcw_set(w, P->pow + i);
-            tail_value(v, q, powtail[i]);
-            push_central(w, v, ns, n);
-            pcp_set_power(R, i, P->relorder + i, w);
-        }
-        for (slong k = 0; k < n; k++)
-            for (slong i = 0; i < k; i++) {
-                slong s = pcp_slot(k, i);
-                if (P->weight[i] + P->weight[k] > c + 1)
-                    continue;
-                old_conj_word(w, P, k, i);
-                if (tailof[s] >= 0) {
-                    tail_value(v, q, tailof[s]);
-                    push_central(w, v, ns, n);
-                }
-                pcp_set_conj(R, k, i, w);
+            old_conj_word(w, P, k, i);
+            if (S->tailof[s] >= 0) {
+                tail_value(v, q, S->tailof[s]);
+                push_central(w, v, ns, n);
             }
-        memcpy(R->def, P->def, n * sizeof(pcp_def_struct));
-        for (slong s = 0; s < ns; s++) {
-            const tail_struct *t = tails + q->surv[s];
-            R->def[n + s].kind = PCP_DEF_COMM;
-            R->def[n + s].a = t->a;
-            R->def[n + s].b = t->b;
+            pcp_set_conj(R, k, i, w);
         }
-        fmpz *img2 = _fmpz_vec_init(FLINT_MAX(X * M, 1));
-        for (slong x = 0; x < X; x++) {
-            _fmpz_vec_set(img2 + x * M, Q->images + x * n, n);
-            if (imgtail[x] >= 0) {
-                tail_value(v, q, imgtail[x]);
-                _fmpz_vec_set(img2 + x * M + n, v, ns);
-            }
-        }
-        W->P = R;
-        if (pcp_complete(R, W)) {
-            st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld", (long)(c + 1));
-            _fmpz_vec_clear(img2, FLINT_MAX(X * M, 1));
-            pcp_clear(R);
-        } else {
-            _fmpz_vec_clear(Q->images, FLINT_MAX(X * n, 1));
-            Q->images = img2;
-            pcp_swap(Q->pcp, R);
-            pcp_clear(R);
-        }
-        _fmpz_vec_clear(v, ns);
-        flint_free(wt2);
-    }
-out_q:
-    elim_quotient_clear(q);
-out_cons:
-    _fmpz_vec_clear(cc.row, FLINT_MAX(T, 1));
-out_elim:
-    elim_clear(L);
-out_ext:
-    _fmpz_vec_clear(img, FLINT_MAX(X * N, 1));
-    fmpz_clear(one);
     pcw_clear(w);
-    pcp_clear(E);
-    flint_free(wt);
-out_tails:
+    memcpy(R->def, P->def, n * sizeof(pcp_def_struct));
+    for (slong s = 0; s < ns; s++) {
+        const tail_struct *t = S->tails + q->surv[s];
+        R->def[n + s].kind = PCP_DEF_COMM;
+        R->def[n + s].a = t->a;
+        R->def[n + s].b = t->b;
+    }
+    fmpz *img2 = _fmpz_vec_init(FLINT_MAX(X * M, 1));
+    for (slong x = 0; x < X; x++) {
+        _fmpz_vec_set(img2 + x * M, Q->images + x * n, n);
+        if (S->imgtail[x] >= 0) {
+            tail_value(v, q, S->imgtail[x]);
+            _fmpz_vec_set(img2 + x * M + n, v, ns);
+        }
+    }
+    _fmpz_vec_clear(v, ns);
+    W->P = R;
+    ns_status st = NS_OK;
+    if (pcp_complete(R, W)) {
+        st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld", (long)(c + 1));
+        _fmpz_vec_clear(img2, FLINT_MAX(X * M, 1));
+    } else {
+        _fmpz_vec_clear(Q->images, FLINT_MAX(X * n, 1));
+        Q->images = img2;
+        pcp_swap(Q->pcp, R);
+    }
+    pcp_clear(R);
+    return st;
+}
+
+/* One step c -> c+1 (see nq.h for the method).  *grew is set to the number
+ * of new generators; 0 means the series has stabilised. */
+static ns_status step(nq_t Q, slong c, pcp_work_t W, const ns_progress_t *prog, slong *grew,
+                      nserr_t err)
+{
+    slong n = Q->pcp->n;
+    *grew = 0;
+    if (n > NQ_MAX_PCGENS)
+        return nserr_set(err, NS_ERR_LIMIT, 0, 0,
+                         "class %ld would extend a presentation on %ld pc generators "
+                         "(limit %d)",
+                         (long)(c + 1), (long)n, NQ_MAX_PCGENS);
+    if (progress_stage(prog, c + 1, "tails", 0.0))
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+    step_struct S;
+    step_init(&S, Q, c);
+    ns_status st = step_plan_tails(&S, Q, err);
+    if (st == NS_OK)
+        st = step_tailed_presentation(&S, Q, W, err);
+    if (st == NS_OK)
+        st = step_tail_relations(&S, Q, W, prog, err);
+    if (st == NS_OK)
+        st = step_quotient(&S, prog, err);
+    if (st == NS_OK && S.q->nsurv > 0) {
+        *grew = S.q->nsurv;
+        st = step_extend(&S, Q, W, err);
+    }
     W->P = Q->pcp;
-    flint_free(tails);
-    flint_free(tailof);
-    flint_free(powtail);
-    flint_free(imgtail);
-    flint_free(isdef);
-    flint_free(imgdef);
+    step_clear(&S);
     return st;
 }
 
@@ -543,14 +587,14 @@ ns_status nq_compute(nq_t Q, const pres_t G, slong c, const ns_progress_t *progr
     pcp_work_init(W, Q->pcp);
     W->progress = progress;
     ns_status st = NS_OK;
-    if (progress_stage(progress, 1, "abelianisation", 0.0)) {
+    if (progress_stage(progress, 1, "abelianisation", 0.0))
         st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
-        goto done;
+    else {
+        class_one(Q, W, err);
+        Q->class_reached = Q->pcp->n ? 1 : 0;
+        Q->stabilised = Q->pcp->n == 0;
     }
-    class_one(Q, W, err);
-    Q->class_reached = Q->pcp->n ? 1 : 0;
-    Q->stabilised = Q->pcp->n == 0;
-    for (slong k = 1; k < c && !Q->stabilised; k++) {
+    for (slong k = 1; st == NS_OK && k < c && !Q->stabilised; k++) {
         slong grew;
         st = step(Q, k, W, progress, &grew, err);
         if (st != NS_OK)
@@ -560,7 +604,6 @@ ns_status nq_compute(nq_t Q, const pres_t G, slong c, const ns_progress_t *progr
         else
             Q->class_reached = k + 1;
     }
-done:
     pcp_work_clear(W);
     if (st != NS_OK) {
         nq_clear(Q);
