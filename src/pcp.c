@@ -205,6 +205,7 @@ void pcp_set_power(pcp_t P, slong i, const fmpz_t m, const pcw_t w)
 void pcp_work_init(pcp_work_t W, const pcp_t P)
 {
     W->P = P;
+    W->plain = 0;
     W->steps = 0;
     W->limit = 0;
     W->overflow = 0;
@@ -254,6 +255,16 @@ static void collect_word_pow(pcp_work_t W, fmpz *u, const pcw_t w, const pcw_t w
         pcp_collect_word(W, u, winv);
         return;
     }
+    if (w->len == 1 && fmpz_is_zero(W->P->relorder + w->gen[0])) {
+        /* (a_g^x)^q = a_g^(x q), and for infinite a_g nothing carries, so
+         * this is exactly what collecting the power's normal word does */
+        fmpz_t xq;
+        fmpz_init(xq);
+        fmpz_mul(xq, w->exp, q);
+        pcp_collect_gen(W, u, w->gen[0], xq);
+        fmpz_clear(xq);
+        return;
+    }
     slong n = W->P->n;
     fmpz *x = _fmpz_vec_init(n);
     pcw_t t;
@@ -288,31 +299,82 @@ static void add_power(pcp_work_t W, fmpz *u, slong i, const fmpz_t e)
 }
 
 /* For a presentation without finite relative orders, e -> x^e and
- * e -> y^(a_i^e) have coordinates that are integer-valued polynomials of
- * degree at most maxweight in e (P. Hall, "Nilpotent groups", 1957; the
- * polynomial route of ALGORITHMS.md §3).  Given the values at
- * e = 0..D in samples (D+1 vectors of length n), out := the value at e, by
- * Newton's forward differences: f(e) = sum_d (Delta^d f)(0) binom(e, d),
- * binom(e, d) = e (e-1) ... (e-d+1) / d! for any integer e. */
-static void newton_eval(fmpz *out, fmpz *samples, slong D, slong n, const fmpz_t e)
+ * e -> y^(a_i^e) have coordinates that are integer-valued polynomials in e
+ * (P. Hall, "Nilpotent groups", 1957).  Their degrees are small:
+ *
+ *   (x^e)_k        has degree <= floor(w_k / m)               (m = lowest
+ *                  weight present in x),
+ *   (y^(a_i^e))_k  has degree <= floor((w_k - m) / w_i)        (m = lowest
+ *                  weight present in y),
+ *
+ * w_k the weight of a_k, zero below the first nonzero entry.  Proof: the
+ * weights are a filtration with [a_k, a_i] of weight >= w_k + w_i, so the
+ * weight-w coordinate of a product u v is u_w + v_w + a polynomial in the
+ * coordinates of lower weight in which every monomial has weighted degree
+ * <= w and contains a coordinate of u and one of v (C. R. Leedham-Green and
+ * L. H. Soicher, "Symbolic collection using Deep Thought", LMS J. Comput.
+ * Math. 1, 1998).  With f(e) = x^e, f(e+1) = f(e) x: the difference
+ * f_w(e+1) - f_w(e) is x_w plus monomials whose f-part has weighted degree
+ * <= w - m, of degree <= (w - m)/m in e by induction on w; so deg f_w <=
+ * w/m.  With f(e) = y^(a_i^e), f(e+1) = f(e)^(a_i): every monomial of the
+ * difference contains a_i (weight w_i) and at least one coordinate of f
+ * (conjugating 1 gives 1); its f-part has weighted degree <= w - w_i and,
+ * by induction, e-degree <= sum (w_kj - m)/w_i <= (w - w_i - m)/w_i.
+ * Polynomials that agree for e >= 0 and satisfy the same recursion agree on
+ * all of Z.  test_pcp checks the route against plain collection.
+ *
+ * So Newton's forward differences of order d vanish at every coordinate
+ * whose bound is below d: from[d] is the first index (relative to the
+ * first possibly nonzero one) that can still be nonzero at order d, and the
+ * work shrinks with the order.  Given the values at e = 0..D in samples
+ * (D+1 rows of len entries), out := the value at e:
+ * f(e) = sum_d (Delta^d f)(0) binom(e, d), binom(e, d) = e (e-1) ...
+ * (e-d+1) / d! for any integer e.  out has len entries. */
+static void newton_eval(fmpz *out, fmpz *samples, slong D, slong len, const slong *from,
+                        const fmpz_t e)
 {
-    for (slong d = 1; d <= D; d++)
+    for (slong d = 1; d <= D; d++) {
+        slong f = from[d];
         for (slong t = D; t >= d; t--)
-            _fmpz_vec_sub(samples + t * n, samples + t * n, samples + (t - 1) * n, n);
-    fmpz_t b, f;
+            _fmpz_vec_sub(samples + t * len + f, samples + t * len + f,
+                          samples + (t - 1) * len + f, len - f);
+    }
+    fmpz_t b, g;
     fmpz_init_set_ui(b, 1);
-    fmpz_init(f);
-    _fmpz_vec_zero(out, n);
-    for (slong d = 0; d <= D; d++) {
-        if (d > 0) {
-            fmpz_sub_ui(f, e, (ulong)(d - 1));
-            fmpz_mul(b, b, f);
-            fmpz_divexact_ui(b, b, (ulong)d);
-        }
-        _fmpz_vec_scalar_addmul_fmpz(out, samples + d * n, n, b);
+    fmpz_init(g);
+    _fmpz_vec_set(out, samples, len);
+    for (slong d = 1; d <= D; d++) {
+        fmpz_sub_ui(g, e, (ulong)(d - 1));
+        fmpz_mul(b, b, g);
+        fmpz_divexact_ui(b, b, (ulong)d);
+        slong f = from[d];
+        _fmpz_vec_scalar_addmul_fmpz(out + f, samples + d * len + f, len - f, b);
     }
     fmpz_clear(b);
-    fmpz_clear(f);
+    fmpz_clear(g);
+}
+
+/* The first index >= lo whose weight is at least w (n if none). */
+static slong first_of_weight(const pcp_struct *P, slong lo, slong w)
+{
+    slong hi = P->n;
+    while (lo < hi) {
+        slong mid = lo + (hi - lo) / 2;
+        if (P->weight[mid] >= w)
+            hi = mid;
+        else
+            lo = mid + 1;
+    }
+    return lo;
+}
+
+/* The first nonzero entry of u (length n), or n. */
+static slong first_nonzero(const fmpz *u, slong n)
+{
+    slong f = 0;
+    while (f < n && fmpz_is_zero(u + f))
+        f++;
+    return f;
 }
 
 /* Exponents up to this size are handled by plain collection; larger ones
@@ -327,14 +389,29 @@ static void conj_once(pcp_work_t W, fmpz *out, const fmpz *y, slong i);
 static void conj_by_power(pcp_work_t W, fmpz *out, const fmpz *y, slong i, const fmpz_t e)
 {
     const pcp_struct *P = W->P;
-    if (P->torsion_free && fmpz_bits(e) > PCP_SMALL_BITS) {
-        slong n = P->n, D = P->maxweight;
-        fmpz *smp = _fmpz_vec_init((D + 1) * n);
-        _fmpz_vec_set(smp, y, n);
-        for (slong t = 1; t <= D; t++)
-            conj_once(W, smp + t * n, smp + (t - 1) * n, i);
-        newton_eval(out, smp, D, n, e);
-        _fmpz_vec_clear(smp, (D + 1) * n);
+    if (P->torsion_free && !W->plain && fmpz_bits(e) > PCP_SMALL_BITS) {
+        slong n = P->n, f = first_nonzero(y, n);
+        if (f == n) {
+            _fmpz_vec_zero(out, n);
+            return;
+        }
+        slong m = P->weight[f], wi = P->weight[i], D = (P->maxweight - m) / wi, len = n - f;
+        slong *from = flint_malloc((D + 1) * sizeof(slong));
+        for (slong d = 0; d <= D; d++)
+            from[d] = first_of_weight(P, f, m + d * wi) - f;
+        fmpz *smp = _fmpz_vec_init((D + 1) * len);
+        fmpz *cur = _fmpz_vec_init(n);
+        _fmpz_vec_set(cur, y, n);
+        _fmpz_vec_set(smp, cur + f, len);
+        for (slong t = 1; t <= D; t++) {
+            conj_once(W, cur, cur, i);
+            _fmpz_vec_set(smp + t * len, cur + f, len);
+        }
+        _fmpz_vec_zero(out, f);
+        newton_eval(out + f, smp, D, len, from, e);
+        _fmpz_vec_clear(cur, n);
+        _fmpz_vec_clear(smp, (D + 1) * len);
+        flint_free(from);
         return;
     }
     slong n = P->n, cf = P->commute_from[i];
@@ -523,14 +600,26 @@ void pcp_elt_pow(pcp_work_t W, fmpz *out, const fmpz *u, const fmpz_t e)
     if (nz == 1) {
         fmpz_mul(E, u + g, e);
         pcp_collect_gen(W, res, g, E);
-    } else if (W->P->torsion_free && fmpz_bits(e) > PCP_SMALL_BITS) {
-        slong D = W->P->maxweight;
-        fmpz *smp = _fmpz_vec_init((D + 1) * n);
-        for (slong t = 1; t <= D; t++)
-            pcp_elt_mul(W, smp + t * n, smp + (t - 1) * n, u);
-        newton_eval(res, smp, D, n, e);
-        _fmpz_vec_clear(smp, (D + 1) * n);
-    } else {
+    } else if (nz > 1 && W->P->torsion_free && !W->plain && fmpz_bits(e) > PCP_SMALL_BITS) {
+        const pcp_struct *P = W->P;
+        slong f = first_nonzero(u, n), m = P->weight[f], D = P->maxweight / m, len = n - f;
+        slong *from = flint_malloc((D + 1) * sizeof(slong));
+        for (slong d = 0; d <= D; d++)
+            from[d] = first_of_weight(P, f, d * m) - f;
+        fmpz *smp = _fmpz_vec_init((D + 1) * len);
+        fmpz *cur = base; /* x^t, starting from x^0 = 1 */
+        pcw_t uw;
+        pcw_init(uw);
+        pcw_set_vec(uw, u, n);
+        for (slong t = 1; t <= D; t++) {
+            pcp_collect_word(W, cur, uw);
+            _fmpz_vec_set(smp + t * len, cur + f, len);
+        }
+        newton_eval(res + f, smp, D, len, from, e);
+        pcw_clear(uw);
+        flint_free(from);
+        _fmpz_vec_clear(smp, (D + 1) * len);
+    } else if (nz > 1) {
         /* square and multiply; only this branch needs u^-1 for e < 0 */
         if (fmpz_sgn(e) < 0)
             pcp_elt_inv(W, base, u);

@@ -19,7 +19,8 @@
  * conjugates the uncollected tail by a_i through the stored relations.
  * Large exponents: when no relative order is finite, x^e and conjugation
  * by a_i^e are evaluated as integer-valued polynomials in e (Hall), from
- * maxweight + 1 small values; otherwise conjugation by a_i^e uses the
+ * at most maxweight + 1 small values (fewer for elements of higher weight:
+ * the degree bound is proved in pcp.c); otherwise conjugation by a_i^e uses the
  * automorphisms x -> x^(a_i^(2^b)) built by repeated squaring. */
 #ifndef NILSTEP_PCP_H
 #define NILSTEP_PCP_H
@@ -105,6 +106,8 @@ typedef struct {
     ulong limit;          /* stop (overflow = 1) after this many; 0 = none */
     int overflow;         /* set when the limit or the hook stopped us */
     const ns_progress_t *progress; /* may be NULL; polled every 2^12 steps */
+    int plain;            /* 1: never the polynomial route (tests compare the
+                             two routes); 0 after pcp_work_init */
 } pcp_work_struct;
 typedef pcp_work_struct pcp_work_t[1];
 
