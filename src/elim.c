@@ -65,9 +65,43 @@ static void row_comb(elim_row_struct *dst, const fmpz_t a, const elim_row_struct
     dst->len = k;
 }
 
+/* Modular mode: every entry into [0, m); zeros dropped. */
+static void row_reduce_mod(elim_row_struct *r, const fmpz_t m)
+{
+    slong k = 0;
+    for (slong i = 0; i < r->len; i++) {
+        fmpz_mod(r->val + i, r->val + i, m);
+        if (fmpz_is_zero(r->val + i))
+            continue;
+        if (k != i) {
+            r->col[k] = r->col[i];
+            fmpz_swap(r->val + k, r->val + i);
+        }
+        k++;
+    }
+    for (slong t = k; t < r->len; t++)
+        fmpz_zero(r->val + t);
+    r->len = k;
+}
+
+static void row_set(elim_row_struct *dst, const elim_row_struct *src)
+{
+    row_fit(dst, src->len);
+    for (slong t = src->len; t < dst->len; t++)
+        fmpz_zero(dst->val + t);
+    for (slong t = 0; t < src->len; t++) {
+        dst->col[t] = src->col[t];
+        fmpz_set(dst->val + t, src->val + t);
+    }
+    dst->len = src->len;
+}
+
 void elim_init(elim_t E, slong ncols)
 {
     E->ncols = ncols;
+    fmpz_init(E->mod);
+    E->npend = E->apend = 0;
+    E->pend = NULL;
     E->piv = flint_malloc(FLINT_MAX(ncols, 1) * sizeof(elim_row_struct));
     for (slong c = 0; c < ncols; c++)
         row_init(E->piv + c);
@@ -81,42 +115,87 @@ void elim_clear(elim_t E)
         row_clear(E->piv + c);
     for (int k = 0; k < 3; k++)
         row_clear(E->tmp + k);
+    for (slong k = 0; k < E->apend; k++)
+        row_clear(E->pend + k);
+    flint_free(E->pend);
+    fmpz_clear(E->mod);
     flint_free(E->piv);
+}
+
+void elim_set_modulus(elim_t E, const fmpz_t m)
+{
+    fmpz_abs(E->mod, m);
+}
+
+/* Queues a copy of r for insertion (modular mode). */
+static void push_pending(elim_t E, const elim_row_struct *r)
+{
+    if (E->npend == E->apend) {
+        slong na = FLINT_MAX(4, 2 * E->apend);
+        E->pend = flint_realloc(E->pend, na * sizeof(elim_row_struct));
+        for (slong k = E->apend; k < na; k++)
+            row_init(E->pend + k);
+        E->apend = na;
+    }
+    row_set(E->pend + E->npend, r);
+    E->npend++;
 }
 
 const fmpz *elim_pivot(const elim_t E, slong c)
 {
     static const fmpz zero = 0; /* an fmpz 0 is a plain small integer */
-    return E->piv[c].len ? E->piv[c].val : &zero;
+    return E->piv[c].len ? E->piv[c].val : fmpz_is_zero(E->mod) ? &zero : E->mod;
 }
 
-void elim_add_dense(elim_t E, const fmpz *row)
+/* Reduces E->tmp[0] against the pivot rows and stores what is left as a
+ * new pivot row.  Modular mode (m = E->mod > 0, m Z^ncols inside the
+ * lattice): entries stay in [0, m), as in the Hermite normal form modulo
+ * the determinant (P. D. Domich, R. Kannan and L. E. Trotter, "Hermite
+ * normal form computation using modulo determinant arithmetic", Math.
+ * Oper. Res. 12, 1987; J. L. Hafner and K. S. McCurley, "Asymptotically
+ * fast triangularization of matrices over rings", SIAM J. Comput. 20,
+ * 1991).  Reducing an entry modulo m subtracts a multiple of some m e_c, so
+ * the stored rows must span every m e_c as well: when a row r with leading
+ * entry d becomes the pivot row of column p, the row (m/g) r, g = gcd(d, m),
+ * is queued (its entry at p vanishes modulo m), and r itself is replaced by
+ * x r with x d = g modulo m.  Then r = (d/g) (x r) + y (m/g) r and
+ * m e_p = (m/g) (x r) - x (m/g) r modulo the later m e_c.
+ * Columns that never get a pivot row have pivot m (elim_pivot). */
+static void insert_row(elim_t E)
 {
     elim_row_struct *r = E->tmp, *s = E->tmp + 1, *t = E->tmp + 2;
-    slong k = 0;
-    for (slong c = 0; c < E->ncols; c++)
-        if (!fmpz_is_zero(row + c))
-            k++;
-    row_fit(r, k);
-    for (slong c = 0; c < r->len; c++)
-        fmpz_zero(r->val + c);
-    r->len = 0;
-    for (slong c = 0; c < E->ncols; c++)
-        if (!fmpz_is_zero(row + c)) {
-            r->col[r->len] = c;
-            fmpz_set(r->val + r->len, row + c);
-            r->len++;
-        }
+    int modular = !fmpz_is_zero(E->mod);
     fmpz_t g, a, b, x, y;
     fmpz_init(g);
     fmpz_init(a);
     fmpz_init(b);
     fmpz_init(x);
     fmpz_init(y);
+    if (modular)
+        row_reduce_mod(r, E->mod);
     while (r->len) {
         slong p = r->col[0];
         elim_row_struct *P = E->piv + p;
         if (P->len == 0) {
+            if (modular) {
+                /* queue (m/g) r: with it the rows still span r and m e_p */
+                fmpz_xgcd(g, x, y, r->val, E->mod);
+                fmpz_divexact(a, E->mod, g);
+                row_set(s, r);
+                for (slong c = 0; c < s->len; c++)
+                    fmpz_mul(s->val + c, s->val + c, a);
+                row_reduce_mod(s, E->mod);
+                if (s->len)
+                    push_pending(E, s);
+                if (!fmpz_equal(g, r->val)) {
+                    /* x r has leading entry x d = g (mod m), and g < m */
+                    for (slong c = 0; c < r->len; c++)
+                        fmpz_mul(r->val + c, r->val + c, x);
+                    row_reduce_mod(r, E->mod);
+                }
+                row_swap(P, r);
+                break;
+            }
             if (fmpz_sgn(r->val) < 0)
                 for (slong c = 0; c < r->len; c++)
                     fmpz_neg(r->val + c, r->val + c);
@@ -130,6 +209,8 @@ void elim_add_dense(elim_t E, const fmpz *row)
             fmpz_one(a);
             row_comb(s, a, r, b, P);
             row_swap(r, s);
+            if (modular)
+                row_reduce_mod(r, E->mod);
         } else {
             /* g = x P_p + y r_p; new pivot row x P + y r, and
              * (P_p/g) r - (r_p/g) P has a zero at p. */
@@ -144,6 +225,12 @@ void elim_add_dense(elim_t E, const fmpz *row)
                 for (slong c = 0; c < P->len; c++)
                     fmpz_neg(P->val + c, P->val + c);
             row_swap(r, s);
+            if (modular) {
+                /* the new pivot is a proper divisor of the old one, which
+                 * divides m, so it survives the reduction */
+                row_reduce_mod(P, E->mod);
+                row_reduce_mod(r, E->mod);
+            }
         }
     }
     fmpz_clear(g);
@@ -151,6 +238,31 @@ void elim_add_dense(elim_t E, const fmpz *row)
     fmpz_clear(b);
     fmpz_clear(x);
     fmpz_clear(y);
+}
+
+void elim_add_dense(elim_t E, const fmpz *row)
+{
+    elim_row_struct *r = E->tmp;
+    slong k = 0;
+    for (slong c = 0; c < E->ncols; c++)
+        if (!fmpz_is_zero(row + c))
+            k++;
+    row_fit(r, k);
+    for (slong c = 0; c < r->len; c++)
+        fmpz_zero(r->val + c);
+    r->len = 0;
+    for (slong c = 0; c < E->ncols; c++)
+        if (!fmpz_is_zero(row + c)) {
+            r->col[r->len] = c;
+            fmpz_set(r->val + r->len, row + c);
+            r->len++;
+        }
+    insert_row(E);
+    while (E->npend) {
+        E->npend--;
+        row_swap(E->tmp, E->pend + E->npend);
+        insert_row(E);
+    }
 }
 
 void elim_quotient_init(elim_quotient_t Q)
@@ -202,9 +314,17 @@ void elim_get_quotient(elim_quotient_t Q, const elim_t E)
     }
     for (slong c = 0; c < n; c++) {
         const elim_row_struct *P = E->piv + c;
-        if (sidx[c] < 0 || P->len == 0)
+        if (sidx[c] < 0)
             continue;
         slong s = sidx[c];
+        if (P->len == 0) {
+            /* modular mode: m e_c is in the lattice */
+            if (!fmpz_is_zero(E->mod)) {
+                fmpz_set(Q->order + s, E->mod);
+                fmpz_set(Q->rel + s * ns + s, E->mod);
+            }
+            continue;
+        }
         fmpz_set(Q->order + s, P->val);
         fmpz *row = Q->rel + s * ns;
         for (slong k = 0; k < P->len; k++)

@@ -28,16 +28,28 @@ typedef struct {
     slong ncols;
     elim_row_struct *piv; /* ncols rows; piv[c].len == 0: no pivot at c */
     elim_row_struct tmp[3];
+    fmpz_t mod;           /* 0, or m with m Z^ncols inside the lattice */
+    slong npend, apend;   /* rows queued for insertion (modular mode) */
+    elim_row_struct *pend;
 } elim_struct;
 typedef elim_struct elim_t[1];
 
 void elim_init(elim_t E, slong ncols);
 void elim_clear(elim_t E);
 
+/* Declares that m Z^ncols lies in the lattice (m > 0), before any row is
+ * added: from then on every entry is kept in [0, m) (the Hermite form
+ * modulo a multiple of the determinant; see elim.c), so no entry grows
+ * beyond m, and a column that gets no row has pivot m.  The caller must
+ * know this: the nilpotent quotient algorithm does when the abelianisation
+ * is finite of exponent m. */
+void elim_set_modulus(elim_t E, const fmpz_t m);
+
 /* Adds the row (dense, ncols entries) to the lattice. */
 void elim_add_dense(elim_t E, const fmpz *row);
 
-/* The pivot at column c (0 when there is none); positive. */
+/* The pivot at column c (0 when there is none, m in modular mode);
+ * positive. */
 const fmpz *elim_pivot(const elim_t E, slong c);
 
 /* The quotient Z^ncols / L.  Survivors are the columns whose pivot is not 1,

@@ -165,6 +165,41 @@ static ns_status class_one(nq_t Q, pcp_work_t W, nserr_t err)
     return NS_OK;
 }
 
+/* m := the exponent of G^ab = layer 1 when it is finite (the largest
+ * invariant factor of its power-relation block), else 0.  Every layer is
+ * then finite of exponent dividing m: gamma_(c+1)/gamma_(c+2) is spanned by
+ * the [x, y] with x in gamma_c, and [x, y]^m = [x, y^m] modulo gamma_(c+2)
+ * with y^m in gamma_2. */
+static void abelian_exponent(fmpz_t m, const pcp_struct *P)
+{
+    slong f = 0;
+    while (f < P->n && P->weight[f] == 1)
+        f++;
+    fmpz_zero(m);
+    for (slong k = 0; k < f; k++)
+        if (fmpz_is_zero(P->relorder + k))
+            return;
+    if (f == 0)
+        return;
+    fmpz_mat_t A, S;
+    fmpz_mat_init(A, f, f);
+    fmpz_mat_init(S, f, f);
+    for (slong k = 0; k < f; k++) {
+        fmpz_set(fmpz_mat_entry(A, k, k), P->relorder + k);
+        const pcw_struct *w = P->pow + k;
+        for (slong t = 0; t < w->len; t++)
+            if (w->gen[t] < f)
+                fmpz_sub(fmpz_mat_entry(A, k, w->gen[t]), fmpz_mat_entry(A, k, w->gen[t]),
+                         w->exp + t);
+    }
+    fmpz_mat_snf(S, A);
+    for (slong k = 0; k < f; k++)
+        if (fmpz_cmpabs(fmpz_mat_entry(S, k, k), m) > 0)
+            fmpz_abs(m, fmpz_mat_entry(S, k, k));
+    fmpz_mat_clear(A);
+    fmpz_mat_clear(S);
+}
+
 typedef struct {
     slong n, T;
     elim_struct *E;
@@ -345,6 +380,14 @@ static ns_status step_tail_relations(step_struct *S, const nq_t Q, pcp_work_t W,
     slong n = S->n, T = S->T, c = S->c, N = S->N;
     elim_clear(S->L);
     elim_init(S->L, T);
+    {
+        fmpz_t m;
+        fmpz_init(m);
+        abelian_exponent(m, Q->pcp);
+        if (!fmpz_is_zero(m))
+            elim_set_modulus(S->L, m);
+        fmpz_clear(m);
+    }
     if (progress_stage(prog, c + 1, "consistency", 0.3))
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     cons_ctx cc = {n, T, S->L, _fmpz_vec_init(FLINT_MAX(T, 1)), 0};

@@ -377,6 +377,82 @@ static void expressions_kill_exactly_the_lattice(void **state)
     assert_true(members > 0 && others > 0);
 }
 
+/* Modular mode (elim_set_modulus, the Hermite form modulo a multiple of
+ * the determinant of Domich, Kannan and Trotter 1987): the rows of A with
+ * modulus M give the lattice of [A; M I], checked against FLINT's HNF and
+ * SNF of that matrix; every stored entry stays in [0, M) except pivots,
+ * which divide M. */
+static void modular_mode_is_the_lattice_plus_m_zn(void **state)
+{
+    (void)state;
+    static const slong mods[] = {2, 3, 4, 6, 8, 12, 16, 30, 64, 97};
+    slong members = 0, others = 0;
+    for (slong it = 0; it < iters(300); it++) {
+        slong m = rng_range(1, 9), n = rng_range(1, 8);
+        slong M = mods[rng_next() % (sizeof mods / sizeof mods[0])];
+        fmpz_mat_t A, B, H;
+        fmpz_mat_init(A, m, n);
+        fmpz_mat_init(B, m + n, n);
+        fmpz_mat_init(H, m + n, n);
+        rnd_matrix(A);
+        for (slong i = 0; i < m; i++)
+            for (slong j = 0; j < n; j++)
+                fmpz_set(fmpz_mat_entry(B, i, j), fmpz_mat_entry(A, i, j));
+        for (slong j = 0; j < n; j++)
+            fmpz_set_si(fmpz_mat_entry(B, m + j, j), M);
+        fmpz_mat_hnf(H, B);
+        elim_t E;
+        elim_quotient_t Q;
+        fmpz_t mm;
+        fmpz_init_set_si(mm, M);
+        elim_init(E, n);
+        elim_set_modulus(E, mm);
+        elim_quotient_init(Q);
+        add_rows(E, A);
+        elim_get_quotient(Q, E);
+        check_quotient(B, E, Q);
+        for (slong c = 0; c < n; c++) {
+            const elim_row_struct *P = E->piv + c;
+            for (slong k = 0; k < P->len; k++)
+                assert_true(fmpz_sgn(P->val + k) > 0 && fmpz_cmp_si(P->val + k, M) < 0);
+            if (P->len)
+                assert_true(fmpz_divisible(mm, P->val));
+            /* pivots against the HNF of [A; M I], which has full rank */
+            if (!fmpz_equal(elim_pivot(E, c), fmpz_mat_entry(H, c, c))) {
+                print_matrix("matrix", A);
+                print_matrix("hnf of [A; M I]", H);
+                fail_msg("modulus %ld, column %ld: pivot differs from the HNF", (long)M, (long)c);
+            }
+        }
+        fmpz *v = _fmpz_vec_init(n);
+        for (int trial = 0; trial < 6; trial++) {
+            for (slong j = 0; j < n; j++)
+                fmpz_set_si(v + j, trial % 2 ? rng_range(-4, 4) : M * rng_range(-2, 2));
+            if (trial % 3 == 0)
+                for (slong i = 0; i < m; i++)
+                    for (slong j = 0; j < n; j++)
+                        fmpz_addmul_si(v + j, fmpz_mat_entry(A, i, j), rng_range(-3, 3));
+            int a = in_lattice_hnf(v, H), b = in_lattice_elim(v, Q);
+            if (a != b) {
+                print_matrix("matrix", A);
+                fail_msg("modulus %ld: membership: HNF says %d, elim says %d", (long)M, a, b);
+            }
+            if (a)
+                members++;
+            else
+                others++;
+        }
+        _fmpz_vec_clear(v, n);
+        fmpz_clear(mm);
+        elim_quotient_clear(Q);
+        elim_clear(E);
+        fmpz_mat_clear(A);
+        fmpz_mat_clear(B);
+        fmpz_mat_clear(H);
+    }
+    assert_true(members > 0 && others > 0);
+}
+
 /* The order in which rows arrive changes neither pivots nor invariants. */
 static void row_order_does_not_matter(void **state)
 {
@@ -505,6 +581,7 @@ int main(void)
         cmocka_unit_test(pivots_match_hnf),
         cmocka_unit_test(expressions_kill_exactly_the_lattice),
         cmocka_unit_test(row_order_does_not_matter),
+        cmocka_unit_test(modular_mode_is_the_lattice_plus_m_zn),
     };
     return cmocka_run_group_tests(tests, setup_seed, NULL);
 }
