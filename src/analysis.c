@@ -100,6 +100,23 @@ void analysis_clear_map(analysis_t A)
 static void clear_group(analysis_t A)
 {
     analysis_clear_map(A);
+    if (A->group_borrowed) {
+        /* only the map-stage members of the layers are A's own */
+        for (slong j = 0; j < A->nlayers; j++) {
+            analysis_layer_struct *L = A->layers + j;
+            fmpz_mat_clear(L->matrix);
+            fmpz_mat_clear(L->action);
+            fmpz_clear(L->det);
+            fmpz_clear(L->det_i_minus);
+            spectrum_clear(L->spectrum);
+        }
+        free(A->layers);
+        A->layers = NULL;
+        A->nlayers = 0;
+        A->has_group = A->group_borrowed = 0;
+        nq_init(A->nq); /* forget the borrowed struct; nothing to free */
+        return;
+    }
     for (slong j = 0; j < A->nlayers; j++) {
         analysis_layer_struct *L = A->layers + j;
         if (L->ntors)
@@ -208,6 +225,37 @@ ns_status analysis_set_group(analysis_t A, const pres_t G, slong c, const ns_pro
         L->group_str = group_string(L->free_rank, L->torsion, L->ntors);
     }
     return NS_OK;
+}
+
+void analysis_share_group(analysis_t A, const analysis_t src)
+{
+    clear_group(A);
+    nq_clear(A->nq);
+    *A->nq = *src->nq; /* a shallow copy: every pointer still leads to src's data */
+    A->has_group = 1;
+    A->group_borrowed = 1;
+    A->class_requested = src->class_requested;
+    A->nlayers = src->nlayers;
+    A->layers_torsion_free = src->layers_torsion_free;
+    A->layers = calloc((size_t)FLINT_MAX(A->nlayers, 1), sizeof(analysis_layer_struct));
+    for (slong j = 0; j < A->nlayers; j++) {
+        analysis_layer_struct *L = A->layers + j;
+        const analysis_layer_struct *S = src->layers + j;
+        L->weight = S->weight;
+        L->npc = S->npc;
+        L->free_rank = S->free_rank;
+        L->ntors = S->ntors;
+        L->torsion = S->torsion;
+        L->group_str = S->group_str;
+        L->basis = S->basis;
+        L->pc_labels = S->pc_labels;
+        *L->lcs = *S->lcs;
+        fmpz_mat_init(L->matrix, 0, 0);
+        fmpz_mat_init(L->action, 0, 0);
+        fmpz_init(L->det);
+        fmpz_init(L->det_i_minus);
+        spectrum_init(L->spectrum);
+    }
 }
 
 ns_status analysis_set_map_text(analysis_t A, const char *text, int line, int col,

@@ -68,6 +68,8 @@ typedef enum {
 typedef struct {
     /* group stage */
     int has_group;
+    int group_borrowed;          /* the group stage belongs to another analysis
+                                    (analysis_share_group): read, never freed */
     nq_t nq;                     /* the class-c quotient (owns a copy of the presentation) */
     slong class_requested;
     slong nlayers;               /* = class_requested (trivial layers included) */
@@ -130,6 +132,15 @@ void analysis_clear(analysis_t A);
  * any map.  On error (limit, cancel) A is left without a group. */
 ns_status analysis_set_group(analysis_t A, const pres_t G, slong c, const ns_progress_t *progress,
                              nserr_t err);
+
+/* Makes A use the group stage of src without copying or recomputing it:
+ * the quotient and the layers' groups and coordinates are borrowed
+ * read-only, while A keeps its own map stage.  So one quotient serves many
+ * analyses at once — one per thread (scan.h): analysis_set_map on A only
+ * reads the borrowed data.  src must have a group, and must neither change
+ * its group nor be cleared while A borrows it; analysis_clear (or another
+ * analysis_set_group) on A ends the borrowing. */
+void analysis_share_group(analysis_t A, const analysis_t src);
 
 /* Parses the map text (pres_parse_map coordinates: the text starts at line,
  * col) and analyses it.  A syntax error leaves the previous map in place and

@@ -77,6 +77,7 @@ expr_node *expr_node_new(expr_kind kind, int line, int col)
     expr_node *n = flint_malloc(sizeof(expr_node));
     n->kind = kind;
     n->gen = 0;
+    n->param = -1;
     fmpz_init(n->exp);
     n->nkids = 0;
     n->kids = NULL;
@@ -132,6 +133,7 @@ static expr_node *node_copy_shallow(const expr_node *src)
 {
     expr_node *d = expr_node_new(src->kind, src->line, src->col);
     d->gen = src->gen;
+    d->param = src->param;
     fmpz_set(d->exp, src->exp);
     d->nkids = src->nkids;
     if (src->nkids > 0) {
@@ -390,6 +392,7 @@ typedef struct {
     expr_scan_struct *s;
     const names_struct *g;
     nserr_struct *err;
+    const names_struct *params; /* integer parameters of a template, or NULL */
 } parser;
 
 static ns_status parse_word(expr_node **out, parser *p, int flags, int depth);
@@ -614,6 +617,49 @@ static ns_status parse_signed_int(fmpz_t exp, parser *p)
     return NS_OK;
 }
 
+/* The name of a template parameter at t, or -1. */
+static slong param_at(const parser *p, const expr_tok_struct *t)
+{
+    if (t->kind != EXPR_TOK_NAME || names_find(p->g, t->start, t->len) >= 0)
+        return -1;
+    return names_find(p->params, t->start, t->len);
+}
+
+/* After '^' in a template: p, -p, +p, (p), (-p), (+p) with p a parameter
+ * make *out a POW node with that parameter (and take base); anything else
+ * leaves *out NULL and the scanner where it was. */
+static ns_status parse_param_exponent(expr_node **out, expr_node *base, parser *p)
+{
+    expr_scan_struct c = *p->s;
+    int paren = 0, neg = 0;
+    slong i;
+
+    *out = NULL;
+    if (c.tok.kind == EXPR_TOK_LPAREN) {
+        paren = 1;
+        _expr_scan_next(&c);
+    }
+    if (c.tok.kind == EXPR_TOK_MINUS || c.tok.kind == EXPR_TOK_PLUS) {
+        neg = c.tok.kind == EXPR_TOK_MINUS;
+        _expr_scan_next(&c);
+    }
+    if ((i = param_at(p, &c.tok)) < 0)
+        return NS_OK;
+    _expr_scan_next(&c);
+    if (paren) {
+        if (c.tok.kind != EXPR_TOK_RPAREN)
+            return nserr_set(p->err, NS_ERR_SYNTAX, c.tok.line, c.tok.col,
+                             "expected ')' after the parameter '%s'", p->params->name[i]);
+        _expr_scan_next(&c);
+    }
+    *p->s = c;
+    *out = expr_node_new(EXPR_POW, base->line, base->col);
+    (*out)->param = i;
+    fmpz_set_si((*out)->exp, neg ? -1 : 1);
+    expr_node_add_kid(*out, base);
+    return NS_OK;
+}
+
 static ns_status parse_factor(expr_node **out, parser *p, int depth)
 {
     expr_node *base, *n;
@@ -628,7 +674,14 @@ static ns_status parse_factor(expr_node **out, parser *p, int depth)
     }
     _expr_scan_next(p->s);
     k = p->s->tok.kind;
-    if (k == EXPR_TOK_MINUS || k == EXPR_TOK_PLUS || k == EXPR_TOK_INT) {
+    if (p->params && (st = parse_param_exponent(&n, base, p)) != NS_OK) {
+        expr_node_free(base);
+        return st;
+    }
+    if (p->params && n != NULL) {
+        base = NULL;
+        st = NS_OK;
+    } else if (k == EXPR_TOK_MINUS || k == EXPR_TOK_PLUS || k == EXPR_TOK_INT) {
         n = expr_node_new(EXPR_POW, base->line, base->col);
         st = parse_signed_int(n->exp, p);
     } else if (exponent_is_parenthesised_int(p->s)) {
@@ -733,7 +786,14 @@ fail:
 ns_status _expr_parse_word(expr_node **out, expr_scan_t s, const names_t g, int flags,
                            nserr_t err)
 {
-    parser p = {s, g, err};
+    parser p = {s, g, err, NULL};
+    return parse_word(out, &p, flags, 0);
+}
+
+ns_status _expr_parse_word_params(expr_node **out, expr_scan_t s, const names_t g,
+                                  const names_struct *params, int flags, nserr_t err)
+{
+    parser p = {s, g, err, params};
     return parse_word(out, &p, flags, 0);
 }
 
@@ -741,7 +801,7 @@ ns_status expr_parse(expr_t out, const char *text, int line, int col, const name
                      nserr_t err)
 {
     expr_scan_t s;
-    parser p = {s, g, err};
+    parser p = {s, g, err, NULL};
     expr_node *root;
     ns_status st;
 

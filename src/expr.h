@@ -25,6 +25,9 @@ typedef struct expr_node_struct {
     expr_kind kind;
     slong gen;                       /* EXPR_GEN only */
     fmpz_t exp;                      /* EXPR_POW only; 0 elsewhere */
+    slong param;                     /* EXPR_POW in a template (scan.h): the
+                                        exponent is exp times integer
+                                        parameter number param; -1 elsewhere */
     slong nkids;
     struct expr_node_struct **kids;  /* owned */
     int line, col;                   /* where the node starts in the source */
@@ -165,6 +168,13 @@ void _expr_tok_describe(char *buf, size_t n, const expr_tok_struct *t);
 void _expr_tok_get_fmpz(fmpz_t out, const expr_tok_struct *t);
 /* 1 if a token of this kind can begin a word. */
 int _expr_tok_starts_word(expr_tok_kind k);
+
+/* Parses a word whose exponents may also be integer parameters (names in
+ * params that are not generators): a^p, a^-p, a^(p), a^(-p) give an
+ * EXPR_POW node with param set and exp = +1 or -1.  Other rules as in
+ * expr_parse.  params may be NULL (then exactly _expr_parse_word). */
+ns_status _expr_parse_word_params(expr_node **out, expr_scan_t s, const names_t g,
+                                  const names_struct *params, int flags, nserr_t err);
 
 /* Flags for _expr_parse_word. */
 #define EXPR_STOP_BEFORE_ARROW 1  /* end the word before "NAME ->" (maps) */

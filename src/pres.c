@@ -756,6 +756,12 @@ char *pres_get_str(const pres_t p)
 ns_status pres_parse_map(expr_struct *images, const pres_t p, const char *text, int line,
                          int col, nserr_t err)
 {
+    return pres_parse_map_params(images, p, NULL, text, line, col, err);
+}
+
+ns_status pres_parse_map_params(expr_struct *images, const pres_t p, const names_struct *params,
+                                const char *text, int line, int col, nserr_t err)
+{
     slong n = p->gens->n;
     expr_node **img = flint_malloc(sizeof(expr_node *) * (n > 0 ? n : 1));
     int *at_line = flint_malloc(sizeof(int) * (n > 0 ? n : 1));
@@ -801,7 +807,8 @@ ns_status pres_parse_map(expr_struct *images, const pres_t p, const char *text, 
             st = err_at_tok(err, NS_ERR_SYNTAX, &s->tok, what);
             goto done;
         }
-        if ((st = _expr_parse_word(&img[g], s, p->gens, EXPR_STOP_BEFORE_ARROW, err)) != NS_OK)
+        if ((st = _expr_parse_word_params(&img[g], s, p->gens, params,
+                                          EXPR_STOP_BEFORE_ARROW, err)) != NS_OK)
             goto done;
         at_line[g] = t.line;
         at_col[g] = t.col;

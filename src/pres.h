@@ -78,6 +78,12 @@ char *pres_get_str(const pres_t p);
 ns_status pres_parse_map(expr_struct *images, const pres_t p,
                          const char *text, int line, int col, nserr_t err);
 
+/* The same for a map template (scan.h): exponents may also be the integer
+ * parameters named in params (not generators), as in "a -> a^p b^-q";
+ * see _expr_parse_word_params.  params NULL: exactly pres_parse_map. */
+ns_status pres_parse_map_params(expr_struct *images, const pres_t p, const names_struct *params,
+                                const char *text, int line, int col, nserr_t err);
+
 /* "a -> a^2 b, b -> b a"; caller frees with flint_free. */
 char *pres_get_map_str(const expr_struct *images, const pres_t p);
 

@@ -13,4 +13,9 @@ int cli_report(int argc, char **argv);
 /* Writes the --help text. */
 void cli_print_help(FILE *out);
 
+/* `nilstep scan ...` (argv[0] is "scan"): many maps of one group, see
+ * src/scan.h.  Returns the exit status. */
+int cli_scan(int argc, char **argv);
+void cli_print_scan_help(FILE *out);
+
 #endif
