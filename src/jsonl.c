@@ -29,7 +29,7 @@ typedef struct {
 
 static ns_status fail(reader *r, const char *what)
 {
-    return nserr_set(r->err, NS_ERR_SYNTAX, 0, (int)r->pos + 1, "%s", what);
+    return nserr_set(r->err, NS_ERR_SYNTAX, 1, (int)r->pos + 1, "%s", what);
 }
 
 static void skip_ws(reader *r)

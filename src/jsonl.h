@@ -23,7 +23,7 @@ void jsonl_obj_init(jsonl_obj_t o);
 void jsonl_obj_clear(jsonl_obj_t o);
 
 /* Parses line (without its newline) as one JSON object.  Errors:
- * NS_ERR_SYNTAX with line 0 and the 1-based byte column; on failure o is
+ * NS_ERR_SYNTAX with line 1 and the 1-based byte column; on failure o is
  * empty. */
 ns_status jsonl_parse(jsonl_obj_t o, const char *line, nserr_t err);
 
