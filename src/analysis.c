@@ -92,6 +92,11 @@ void analysis_clear_map(analysis_t A)
     fmpz_zero(A->image_index);
     A->automorphism = A->injective = A->hyperbolic = A->expanding = 0;
     A->injective_defined = 0;
+    torsion_map_clear(A->tmap);
+    torsion_map_init(A->tmap);
+    A->limit_hit = 0;
+    nserr_clear(A->limit);
+    nserr_init(A->limit);
     endo_clear(A->endo);
     for (slong j = 0; j < A->nlayers; j++)
         layer_map_clear(A->layers + j);
@@ -135,6 +140,8 @@ static void clear_group(analysis_t A)
     A->layers = NULL;
     A->nlayers = 0;
     A->has_group = 0;
+    torsion_clear(A->tors);
+    torsion_init(A->tors);
     nq_clear(A->nq);
 }
 
@@ -147,11 +154,17 @@ void analysis_init(analysis_t A)
     fmpz_init(A->nielsen);
     fmpz_init(A->reidemeister);
     fmpz_init(A->image_index);
+    torsion_init(A->tors);
+    torsion_map_init(A->tmap);
+    nserr_init(A->limit);
 }
 
 void analysis_clear(analysis_t A)
 {
     clear_group(A);
+    torsion_clear(A->tors);
+    torsion_map_clear(A->tmap);
+    nserr_clear(A->limit);
     endo_clear(A->endo);
     nq_clear(A->nq);
     fmpz_clear(A->lefschetz);
@@ -223,6 +236,18 @@ ns_status analysis_set_group(analysis_t A, const pres_t G, slong c, const ns_pro
                 L->pc_labels[k] = dup_str(A->nq->labels[N->start + k]);
         }
         L->group_str = group_string(L->free_rank, L->torsion, L->ntors);
+    }
+    if (!A->layers_torsion_free) {
+        slong cr = A->nq->class_reached;
+        const layer_struct **lp = malloc(FLINT_MAX(cr, 1) * sizeof(layer_struct *));
+        for (slong j = 0; j < cr; j++)
+            lp[j] = A->layers[j].lcs;
+        st = torsion_compute(A->tors, A->nq, lp, progress, err);
+        free(lp);
+        if (st != NS_OK) {
+            clear_group(A);
+            return st;
+        }
     }
     return NS_OK;
 }
@@ -478,11 +503,11 @@ static void analyse_invariants(analysis_t A)
     }
     fmpz_abs(A->image_index, A->image_index);
     if (!A->layers_torsion_free) {
-        A->undefined_reason = "the class-c quotient has torsion in its layers";
-        A->injective = 0;
-        A->injective_defined = 0;
-        fmpz_zero(A->lefschetz);
-        fmpz_zero(A->image_index);
+        /* entropy, L and N from the rational layers (Gc/T); R, injectivity
+         * and the index on Gc itself, through its finite part */
+        A->entropy_str = arb_str(t);
+        A->lefschetz_defined = 1;
+        fmpz_abs(A->nielsen, A->lefschetz);
     } else {
         A->entropy_str = arb_str(t);
         A->injective_defined = 1;
@@ -496,6 +521,57 @@ static void analyse_invariants(analysis_t A)
             fmpz_zero(A->image_index);
     }
     arb_clear(t);
+}
+
+/* Quotients with torsion in a layer: R, injectivity and the index on Gc
+ * itself, through its torsion subgroup (torsion.h); a named counting limit
+ * leaves R undefined and is recorded in A->limit. */
+static ns_status analyse_finite_part(analysis_t A, const ns_progress_t *progress, nserr_t err)
+{
+    slong c = A->nq->class_reached;
+    int reid_inf = 0;
+    for (slong j = 0; j < A->nlayers; j++)
+        if (fmpz_is_zero(A->layers[j].det_i_minus))
+            reid_inf = 1;
+    if (A->layers_torsion_free) {
+        A->tmap->reid_method = reid_inf ? "infinite: some det(I - M_j) = 0"
+                                        : "R = |L| on the torsion-free Gc (Roman'kov 2011; "
+                                          "Dekimpe-Goncalves 2014)";
+        return NS_OK;
+    }
+    const layer_struct **lp = malloc(FLINT_MAX(c, 1) * sizeof(layer_struct *));
+    const fmpz_mat_struct **mp = malloc(FLINT_MAX(c, 1) * sizeof(fmpz_mat_struct *));
+    for (slong j = 0; j < c; j++) {
+        lp[j] = A->layers[j].lcs;
+        mp[j] = A->layers[j].matrix;
+    }
+    ns_status st = torsion_map_compute(A->tmap, A->tors, A->nq, lp, mp, A->endo, reid_inf,
+                                       progress, A->limit);
+    free(lp);
+    free(mp);
+    if (st == NS_ERR_CANCELLED)
+        return nserr_set(err, st, 0, 0, "cancelled");
+    A->limit_hit = st == NS_ERR_LIMIT;
+    if (A->limit_hit)
+        A->undefined_reason = A->limit->msg;
+    A->injective_defined = 1;
+    if (A->tors->finite) {
+        A->injective = A->tmap->finite_injective;
+        fmpz_divexact(A->image_index, A->tors->order, A->tmap->image_order);
+        A->index_defined = 1;
+    } else {
+        A->injective = A->injective && A->tmap->injective_on_t;
+        A->index_defined = A->injective;
+        if (!A->injective)
+            fmpz_zero(A->image_index);
+    }
+    if (reid_inf)
+        A->reid_kind = ANALYSIS_REID_INFINITE;
+    else if (A->tmap->reid_defined) {
+        A->reid_kind = ANALYSIS_REID_FINITE;
+        fmpz_set(A->reidemeister, A->tmap->reidemeister);
+    }
+    return NS_OK;
 }
 
 /* Everything after the map is set on A->endo (and map_str is written):
@@ -528,7 +604,10 @@ static ns_status analyse_endo(analysis_t A, const ns_progress_t *progress, nserr
     analyse_bounds(A);
     analyse_growth(A);
     analyse_invariants(A);
-    return NS_OK;
+    st = analyse_finite_part(A, progress, err);
+    if (st != NS_OK)
+        analysis_clear_map(A);
+    return st;
 }
 
 ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_progress_t *progress,

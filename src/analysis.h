@@ -23,6 +23,7 @@
 #include "nq.h"
 #include "pres.h"
 #include "spectrum.h"
+#include "torsion.h"
 
 #define ANALYSIS_DIGITS 30 /* significant digits of the decimal strings */
 
@@ -75,6 +76,9 @@ typedef struct {
     slong nlayers;               /* = class_requested (trivial layers included) */
     analysis_layer_struct *layers;
     int layers_torsion_free;     /* every layer torsion-free */
+    torsion_t tors;              /* the torsion subgroup T and the layers of
+                                    Gc/T (torsion.h); T = 1 when every layer
+                                    is torsion-free */
 
     /* map stage */
     int has_map;
@@ -122,6 +126,14 @@ typedef struct {
                                     (the images of the input generators under
                                     the inverse), or NULL when there is none */
     const char *inverse_reason;  /* requested but none: why (static text) */
+
+    /* the finite part (valid map, only when some layer has torsion):
+     * entropy and the bounds speak of the rational layers, L and N of the
+     * nilmanifold of Gc/T, R, injectivity and the index of Gc itself */
+    torsion_map_t tmap;
+    int limit_hit;               /* a named counting limit stopped R or the
+                                    fixed points; limit->msg names it */
+    nserr_t limit;
 } analysis_struct;
 typedef analysis_struct analysis_t[1];
 

@@ -64,6 +64,204 @@ static void put_map_words(strbuf_t b, const analysis_t A, char *const *w)
         strbuf_printf(b, "%s%s -> %s", x ? ", " : "", g->name[x], w[x]);
 }
 
+/* ---------------------------------------------- the torsion subgroup */
+
+/* "Z^2 + Z/2", "0": layer j of Gc/T. */
+static void put_quotient_group(strbuf_t b, const analysis_layer_struct *L, const torsion_t T,
+                               slong j, int latex)
+{
+    int any = 0;
+    if (L->free_rank > 0) {
+        strbuf_puts(b, latex ? "\\mathbb{Z}" : "Z");
+        if (L->free_rank > 1)
+            strbuf_printf(b, latex ? "^{%ld}" : "^%ld", (long)L->free_rank);
+        any = 1;
+    }
+    slong nt = j < T->nlayers ? T->q_ntors[j] : 0;
+    for (slong t = 0; t < nt; t++) {
+        strbuf_puts(b, any ? (latex ? " \\oplus " : " + ") : "");
+        strbuf_puts(b, latex ? "\\mathbb{Z}/" : "Z/");
+        put_fmpz(b, T->q_tors[j] + t);
+        any = 1;
+    }
+    if (!any)
+        strbuf_puts(b, "0");
+}
+
+/* "Z/2 + Z/4", "trivial" or "not abelian". */
+static void put_torsion_structure(strbuf_t b, const torsion_t T, int latex)
+{
+    if (fmpz_is_one(T->order)) {
+        strbuf_puts(b, latex ? "1" : "trivial");
+        return;
+    }
+    if (!T->abelian) {
+        strbuf_puts(b, latex ? "\\text{not abelian}" : "not abelian");
+        return;
+    }
+    for (slong t = 0; t < T->ninv; t++) {
+        strbuf_puts(b, t ? (latex ? " \\oplus " : " + ") : "");
+        strbuf_puts(b, latex ? "\\mathbb{Z}/" : "Z/");
+        put_fmpz(b, T->inv + t);
+    }
+}
+
+static void text_torsion(strbuf_t b, const analysis_t A)
+{
+    const torsion_struct *T = A->tors;
+    strbuf_puts(b, "\ntorsion subgroup T (the elements of finite order of the class-c quotient Gc)\n");
+    strbuf_puts(b, "  order         ");
+    put_fmpz(b, T->order);
+    strbuf_puts(b, T->finite ? "  (Gc is finite: T = Gc)\n  structure     "
+                             : "\n  structure     ");
+    put_torsion_structure(b, T, 0);
+    strbuf_puts(b, "\n  generators    ");
+    for (slong i = 0; i < T->sub->len; i++)
+        strbuf_printf(b, "%s%s", i ? ", " : "", T->gen_str[i]);
+    strbuf_puts(b, T->sub->len ? "\n" : "1\n");
+    strbuf_puts(b, "torsion-free quotient Gc/T (same free parts and bases)\n");
+    strbuf_puts(b, "layer  group                order of T in the layer\n");
+    for (slong j = 0; j < A->nlayers; j++) {
+        const analysis_layer_struct *L = A->layers + j;
+        strbuf_t g;
+        strbuf_init(g);
+        put_quotient_group(g, L, T, j, 0);
+        strbuf_printf(b, "%5ld  %-20s ", (long)L->weight, g->s);
+        strbuf_clear(g);
+        if (j < T->nlayers)
+            put_fmpz(b, T->u_ord + j);
+        else
+            strbuf_puts(b, "1");
+        strbuf_puts(b, "\n");
+    }
+}
+
+static void json_torsion(strbuf_t b, const analysis_t A)
+{
+    const torsion_struct *T = A->tors;
+    strbuf_puts(b, ",\n \"torsion_subgroup\": {\"order\": ");
+    put_fmpz(b, T->order);
+    strbuf_printf(b, ", \"finite_quotient\": %s, \"abelian\": %s, \"invariants\": ",
+                  T->finite ? "true" : "false", T->abelian ? "true" : "false");
+    if (T->abelian) {
+        strbuf_puts(b, "[");
+        for (slong t = 0; t < T->ninv; t++) {
+            if (t)
+                strbuf_puts(b, ", ");
+            put_fmpz(b, T->inv + t);
+        }
+        strbuf_puts(b, "]");
+    } else
+        strbuf_puts(b, "null");
+    strbuf_puts(b, ", \"generators\": [");
+    for (slong i = 0; i < T->sub->len; i++) {
+        if (i)
+            strbuf_puts(b, ", ");
+        strbuf_put_json_str(b, T->gen_str[i]);
+    }
+    strbuf_puts(b, "], \"layer_orders\": [");
+    for (slong j = 0; j < A->nlayers; j++) {
+        if (j)
+            strbuf_puts(b, ", ");
+        if (j < T->nlayers)
+            put_fmpz(b, T->u_ord + j);
+        else
+            strbuf_puts(b, "1");
+    }
+    strbuf_printf(b, "]},\n \"torsion_free_quotient\": {\"hirsch_length\": %ld, "
+                     "\"torsion_free_layers\": %s,\n   \"layers\": [",
+                  (long)A->nq->hirsch_length, T->quotient_layers_free ? "true" : "false");
+    for (slong j = 0; j < A->nlayers; j++) {
+        const analysis_layer_struct *L = A->layers + j;
+        slong nt = j < T->nlayers ? T->q_ntors[j] : 0;
+        strbuf_printf(b, "%s\n     {\"weight\": %ld, \"free_rank\": %ld, \"torsion\": [",
+                      j ? "," : "", (long)L->weight, (long)L->free_rank);
+        for (slong t = 0; t < nt; t++) {
+            if (t)
+                strbuf_puts(b, ", ");
+            put_fmpz(b, T->q_tors[j] + t);
+        }
+        strbuf_t g;
+        strbuf_init(g);
+        put_quotient_group(g, L, T, j, 0);
+        strbuf_puts(b, "], \"group\": ");
+        strbuf_put_json_str(b, g->s);
+        strbuf_clear(g);
+        strbuf_printf(b, ", \"pc_generators\": %ld, \"basis\": [", (long)(L->free_rank + nt));
+        for (slong k = 0; k < L->free_rank; k++) {
+            if (k)
+                strbuf_puts(b, ", ");
+            strbuf_put_json_str(b, L->basis[k]);
+        }
+        strbuf_puts(b, "]}");
+    }
+    strbuf_puts(b, "]}");
+}
+
+static void latex_torsion(strbuf_t b, const analysis_t A)
+{
+    const torsion_struct *T = A->tors;
+    strbuf_puts(b, "\n\\medskip\\noindent Torsion subgroup $T$ of $G_c$: order $");
+    put_fmpz(b, T->order);
+    strbuf_puts(b, "$, $T \\cong ");
+    put_torsion_structure(b, T, 1);
+    strbuf_puts(b, "$, generated by \\texttt{");
+    for (slong i = 0; i < T->sub->len; i++) {
+        if (i)
+            strbuf_puts(b, ", ");
+        strbuf_put_latex_str(b, T->gen_str[i]);
+    }
+    strbuf_puts(b, T->sub->len ? "}" : "1}");
+    strbuf_puts(b, ". Layers of the torsion-free quotient $G_c/T$:");
+    for (slong j = 0; j < A->nlayers; j++) {
+        strbuf_printf(b, "%s $", j ? "," : "");
+        put_quotient_group(b, A->layers + j, T, j, 1);
+        strbuf_puts(b, "$");
+    }
+    strbuf_puts(b, ".\\\\\n");
+}
+
+/* The invariants when some layer has torsion, each with what it is
+ * computed on. */
+static void text_torsion_invariants(strbuf_t b, const analysis_t A)
+{
+    const torsion_map_struct *M = A->tmap;
+    strbuf_printf(b, "entropy       %s  (rational layers: the free parts)\n", A->entropy_str);
+    if (A->log_growth_str)
+        strbuf_printf(b, "log growth    %s  (a lower bound for the entropy)\n", A->log_growth_str);
+    strbuf_puts(b, "Lefschetz     ");
+    put_fmpz(b, A->lefschetz);
+    strbuf_puts(b, "  (nilmanifold of Gc/T, Anosov 1985)\nNielsen       ");
+    put_fmpz(b, A->nielsen);
+    strbuf_puts(b, "  (nilmanifold of Gc/T)\nReidemeister  ");
+    if (A->reid_kind == ANALYSIS_REID_INFINITE)
+        strbuf_printf(b, "infinite  (on Gc: %s)\n", M->reid_method);
+    else if (A->reid_kind == ANALYSIS_REID_FINITE) {
+        put_fmpz(b, A->reidemeister);
+        strbuf_printf(b, "  (on Gc, torsion included; %s)\n", M->reid_method);
+    } else
+        strbuf_printf(b, "not computed  (%s)\n", A->limit->msg);
+    if (M->fixed_defined) {
+        strbuf_puts(b, "fixed points  ");
+        put_fmpz(b, M->fixed_elements);
+        strbuf_puts(b, "  (elements x of Gc with alpha(x) = x)\n");
+    }
+    if (M->fixed_classes_defined) {
+        strbuf_puts(b, "fixed classes ");
+        put_fmpz(b, M->fixed_classes);
+        strbuf_puts(b, "  (conjugacy classes C of Gc with alpha(C) = C)\n");
+    }
+    strbuf_printf(b, "automorphism  %s\n", yes_no(A->automorphism));
+    strbuf_printf(b, "injective     %s  (on Gc, torsion included)\n", yes_no(A->injective));
+    if (A->index_defined) {
+        strbuf_puts(b, "image index   ");
+        put_fmpz(b, A->image_index);
+        strbuf_puts(b, "  (in Gc)\n");
+    }
+    strbuf_printf(b, "hyperbolic    %s  (rational layers)\n", yes_no(A->hyperbolic));
+    strbuf_printf(b, "expanding     %s  (rational layers)\n", yes_no(A->expanding));
+}
+
 /* ------------------------------------------------------------------ text */
 
 static void text_matrix(strbuf_t b, const fmpz_mat_t M, const char *indent)
@@ -110,6 +308,8 @@ static void report_text(strbuf_t b, const analysis_t A, const char *title)
         strbuf_puts(b, "\n");
     }
     free(pres);
+    if (!A->layers_torsion_free)
+        text_torsion(b, A);
     if (!A->has_map)
         return;
     strbuf_printf(b, "\nmap           %s\n", A->map_str);
@@ -155,7 +355,9 @@ static void report_text(strbuf_t b, const analysis_t A, const char *title)
     strbuf_printf(b, "upper bound   %s  (max rho_j, layer %ld)\n", A->upper_bound_str,
                 (long)A->upper_layer);
     strbuf_printf(b, "growth rate   %s  (%s)\n", A->growth_str, A->growth_reason);
-    if (A->undefined_reason) {
+    if (!A->layers_torsion_free) {
+        text_torsion_invariants(b, A);
+    } else if (A->undefined_reason) {
         strbuf_printf(b, "entropy, Lefschetz, Nielsen, Reidemeister numbers: not defined (%s)\n",
                     A->undefined_reason);
     } else {
@@ -167,17 +369,19 @@ static void report_text(strbuf_t b, const analysis_t A, const char *title)
                                 "\nReidemeister  ", "infinite");
         strbuf_puts(b, "\n");
     }
-    strbuf_printf(b, "automorphism  %s\n", yes_no(A->automorphism));
-    if (!A->undefined_reason) {
-        strbuf_printf(b, "injective     %s\n", yes_no(A->injective));
-        if (A->index_defined) {
-            strbuf_puts(b, "image index   ");
-            put_fmpz(b, A->image_index);
-            strbuf_puts(b, "\n");
+    if (A->layers_torsion_free) {
+        strbuf_printf(b, "automorphism  %s\n", yes_no(A->automorphism));
+        if (!A->undefined_reason) {
+            strbuf_printf(b, "injective     %s\n", yes_no(A->injective));
+            if (A->index_defined) {
+                strbuf_puts(b, "image index   ");
+                put_fmpz(b, A->image_index);
+                strbuf_puts(b, "\n");
+            }
         }
+        strbuf_printf(b, "hyperbolic    %s\n", yes_no(A->hyperbolic));
+        strbuf_printf(b, "expanding     %s\n", yes_no(A->expanding));
     }
-    strbuf_printf(b, "hyperbolic    %s\n", yes_no(A->hyperbolic));
-    strbuf_printf(b, "expanding     %s\n", yes_no(A->expanding));
     if (A->inverse_requested) {
         strbuf_puts(b, "inverse       ");
         if (A->inverse_str)
@@ -393,6 +597,23 @@ static void json_map_numbers(strbuf_t b, const analysis_t A)
     json_fmpz_or_null(b, v && A->index_defined, A->image_index);
     strbuf_puts(b, ", \"injective_defined\": ");
     json_bool_or_null(b, v, A->injective_defined);
+    /* the finite part: how R was found, a counting limit, fixed points
+     * (finite Gc), and what each number is computed on */
+    const torsion_map_struct *M = A->tmap;
+    strbuf_puts(b, ",\n   \"reidemeister_method\": ");
+    json_str_or_null(b, v ? M->reid_method : NULL);
+    strbuf_puts(b, ", \"limit\": ");
+    json_str_or_null(b, v && A->limit_hit ? A->limit->msg : NULL);
+    strbuf_puts(b, ", \"fixed_points\": ");
+    json_fmpz_or_null(b, v && M->fixed_defined, M->fixed_elements);
+    strbuf_puts(b, ", \"fixed_conjugacy_classes\": ");
+    json_fmpz_or_null(b, v && M->fixed_classes_defined, M->fixed_classes);
+    strbuf_puts(b, ",\n   \"computed_on\": {\"entropy\": \"rational layers\", "
+                   "\"bounds\": \"rational layers\", \"hyperbolic\": \"rational layers\", "
+                   "\"expanding\": \"rational layers\", \"lefschetz\": \"Gc/T\", "
+                   "\"nielsen\": \"Gc/T\", \"reidemeister\": \"Gc\", "
+                   "\"injective\": \"Gc\", \"image_index\": \"Gc\", "
+                   "\"fixed_points\": \"Gc\"}");
 }
 
 /* The inverse's images, or null when not requested or there is none. */
@@ -418,6 +639,7 @@ static void json_map_inverse(strbuf_t b, const analysis_t A)
 static void report_json(strbuf_t b, const analysis_t A, const char *title)
 {
     json_group(b, A, title);
+    json_torsion(b, A);
     if (A->has_map) {
         json_map_images(b, A);
         json_map_layers(b, A);
@@ -517,6 +739,8 @@ static void report_latex(strbuf_t b, const analysis_t A, const char *title)
         strbuf_puts(b, " \\\\\n");
     }
     strbuf_puts(b, "\\end{tabular}\n");
+    if (!A->layers_torsion_free)
+        latex_torsion(b, A);
     if (!maps)
         return;
     strbuf_puts(b, "\n\\medskip\\noindent\n");
@@ -525,7 +749,43 @@ static void report_latex(strbuf_t b, const analysis_t A, const char *title)
     strbuf_printf(b, "upper bound $\\max_j \\rho_j = %s$ (layer %ld); ", A->upper_bound_str,
                 (long)A->upper_layer);
     strbuf_printf(b, "growth rate $%s$.\\\\\n", A->growth_str);
-    if (A->undefined_reason) {
+    if (!A->layers_torsion_free) {
+        strbuf_printf(b, "Entropy (rational layers) $h = %s$; on the nilmanifold of $G_c/T$: ",
+                      A->entropy_str);
+        strbuf_puts(b, "$L = ");
+        put_fmpz(b, A->lefschetz);
+        strbuf_puts(b, "$, $N = ");
+        put_fmpz(b, A->nielsen);
+        strbuf_puts(b, "$; on $G_c$: ");
+        if (A->reid_kind == ANALYSIS_REID_INFINITE)
+            strbuf_puts(b, "$R = \\infty$");
+        else if (A->reid_kind == ANALYSIS_REID_FINITE) {
+            strbuf_puts(b, "$R = ");
+            put_fmpz(b, A->reidemeister);
+            strbuf_puts(b, "$");
+        } else {
+            strbuf_puts(b, "$R$ not computed (");
+            strbuf_put_latex_str(b, A->limit->msg);
+            strbuf_puts(b, ")");
+        }
+        if (A->tmap->fixed_defined) {
+            strbuf_puts(b, ", $|\\mathrm{Fix}\\,\\alpha| = ");
+            put_fmpz(b, A->tmap->fixed_elements);
+            strbuf_puts(b, "$");
+        }
+        if (A->tmap->fixed_classes_defined) {
+            strbuf_puts(b, ", $\\alpha$-fixed conjugacy classes: $");
+            put_fmpz(b, A->tmap->fixed_classes);
+            strbuf_puts(b, "$");
+        }
+        strbuf_printf(b, "; injective: %s", yes_no(A->injective));
+        if (A->index_defined) {
+            strbuf_puts(b, ", index of the image $");
+            put_fmpz(b, A->image_index);
+            strbuf_puts(b, "$");
+        }
+        strbuf_puts(b, ".\\\\\n");
+    } else if (A->undefined_reason) {
         strbuf_puts(b, "Entropy, Lefschetz, Nielsen and Reidemeister numbers: not defined (");
         strbuf_put_latex_str(b, A->undefined_reason);
         strbuf_puts(b, ").\\\\\n");
