@@ -1,4 +1,5 @@
 /* torsion.c — see torsion.h and doc/torsion.md. */
+#include <stdint.h>
 #include <string.h>
 #include <flint/fmpz_mat.h>
 #include "strbuf.h"
@@ -651,21 +652,115 @@ static int uf_union(slong *p, slong a, slong b)
     return 1;
 }
 
-/* The mixed-radix index of a normal-form vector of a finite group. */
+/* Multiplication tables of a finite Gc, so that counting needs no
+ * collection per element.  Elements are numbered in mixed radix,
+ * idx = sum x_p * |G_(p+1)| with G_k = <a_k, ..., a_(n-1)>.  Since
+ * x = (a_0^x_0 ... a_(k-1)^x_(k-1)) t with t in G_k, and t a_k lies in G_k,
+ * the product x a_k^(2^b) changes only the part of idx below |G_k|: one
+ * table U[k][b] on G_k per generator and power of two, built from a single
+ * collection per element of G_k (b = 0) and by composing (b > 0). */
+typedef struct {
+    slong n;
+    slong *m;      /* relative orders */
+    slong *gk;     /* n + 1: |G_k|, gk[n] = 1 */
+    slong *nb;     /* tables per generator */
+    int32_t ***U;  /* U[k][b][t] = index in G_k of t a_k^(2^b) */
+} ftab;
+
+static void ftab_clear(ftab *F)
+{
+    for (slong k = 0; k < F->n; k++) {
+        for (slong b = 0; b < F->nb[k]; b++)
+            flint_free(F->U[k][b]);
+        flint_free(F->U[k]);
+    }
+    flint_free(F->U);
+    flint_free(F->nb);
+    flint_free(F->gk);
+    flint_free(F->m);
+}
+
+/* Returns 1 when cancelled. */
+static int ftab_init(ftab *F, pcp_work_t W, const ns_progress_t *progress)
+{
+    const pcp_struct *P = W->P;
+    slong n = P->n;
+    F->n = n;
+    F->m = flint_malloc(FLINT_MAX(n, 1) * sizeof(slong));
+    F->gk = flint_malloc((n + 1) * sizeof(slong));
+    F->nb = flint_calloc(FLINT_MAX(n, 1), sizeof(slong));
+    F->U = flint_calloc(FLINT_MAX(n, 1), sizeof(int32_t **));
+    for (slong p = 0; p < n; p++)
+        F->m[p] = fmpz_get_si(P->relorder + p);
+    F->gk[n] = 1;
+    for (slong p = n - 1; p >= 0; p--)
+        F->gk[p] = F->gk[p + 1] * F->m[p];
+    fmpz *x = _fmpz_vec_init(FLINT_MAX(n, 1));
+    fmpz_t one;
+    fmpz_init_set_ui(one, 1);
+    int cancelled = 0;
+    for (slong k = n - 1; k >= 0 && !cancelled; k--) {
+        slong g = F->gk[k], nb = 1;
+        while (((slong)1 << nb) < F->m[k])
+            nb++;
+        F->nb[k] = nb;
+        F->U[k] = flint_malloc(nb * sizeof(int32_t *));
+        for (slong b = 0; b < nb; b++)
+            F->U[k][b] = flint_malloc(g * sizeof(int32_t));
+        for (slong t = 0; t < g; t++) {
+            if ((t & 1023) == 0 && ns_progress_report(progress, "multiplication tables", -1.0)) {
+                cancelled = 1;
+                for (slong kk = k - 1; kk >= 0; kk--)
+                    F->nb[kk] = 0;
+                break;
+            }
+            _fmpz_vec_zero(x, n);
+            for (slong p = n - 1, r = t; p >= k; p--) {
+                fmpz_set_si(x + p, r % F->m[p]);
+                r /= F->m[p];
+            }
+            pcp_collect_gen(W, x, k, one);
+            slong idx = 0;
+            for (slong p = k; p < n; p++)
+                idx = idx * F->m[p] + fmpz_get_si(x + p);
+            F->U[k][0][t] = (int32_t)idx;
+        }
+        for (slong b = 1; b < nb && !cancelled; b++)
+            for (slong t = 0; t < g; t++)
+                F->U[k][b][t] = F->U[k][b - 1][F->U[k][b - 1][t]];
+    }
+    fmpz_clear(one);
+    _fmpz_vec_clear(x, FLINT_MAX(n, 1));
+    return cancelled;
+}
+
+/* x a_k^e, 0 <= e < m_k */
+static slong ftab_mul_pow(const ftab *F, slong x, slong k, slong e)
+{
+    slong g = F->gk[k], hi = (x / g) * g, t = x % g;
+    for (slong b = 0; e; b++, e >>= 1)
+        if (e & 1)
+            t = F->U[k][b][t];
+    return hi + t;
+}
+
+/* x w, w given by its normal-form index */
+static slong ftab_mul(const ftab *F, slong x, slong w)
+{
+    for (slong p = 0; p < F->n; p++) {
+        slong e = (w / F->gk[p + 1]) % F->m[p];
+        if (e)
+            x = ftab_mul_pow(F, x, p, e);
+    }
+    return x;
+}
+
 static slong fin_index(const fmpz *x, const slong *m, slong n)
 {
     slong idx = 0;
     for (slong p = 0; p < n; p++)
         idx = idx * m[p] + fmpz_get_si(x + p);
     return idx;
-}
-
-static void fin_decode(fmpz *x, const slong *m, slong n, slong idx)
-{
-    for (slong p = n - 1; p >= 0; p--) {
-        fmpz_set_si(x + p, idx % m[p]);
-        idx /= m[p];
-    }
 }
 
 static int poll(const ns_progress_t *progress, const char *stage, slong i, slong total)
@@ -675,40 +770,49 @@ static int poll(const ns_progress_t *progress, const char *stage, slong i, slong
     return ns_progress_report(progress, stage, (double)i / (double)FLINT_MAX(total, 1));
 }
 
-/* Finite Gc: everything by direct enumeration. */
+/* Finite Gc: everything by direct enumeration over the tables. */
 static ns_status count_finite(torsion_map_t M, const nq_t Q, const endo_t E, pcp_work_t W,
                               slong N, const ns_progress_t *progress, nserr_t err)
 {
     const pcp_struct *P = Q->pcp;
     slong n = P->n, g1 = Q->class_reached ? Q->layers[0].count : 0;
-    slong *m = flint_malloc(FLINT_MAX(n, 1) * sizeof(slong));
-    for (slong p = 0; p < n; p++)
-        m[p] = fmpz_get_si(P->relorder + p);
+    ftab F;
+    if (ftab_init(&F, W, progress)) {
+        ftab_clear(&F);
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+    }
     slong *uf = flint_malloc(N * sizeof(slong));
-    fmpz *x = _fmpz_vec_init(FLINT_MAX(n, 1)), *y = _fmpz_vec_init(FLINT_MAX(n, 1));
-    fmpz *winv = _fmpz_vec_init(FLINT_MAX(g1, 1) * n);
-    fmpz *gen = _fmpz_vec_init(FLINT_MAX(g1, 1) * n);
+    fmpz *y = _fmpz_vec_init(FLINT_MAX(n, 1));
+    /* the generators a_k of weight 1 generate Gc; their indices, those of
+     * their inverses, of alpha(a_k)^-1 and of alpha(a_p) for every p */
+    slong *zi = flint_malloc(FLINT_MAX(g1, 1) * sizeof(slong));
+    slong *zinv = flint_malloc(FLINT_MAX(g1, 1) * sizeof(slong));
+    slong *winv = flint_malloc(FLINT_MAX(g1, 1) * sizeof(slong));
+    slong *aimg = flint_malloc(FLINT_MAX(n, 1) * sizeof(slong));
     ns_status st = NS_OK;
     for (slong k = 0; k < g1; k++) {
-        fmpz_one(gen + k * n + k);
-        pcp_elt_inv(W, winv + k * n, E->pc_img + k * n);
+        zi[k] = F.gk[k + 1];
+        _fmpz_vec_zero(y, n);
+        fmpz_one(y + k);
+        pcp_elt_inv(W, y, y);
+        zinv[k] = fin_index(y, F.m, n);
+        pcp_elt_inv(W, y, E->pc_img + k * n);
+        winv[k] = fin_index(y, F.m, n);
     }
+    for (slong p = 0; p < n; p++)
+        aimg[p] = fin_index(E->pc_img + p * n, F.m, n);
 
     /* twisted classes: orbits of x -> z x alpha(z)^-1, z in a generating set */
     for (slong i = 0; i < N; i++)
         uf[i] = i;
     slong classes = N;
-    for (slong i = 0; i < N && st == NS_OK; i++) {
+    for (slong i = 0; i < N; i++) {
         if (poll(progress, "twisted classes", i, N)) {
             st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
             break;
         }
-        fin_decode(x, m, n, i);
-        for (slong k = 0; k < g1; k++) {
-            pcp_elt_mul(W, y, gen + k * n, x);
-            pcp_elt_mul(W, y, y, winv + k * n);
-            classes -= uf_union(uf, i, fin_index(y, m, n));
-        }
+        for (slong k = 0; k < g1; k++)
+            classes -= uf_union(uf, i, ftab_mul(&F, ftab_mul(&F, zi[k], i), winv[k]));
     }
     if (st == NS_OK) {
         fmpz_set_si(M->reidemeister, classes);
@@ -716,36 +820,34 @@ static ns_status count_finite(torsion_map_t M, const nq_t Q, const endo_t E, pcp
         M->reid_method = "counted: the twisted conjugacy classes of the finite group Gc";
     }
 
-    /* fixed elements: alpha(x) = prod alpha(a_p)^(x_p), kept per prefix */
+    /* fixed elements: alpha(x) = prod alpha(a_p)^(x_p), kept per prefix:
+     * pre[p] = alpha(a_0^x_0 ... a_(p-1)^x_(p-1)) */
     if (st == NS_OK) {
-        fmpz *pre = _fmpz_vec_init((n + 1) * n);
+        slong *x = flint_calloc(FLINT_MAX(n, 1), sizeof(slong));
+        slong *pre = flint_calloc(n + 1, sizeof(slong));
         slong cnt = 0;
         for (slong i = 0; i < N; i++) {
             if (poll(progress, "fixed points", i, N)) {
                 st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
                 break;
             }
-            /* x = the i-th element; the first position that changed */
-            slong from = 0;
             if (i > 0) {
-                from = n - 1;
-                fmpz_add_ui(x + from, x + from, 1);
-                while (from > 0 && fmpz_cmp_si(x + from, m[from]) >= 0) {
-                    fmpz_zero(x + from);
-                    from--;
-                    fmpz_add_ui(x + from, x + from, 1);
+                /* the odometer: the last position that moved, deeper ones reset */
+                slong p = n - 1;
+                while (x[p] + 1 == F.m[p]) {
+                    x[p] = 0;
+                    p--;
                 }
-            } else
-                _fmpz_vec_zero(x, n);
-            /* pre[p+1] = pre[p] * alpha(a_p)^x_p */
-            for (slong p = from; p < n; p++) {
-                pcp_elt_pow(W, y, E->pc_img + p * n, x + p);
-                pcp_elt_mul(W, pre + (p + 1) * n, pre + p * n, y);
+                x[p]++;
+                pre[p + 1] = ftab_mul(&F, pre[p + 1], aimg[p]);
+                for (slong q = p + 1; q < n; q++)
+                    pre[q + 1] = pre[q];
             }
-            if (_fmpz_vec_equal(pre + n * n, x, n))
+            if (pre[n] == i)
                 cnt++;
         }
-        _fmpz_vec_clear(pre, (n + 1) * n);
+        flint_free(x);
+        flint_free(pre);
         if (st == NS_OK) {
             fmpz_set_si(M->fixed_elements, cnt);
             M->fixed_defined = 1;
@@ -756,24 +858,25 @@ static ns_status count_finite(torsion_map_t M, const nq_t Q, const endo_t E, pcp
     if (st == NS_OK && M->finite_injective) {
         for (slong i = 0; i < N; i++)
             uf[i] = i;
-        for (slong i = 0; i < N && st == NS_OK; i++) {
+        for (slong i = 0; i < N; i++) {
             if (poll(progress, "conjugacy classes", i, N)) {
                 st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
                 break;
             }
-            fin_decode(x, m, n, i);
-            for (slong k = 0; k < g1; k++) {
-                pcp_elt_conj(W, y, x, gen + k * n);
-                uf_union(uf, i, fin_index(y, m, n));
-            }
+            for (slong k = 0; k < g1; k++)
+                uf_union(uf, i, ftab_mul(&F, ftab_mul(&F, zinv[k], i), zi[k]));
         }
         slong fixed = 0;
         for (slong i = 0; i < N && st == NS_OK; i++) {
             if (uf_find(uf, i) != i)
                 continue;
-            fin_decode(x, m, n, i);
-            endo_apply(E, Q, y, x, W);
-            if (uf_find(uf, fin_index(y, m, n)) == i)
+            slong a = 0; /* alpha(x_i) */
+            for (slong p = 0; p < n; p++) {
+                slong e = (i / F.gk[p + 1]) % F.m[p];
+                for (slong t = 0; t < e; t++)
+                    a = ftab_mul(&F, a, aimg[p]);
+            }
+            if (uf_find(uf, a) == i)
                 fixed++;
         }
         if (st == NS_OK) {
@@ -781,12 +884,13 @@ static ns_status count_finite(torsion_map_t M, const nq_t Q, const endo_t E, pcp
             M->fixed_classes_defined = 1;
         }
     }
-    _fmpz_vec_clear(x, FLINT_MAX(n, 1));
     _fmpz_vec_clear(y, FLINT_MAX(n, 1));
-    _fmpz_vec_clear(winv, FLINT_MAX(g1, 1) * n);
-    _fmpz_vec_clear(gen, FLINT_MAX(g1, 1) * n);
+    flint_free(zi);
+    flint_free(zinv);
+    flint_free(winv);
+    flint_free(aimg);
     flint_free(uf);
-    flint_free(m);
+    ftab_clear(&F);
     return st;
 }
 

@@ -688,11 +688,21 @@ static void growth_rate_torsion_keeps_it_one(void **state)
     assert_true(A->valid);
     assert_string_equal(A->layers[0].rho_str, "0");
     assert_string_equal(A->growth_str, "1");
-    assert_true(A->undefined_reason != NULL); /* torsion: invariants not defined */
+    /* Torsion no longer leaves the invariants undefined.  By hand: Gc is the
+     * abelian group Z + Z/2 and R(alpha) = |coker(1 - alpha)|; 1 - alpha
+     * sends a to a - t and t to 0, whose span <(1,1)> has index 2, so R = 2;
+     * L = det(1 - 0) = 1 on Gc/T = Z. */
+    assert_null(A->undefined_reason);
+    assert_int_equal(A->reid_kind, ANALYSIS_REID_FINITE);
+    assert_int_equal(fmpz_get_si(A->reidemeister), 2);
+    assert_int_equal(fmpz_get_si(A->lefschetz), 1);
     set_map(A, "a -> t, t -> 1");
     assert_true(A->valid);
     assert_string_equal(A->layers[0].rho_str, "0");
     assert_string_equal(A->growth_str, "0");
+    /* 1 - alpha: a -> a - t, t -> t spans everything: R = 1 */
+    assert_int_equal(A->reid_kind, ANALYSIS_REID_FINITE);
+    assert_int_equal(fmpz_get_si(A->reidemeister), 1);
     analysis_clear(A);
 }
 

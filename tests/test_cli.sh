@@ -260,8 +260,18 @@ import json, sys
 r = json.load(open(sys.argv[1]))
 assert r["group"]["layers"][0]["torsion"] == [2], r["group"]["layers"][0]
 m = r["map"]
-assert m["lefschetz"] is None and m["nielsen"] is None and m["reidemeister"] is None, m
-' "$tmp/out" || fail "JSON report with torsion: invariants should be null"
+# By hand: Gc = Z + Z/2 (a free, t of order 2); 1 - alpha sends a to -t and
+# t to 0, so its cokernel is infinite: R = infinity, and on Gc/T = Z the map
+# is the identity, L = N = 0.  alpha is one-to-one and onto: index 1.
+assert m["lefschetz"] == 0 and m["nielsen"] == 0 and m["reidemeister"] == "infinite", m
+assert m["injective"] is True and m["image_index"] == 1 and m["entropy"] == "0", m
+assert m["computed_on"]["lefschetz"] == "Gc/T" and m["computed_on"]["reidemeister"] == "Gc", m
+t = r["torsion_subgroup"]
+assert t["order"] == 2 and t["invariants"] == [2] and t["generators"] == ["t"], t
+q = r["torsion_free_quotient"]["layers"]
+assert [(L["free_rank"], L["torsion"]) for L in q] == [(1, []), (0, [])], q
+assert set(q[0]) == set(r["group"]["layers"][0]), "the quotient layers have the group layer keys"
+' "$tmp/out" || fail "JSON report with torsion: T, Gc/T and the invariants"
 
 # The map object has one key set whether the map is valid or not (values
 # that do not exist are null); without a map there is no "map" key.

@@ -267,7 +267,9 @@ type_text "$tmp/torsion-layers.nilstep"
 keys Enter
 wait_for "opened $tmp/torsion-layers.nilstep"
 wait_for "Z/6 + Z/6"
-wait_for "Lefschetz, Nielsen, Reidemeister: not defined"
+wait_for "on Gc: Reidemeister 6"
+wait_for "T: order 216"
+wait_for "(t: the layer has torsion)"
 keys e C-u
 type_text "b"
 keys Enter

@@ -282,6 +282,11 @@ int cli_report(int argc, char **argv)
     flint_free(out);
     if (A->has_map && !A->valid)
         status = 1;
+    else if (A->has_map && A->limit_hit) {
+        /* the report is written, but a named counting limit left a number out */
+        fprintf(stderr, "nilstep report: %s\n", A->limit->msg);
+        status = 3;
+    }
 done:
     analysis_clear(A);
     pres_clear(G);

@@ -132,7 +132,9 @@ static void draw_images(explorer_app *app, int y0, int rows)
 
 static void table_header(explorer_app *app, int y)
 {
-    paint_text(y - 1, 0, COLS, ROLE_HEADING, "Layers of the lower central series");
+    int x = paint_text(y - 1, 0, COLS, ROLE_HEADING, "Layers of the lower central series");
+    if (app->A->has_group && !app->A->layers_torsion_free)
+        paint_text(y - 1, x, COLS - x, ROLE_DIM, "  (t: the layer has torsion)");
     paint_fill(y, 0, COLS, ROLE_NORMAL);
     paint_text(y, COL_J, W_J, ROLE_HEADING, "  j");
     paint_text(y, COL_LAYER, W_LAYER, ROLE_HEADING, "layer");
@@ -187,6 +189,8 @@ static void draw_table(explorer_app *app, int y0, int rows)
         paint_text(y, 0, 2, role, sel ? "> " : "  ");
         paint_textf(y, COL_J, W_J, role, "%3ld", (long)(j + 1));
         paint_text(y, COL_LAYER, W_LAYER - 1, role, L->group_str ? L->group_str : "?");
+        if (L->ntors > 0) /* a torsion row: its torsion goes to T or to Gc/T */
+            paint_text(y, COL_J + W_J, 1, sel ? role : ROLE_MARKER, "t");
         if (valid && L->rho_str) {
             number_cell(y, COL_RHO, W_RHO, role, L->rho_str, A->upper_layer == j + 1 ? "U" : NULL);
             number_cell(y, COL_ROOT, W_ROOT, role, L->root_bound_str,
@@ -238,19 +242,44 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
     paint_textf(y, x, COLS - x, ROLE_DIM, " (j=%ld)", (long)A->upper_layer);
     paint_textf(y + 1, 8, COLS - 8, ROLE_DIM, "%s", A->growth_reason ? A->growth_reason : "");
 
-    paint_text(y + 2, 0, COLS, ROLE_HEADING, "Invariants");
+    int hx = paint_text(y + 2, 0, COLS, ROLE_HEADING, "Invariants");
+    if (!A->layers_torsion_free) {
+        /* T and the layers of Gc/T on the heading line */
+        const torsion_struct *T = A->tors;
+        char line[256];
+        size_t k = 0;
+        char *o = fmpz_get_str(NULL, 10, T->order);
+        k += (size_t)snprintf(line, sizeof line, "   T: order %.40s%s   Gc/T:", o,
+                              T->finite ? " (Gc finite)" : "");
+        flint_free(o);
+        for (slong j = 0; j < A->nlayers && k + 24 < sizeof line; j++) {
+            const analysis_layer_struct *L = A->layers + j;
+            slong nt = j < T->nlayers ? T->q_ntors[j] : 0;
+            k += (size_t)snprintf(line + k, sizeof line - k, "%s ", j ? "," : "");
+            if (L->free_rank)
+                k += (size_t)snprintf(line + k, sizeof line - k, L->free_rank > 1 ? "Z^%ld" : "Z",
+                                      (long)L->free_rank);
+            if (nt)
+                k += (size_t)snprintf(line + k, sizeof line - k, "%s+tors",
+                                      L->free_rank ? "" : "0");
+            if (!L->free_rank && !nt)
+                k += (size_t)snprintf(line + k, sizeof line - k, "0");
+        }
+        paint_text(y + 2, hx, COLS - hx, ROLE_DIM, line);
+    }
     char ent[64] = "not defined", lg[64] = "-";
     if (A->entropy_str)
         numfmt_decimal(ent, sizeof ent, A->entropy_str, SIG_DIGITS);
     if (A->log_growth_str)
         numfmt_decimal(lg, sizeof lg, A->log_growth_str, SIG_DIGITS);
+    const char *ent_label = A->layers_torsion_free ? "entropy" : "entropy (rational layers)";
     if (A->log_growth_str)
         paint_textf(y + 3, 2, COLS - 2, ROLE_NORMAL,
-                    "entropy %s   log growth rate %s (%s entropy of any map inducing it)", ent, lg,
-                    sym(app, "\xE2\x89\xA4", "<="));
+                    "%s %s   log growth rate %s (%s entropy of any map inducing it)", ent_label,
+                    ent, lg, sym(app, "\xE2\x89\xA4", "<="));
     else
-        paint_textf(y + 3, 2, COLS - 2, ROLE_NORMAL, "entropy %s   (growth rate 0: no logarithm)",
-                    ent);
+        paint_textf(y + 3, 2, COLS - 2, ROLE_NORMAL, "%s %s   (growth rate 0: no logarithm)",
+                    ent_label, ent);
     if (A->lefschetz_defined) {
         char *l = fmpz_get_str(NULL, 10, A->lefschetz);
         char *n = fmpz_get_str(NULL, 10, A->nielsen);
@@ -262,9 +291,27 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
             snprintf(r, sizeof r, "%.100s", rs);
             flint_free(rs);
         } else
-            snprintf(r, sizeof r, "not defined");
-        paint_textf(y + 4, 2, COLS - 2, ROLE_NORMAL,
-                    "Lefschetz %.60s   Nielsen %.60s   Reidemeister %s", l, n, r);
+            snprintf(r, sizeof r, "%s", A->limit_hit ? "not computed (limit)" : "not defined");
+        if (A->layers_torsion_free)
+            paint_textf(y + 4, 2, COLS - 2, ROLE_NORMAL,
+                        "Lefschetz %.60s   Nielsen %.60s   Reidemeister %s", l, n, r);
+        else {
+            char fx[96] = "";
+            if (A->tmap->fixed_defined) {
+                char *f = fmpz_get_str(NULL, 10, A->tmap->fixed_elements);
+                snprintf(fx, sizeof fx, "   Fix %.40s", f);
+                flint_free(f);
+            }
+            if (A->tmap->fixed_classes_defined) {
+                char *f = fmpz_get_str(NULL, 10, A->tmap->fixed_classes);
+                size_t k = strlen(fx);
+                snprintf(fx + k, sizeof fx - k, "   fixed classes %.30s", f);
+                flint_free(f);
+            }
+            paint_textf(y + 4, 2, COLS - 2, ROLE_NORMAL,
+                        "on Gc/T: Lefschetz %.40s  Nielsen %.40s   on Gc: Reidemeister %s%s", l, n,
+                        r, fx);
+        }
         flint_free(l);
         flint_free(n);
     } else {
@@ -279,7 +326,9 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
         flint_free(s);
     }
     paint_textf(y + 5, 2, COLS - 2, ROLE_NORMAL,
-                "automorphism %s   injective %s   index %s   hyperbolic %s   expanding %s",
+                A->layers_torsion_free
+                    ? "automorphism %s   injective %s   index %s   hyperbolic %s   expanding %s"
+                    : "automorphism %s   injective (Gc) %s   index %s   hyperbolic %s   expanding %s",
                 yes_no(A->automorphism), A->injective_defined ? yes_no(A->injective) : "-", idx,
                 yes_no(A->hyperbolic),
                 yes_no(A->expanding));
