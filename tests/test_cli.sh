@@ -272,6 +272,17 @@ q = r["torsion_free_quotient"]["layers"]
 assert [(L["free_rank"], L["torsion"]) for L in q] == [(1, []), (0, [])], q
 assert set(q[0]) == set(r["group"]["layers"][0]), "the quotient layers have the group layer keys"
 ' "$tmp/out" || fail "JSON report with torsion: T, Gc/T and the invariants"
+# <a, b | a^8, b^8> at class 4 is a finite group of order 2^21: the report is
+# written, but counting its twisted classes is beyond TORSION_MAX_COUNT.
+expect_status 3 "finite quotient too large to count" \
+    report --group '<a, b | a^8, b^8>' --class 4 --map 'a -> b, b -> a' --format json
+[[ $err == *TORSION_MAX_COUNT* ]] || fail "the counting limit is not named: $err"
+$PY -c '
+import json, sys
+m = json.load(open(sys.argv[1]))["map"]
+assert m["reidemeister"] is None and "TORSION_MAX_COUNT" in m["limit"], m
+assert m["injective"] is True and m["image_index"] == 1, m
+' "$tmp/out" || fail "a counting limit keeps the rest of the report"
 
 # The map object has one key set whether the map is valid or not (values
 # that do not exist are null); without a map there is no "map" key.
