@@ -608,7 +608,12 @@ static void json_map_numbers(strbuf_t b, const analysis_t A)
     json_fmpz_or_null(b, v && M->fixed_defined, M->fixed_elements);
     strbuf_puts(b, ", \"fixed_conjugacy_classes\": ");
     json_fmpz_or_null(b, v && M->fixed_classes_defined, M->fixed_classes);
-    strbuf_puts(b, ",\n   \"computed_on\": {\"entropy\": \"rational layers\", "
+    strbuf_puts(b, ",\n   \"computed_on\": ");
+    if (!v) {
+        strbuf_puts(b, "null");
+        return;
+    }
+    strbuf_puts(b, "{\"entropy\": \"rational layers\", "
                    "\"bounds\": \"rational layers\", \"hyperbolic\": \"rational layers\", "
                    "\"expanding\": \"rational layers\", \"lefschetz\": \"Gc/T\", "
                    "\"nielsen\": \"Gc/T\", \"reidemeister\": \"Gc\", "

@@ -290,7 +290,8 @@ map_keys='["text", "valid", "failures", "images", "layers", "lower_bound",
  "lower_bound_layer", "upper_bound", "upper_bound_layer", "growth_rate",
  "growth_reason", "log_growth_rate", "entropy", "lefschetz", "nielsen",
  "reidemeister", "undefined_reason", "automorphism", "injective", "hyperbolic",
- "expanding", "image_index", "injective_defined", "inverse"]'
+ "expanding", "image_index", "injective_defined", "reidemeister_method", "limit",
+ "fixed_points", "fixed_conjugacy_classes", "computed_on", "inverse"]'
 expect_status 0 "JSON key set, valid map" report --group 'free(2)' --class 2 \
     --map 'a -> a b, b -> b' --format json
 cp "$tmp/out" "$tmp/valid.json"
