@@ -42,7 +42,7 @@ static void layer_map_clear(analysis_layer_struct *L)
     free_strs(L->ev_str, L->nev);
     free_strs(L->ev_abs_str, L->nev);
     if (L->charpoly)
-        _fmpz_vec_clear(L->charpoly, L->free_rank + 1);
+        _fmpz_vec_clear(L->charpoly, L->layer->free_rank + 1);
     L->charpoly_str = L->charpoly_factored_str = L->charpoly_latex = NULL;
     L->rho_str = L->rho_minpoly_str = L->root_bound_str = L->entropy_str = NULL;
     L->ev_str = L->ev_abs_str = NULL;
@@ -124,20 +124,19 @@ static void clear_group(analysis_t A)
     }
     for (slong j = 0; j < A->nlayers; j++) {
         analysis_layer_struct *L = A->layers + j;
-        if (L->ntors)
-            _fmpz_vec_clear(L->torsion, L->ntors);
         free(L->group_str);
-        free_strs(L->basis, L->free_rank);
-        free_strs(L->pc_labels, L->npc);
         fmpz_mat_clear(L->matrix);
         fmpz_mat_clear(L->action);
         fmpz_clear(L->det);
         fmpz_clear(L->det_i_minus);
         spectrum_clear(L->spectrum);
-        layer_clear(L->lcs);
     }
+    for (slong j = A->nq->class_reached; j < A->nlayers; j++)
+        layer_clear(A->trivial_layers + j - A->nq->class_reached);
     free(A->layers);
+    flint_free(A->trivial_layers);
     A->layers = NULL;
+    A->trivial_layers = NULL;
     A->nlayers = 0;
     A->has_group = 0;
     torsion_clear(A->tors);
@@ -207,35 +206,29 @@ ns_status analysis_set_group(analysis_t A, const pres_t G, slong c, const ns_pro
     A->class_requested = c;
     A->nlayers = c;
     A->layers = calloc((size_t)c, sizeof(analysis_layer_struct));
+    slong reached = A->nq->class_reached;
+    A->trivial_layers = flint_malloc(FLINT_MAX(c - reached, 1) * sizeof(layer_struct));
     A->layers_torsion_free = 1;
     for (slong j = 1; j <= c; j++) {
         analysis_layer_struct *L = A->layers + j - 1;
-        L->weight = j;
         fmpz_mat_init(L->matrix, 0, 0);
         fmpz_mat_init(L->action, 0, 0);
         fmpz_init(L->det);
         fmpz_init(L->det_i_minus);
         spectrum_init(L->spectrum);
-        layer_init(L->lcs);
-        if (j <= A->nq->class_reached) {
-            const nq_layer_struct *N = A->nq->layers + j - 1;
-            L->npc = N->count;
-            L->free_rank = N->free_rank;
-            L->ntors = N->ntors;
-            if (N->ntors) {
-                L->torsion = _fmpz_vec_init(N->ntors);
-                _fmpz_vec_set(L->torsion, N->torsion, N->ntors);
-                A->layers_torsion_free = 0;
-            }
-            layer_compute(L->lcs, A->nq, j);
-            L->basis = malloc(FLINT_MAX(L->free_rank, 1) * sizeof(char *));
-            for (slong k = 0; k < L->free_rank; k++)
-                L->basis[k] = dup_str(L->lcs->basis[k]);
-            L->pc_labels = malloc(FLINT_MAX(L->npc, 1) * sizeof(char *));
-            for (slong k = 0; k < L->npc; k++)
-                L->pc_labels[k] = dup_str(A->nq->labels[N->start + k]);
+        if (j <= reached) {
+            L->layer = A->nq->layers + j - 1;
+            layer_ensure_coords(L->layer);
+        } else {
+            layer_struct *T = A->trivial_layers + j - 1 - reached;
+            layer_init(T);
+            layer_set(T, A->nq->pcp, j, A->nq->pcp->n, 0, A->nq->labels);
+            layer_ensure_coords(T);
+            L->layer = T;
         }
-        L->group_str = group_string(L->free_rank, L->torsion, L->ntors);
+        if (L->layer->ntors)
+            A->layers_torsion_free = 0;
+        L->group_str = group_string(L->layer->free_rank, L->layer->torsion, L->layer->ntors);
     }
     if (!A->layers_torsion_free) {
         slong cr = A->nq->class_reached;
@@ -314,12 +307,12 @@ static void mat_column(fmpz *v, const fmpz_mat_t M, slong k)
  * order kills the layer if anything does. */
 static int layer_map_nilpotent(const analysis_layer_struct *L)
 {
-    slong cnt = L->lcs->count;
+    slong cnt = L->layer->count;
     if (cnt == 0)
         return 1;
     slong N = cnt + 1;
-    for (slong t = 0; t < L->ntors; t++)
-        N += fmpz_bits(L->torsion + t);
+    for (slong t = 0; t < L->layer->ntors; t++)
+        N += fmpz_bits(L->layer->torsion + t);
     fmpz_mat_t P;
     fmpz_mat_init(P, cnt, cnt);
     fmpz_mat_pow(P, L->action, (ulong)N);
@@ -327,7 +320,7 @@ static int layer_map_nilpotent(const analysis_layer_struct *L)
     fmpz *v = _fmpz_vec_init(cnt);
     for (slong k = 0; k < cnt && nil; k++) {
         mat_column(v, P, k);
-        nil = layer_is_trivial_vec(L->lcs, v);
+        nil = layer_is_trivial_vec(L->layer, v);
     }
     _fmpz_vec_clear(v, cnt);
     fmpz_mat_clear(P);
@@ -338,7 +331,7 @@ static int layer_map_nilpotent(const analysis_layer_struct *L)
  * together span Z^cnt, i.e. every column gets pivot 1. */
 static int layer_map_onto(const analysis_layer_struct *L)
 {
-    slong cnt = L->lcs->count;
+    slong cnt = L->layer->count;
     if (cnt == 0)
         return 1;
     elim_t E;
@@ -348,8 +341,8 @@ static int layer_map_onto(const analysis_layer_struct *L)
         mat_column(v, L->action, k);
         elim_add_dense(E, v);
     }
-    for (slong k = 0; k < L->lcs->nfinite; k++)
-        elim_add_dense(E, L->lcs->rel->rows[k]);
+    for (slong k = 0; k < L->layer->nfinite; k++)
+        elim_add_dense(E, L->layer->rel->rows[k]);
     int onto = 1;
     for (slong k = 0; k < cnt; k++)
         if (!fmpz_is_one(elim_pivot(E, k)))
@@ -375,17 +368,18 @@ static ns_status analyse_layers(analysis_t A, const ns_progress_t *progress, nse
     for (slong j = 1; j <= A->nlayers && st == NS_OK; j++) {
         analysis_layer_struct *L = A->layers + j - 1;
         if (j <= c) {
-            endo_layer_matrices(L->action, L->matrix, A->endo, L->lcs);
+            slong cnt = L->layer->count;
+            endo_layer_matrices(L->action, L->matrix, A->endo, L->layer);
             /* show the action by canonical representatives modulo the
              * layer's relations, so that torsion entries stay small */
-            fmpz *v = _fmpz_vec_init(FLINT_MAX(L->npc, 1));
-            for (slong k = 0; k < L->npc; k++) {
+            fmpz *v = _fmpz_vec_init(FLINT_MAX(cnt, 1));
+            for (slong k = 0; k < cnt; k++) {
                 mat_column(v, L->action, k);
-                layer_reduce_vec(L->lcs, v);
-                for (slong i = 0; i < L->npc; i++)
+                layer_reduce_vec(L->layer, v);
+                for (slong i = 0; i < cnt; i++)
                     fmpz_set(fmpz_mat_entry(L->action, i, k), v + i);
             }
-            _fmpz_vec_clear(v, FLINT_MAX(L->npc, 1));
+            _fmpz_vec_clear(v, FLINT_MAX(cnt, 1));
         }
         if (progress && ns_progress_report(progress, "spectra", (double)j / (double)A->nlayers)) {
             st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");

@@ -28,18 +28,14 @@
 #define ANALYSIS_DIGITS 30 /* significant digits of the decimal strings */
 
 typedef struct {
-    /* the layer as a group */
-    slong weight;
-    slong npc;             /* pc generators of this layer */
-    slong free_rank;
-    slong ntors;
-    fmpz *torsion;         /* invariant factors d_1 | d_2 | ... (> 1) */
+    /* the layer as a group: the quotient's own (A->nq->layers[j-1]), or for
+     * j > class_reached a trivial layer owned by the analysis; borrowed, with
+     * its coordinates computed */
+    const layer_struct *layer;
     char *group_str;       /* "Z^5", "Z^2 + Z/2 + Z/4", "0" */
-    char **basis;          /* free_rank labels of the free-part basis, e.g. "[b,a,a]" */
-    char **pc_labels;      /* npc labels of the layer's pc generators */
     /* the map on it (only when the analysis has a valid map) */
     fmpz_mat_t matrix;     /* free_rank x free_rank; column k = image of basis k */
-    fmpz_mat_t action;     /* npc x npc: images of the layer's pc generators,
+    fmpz_mat_t action;     /* count x count: images of the layer's pc generators,
                               modulo the layer's power relations */
     char *charpoly_str;    /* "x^2 - 3*x + 1" */
     char *charpoly_factored_str; /* "(x - 1)^2*(x^2 - 3*x + 1)" */
@@ -57,7 +53,6 @@ typedef struct {
     slong n_above_one;     /* |lambda| > 1 */
     char *entropy_str;     /* sum of log|lambda| over |lambda| > 1 */
     spectrum_t spectrum;   /* the full spectral data of matrix */
-    layer_t lcs;           /* coordinates on the free part (internal) */
 } analysis_layer_struct;
 
 typedef enum {
@@ -75,6 +70,7 @@ typedef struct {
     slong class_requested;
     slong nlayers;               /* = class_requested (trivial layers included) */
     analysis_layer_struct *layers;
+    layer_struct *trivial_layers; /* layers class_reached+1 .. class_requested */
     int layers_torsion_free;     /* every layer torsion-free */
     torsion_t tors;              /* the torsion subgroup T and the layers of
                                     Gc/T (torsion.h); T = 1 when every layer

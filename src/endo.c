@@ -26,7 +26,7 @@ void endo_clear(endo_t E)
 /* The layer-j coordinates (cnt entries, added with factor f) of [a_p, a_q]
  * for p of weight j-1 and q of weight 1, from the conjugate relation
  * a_p^(a_q) = a_p [a_p, a_q]. */
-static void comm_coords_addmul(fmpz *v, const nq_t Q, const nq_layer_struct *L, slong p,
+static void comm_coords_addmul(fmpz *v, const nq_t Q, const layer_struct *L, slong p,
                                slong q, const fmpz_t f)
 {
     const pcp_struct *P = Q->pcp;
@@ -61,7 +61,7 @@ static void layer_actions(endo_t E, const nq_t Q)
     fmpz_t f;
     fmpz_init(f);
     for (slong j = 0; j < c; j++) {
-        const nq_layer_struct *L = Q->layers + j;
+        const layer_struct *L = Q->layers + j;
         fmpz_mat_init(E->act + j, L->count, L->count);
         fmpz *col = _fmpz_vec_init(FLINT_MAX(L->count, 1));
         for (slong k = 0; k < L->count; k++) {
@@ -70,7 +70,7 @@ static void layer_actions(endo_t E, const nq_t Q)
             if (j == 0) {
                 _fmpz_vec_set(col, E->gen_img + d->a * n + L->start, L->count);
             } else {
-                const nq_layer_struct *L0 = Q->layers + j - 1, *L1 = Q->layers;
+                const layer_struct *L0 = Q->layers + j - 1, *L1 = Q->layers;
                 const fmpz_mat_struct *A0 = E->act + j - 1, *A1 = E->act;
                 slong ca = d->a - L0->start, cb = d->b - L1->start;
                 for (slong p = 0; p < L0->count; p++) {
@@ -257,6 +257,7 @@ ns_status endo_pow(endo_t out, const endo_t a, ulong k, const nq_t Q,
 void endo_layer_matrices(fmpz_mat_t A, fmpz_mat_t M, const endo_t E, const layer_t L)
 {
     slong cnt = L->count, r = L->free_rank;
+    layer_ensure_coords(L);
     fmpz_mat_clear(A);
     fmpz_mat_init(A, cnt, cnt);
     if (L->weight >= 1 && L->weight <= E->nlayers)
@@ -277,33 +278,41 @@ ns_status endo_inverse(endo_t out, const endo_t a, const nq_t Q, const ns_progre
 {
     slong n = Q->pcp->n, X = Q->pres->gens->n, c = Q->class_reached;
     for (slong j = 0; j < c; j++)
-        if (Q->layers[j].free_rank != Q->layers[j].count)
+        if (Q->layers[j].ntors > 0)
             return nserr_set(err, NS_ERR_INPUT, 0, 0,
                              "inverse maps are computed only when every layer is torsion-free");
-    /* Invert each layer matrix (unimodular for an automorphism). */
-    fmpz_mat_struct *inv = flint_malloc(FLINT_MAX(c, 1) * sizeof(fmpz_mat_struct));
+    /* Each layer is then Z^free_rank through phi; invert the matrix M_j
+     * there (unimodular for an automorphism).  The layer-j step of an
+     * inverse image is sigma M_j^-1 phi. */
+    fmpz_mat_struct *step = flint_malloc(FLINT_MAX(c, 1) * sizeof(fmpz_mat_struct));
     ns_status st = NS_OK;
     slong made = 0;
     for (slong j = 0; j < c; j++, made++) {
-        layer_t L;
-        fmpz_mat_t A, M;
+        const layer_struct *L = Q->layers + j;
+        slong r = L->free_rank;
+        fmpz_mat_t A, M, Mi, T;
         fmpz_t den;
-        layer_init(L);
-        layer_compute(L, Q, j + 1);
         fmpz_mat_init(A, 0, 0);
         fmpz_mat_init(M, 0, 0);
+        fmpz_mat_init(Mi, r, r);
+        fmpz_mat_init(T, r, L->count);
         fmpz_init(den);
         endo_layer_matrices(A, M, a, L);
-        fmpz_mat_init(inv + j, L->count, L->count);
-        int ok = L->count == 0 || fmpz_mat_inv(inv + j, den, A);
-        if (ok && L->count && !fmpz_is_pm1(den))
+        fmpz_mat_init(step + j, L->count, L->count);
+        int ok = r == 0 || fmpz_mat_inv(Mi, den, M);
+        if (ok && r && !fmpz_is_pm1(den))
             ok = 0;
-        if (ok && L->count && fmpz_sgn(den) < 0)
-            fmpz_mat_neg(inv + j, inv + j);
+        if (ok && r && fmpz_sgn(den) < 0)
+            fmpz_mat_neg(Mi, Mi);
+        if (ok && r) {
+            fmpz_mat_mul(T, Mi, L->phi);
+            fmpz_mat_mul(step + j, L->sigma, T);
+        }
         fmpz_clear(den);
         fmpz_mat_clear(A);
         fmpz_mat_clear(M);
-        layer_clear(L);
+        fmpz_mat_clear(Mi);
+        fmpz_mat_clear(T);
         if (!ok) {
             st = nserr_set(err, NS_ERR_INPUT, 0, 0,
                            "the map is not an automorphism: layer %ld is not mapped onto itself",
@@ -327,11 +336,11 @@ ns_status endo_inverse(endo_t out, const endo_t a, const nq_t Q, const ns_progre
             endo_apply(a, Q, h, y, W);
             pcp_elt_inv(W, h, h);
             pcp_elt_mul(W, h, h, g);
-            const nq_layer_struct *NL = Q->layers + j;
+            const layer_struct *NL = Q->layers + j;
             _fmpz_vec_zero(z, n);
             for (slong i = 0; i < NL->count; i++)
                 for (slong k = 0; k < NL->count; k++)
-                    fmpz_addmul(z + NL->start + i, fmpz_mat_entry(inv + j, i, k),
+                    fmpz_addmul(z + NL->start + i, fmpz_mat_entry(step + j, i, k),
                                 h + NL->start + k);
             pcp_elt_mul(W, y, y, z);
         }
@@ -341,8 +350,8 @@ ns_status endo_inverse(endo_t out, const endo_t a, const nq_t Q, const ns_progre
         st = W->overflow ? nserr_set(err, NS_ERR_CANCELLED, 0, 0, "inversion stopped")
                          : endo_set_elts(out, Q, img, progress, err);
     for (slong j = 0; j < made && j < c; j++)
-        fmpz_mat_clear(inv + j);
-    flint_free(inv);
+        fmpz_mat_clear(step + j);
+    flint_free(step);
     _fmpz_vec_clear(img, FLINT_MAX(X * n, 1));
     _fmpz_vec_clear(y, FLINT_MAX(n, 1));
     _fmpz_vec_clear(h, FLINT_MAX(n, 1));

@@ -14,9 +14,12 @@ void layer_init(layer_t L)
 
 void layer_clear(layer_t L)
 {
-    for (slong k = 0; k < L->free_rank; k++)
-        flint_free(L->basis[k]);
+    if (L->basis)
+        for (slong k = 0; k < L->free_rank; k++)
+            flint_free(L->basis[k]);
     flint_free(L->basis);
+    if (L->torsion)
+        _fmpz_vec_clear(L->torsion, FLINT_MAX(L->ntors, 1));
     fmpz_mat_clear(L->rel);
     fmpz_mat_clear(L->phi);
     fmpz_mat_clear(L->sigma);
@@ -47,37 +50,68 @@ static char *vec_label(const fmpz *v, slong n, char *const *labels)
     return s;
 }
 
-void layer_compute(layer_t L, const nq_t Q, slong j)
+void layer_set(layer_t L, const pcp_t P, slong j, slong start, slong count,
+               char *const *labels)
 {
     layer_clear(L);
     layer_init(L);
-    const pcp_struct *P = Q->pcp;
-    const nq_layer_struct *NL = Q->layers + j - 1;
-    slong s = NL->start, cnt = NL->count, f = cnt - NL->free_rank, r = NL->free_rank;
+    slong f = 0;
+    for (slong k = start; k < start + count; k++)
+        if (!fmpz_is_zero(P->relorder + k))
+            f++;
     L->weight = j;
-    L->start = s;
-    L->count = cnt;
+    L->start = start;
+    L->count = count;
     L->nfinite = f;
-    L->free_rank = r;
+    L->free_rank = count - f;
+    L->pc_labels = labels + start;
     fmpz_mat_clear(L->rel);
-    fmpz_mat_clear(L->phi);
-    fmpz_mat_clear(L->sigma);
-    fmpz_mat_init(L->rel, f, cnt);
-    fmpz_mat_init(L->phi, r, cnt);
-    fmpz_mat_init(L->sigma, cnt, r);
+    fmpz_mat_init(L->rel, f, count);
     slong row = 0;
-    for (slong k = s; k < s + cnt; k++) {
+    for (slong k = start; k < start + count; k++) {
         if (fmpz_is_zero(P->relorder + k))
             continue;
-        fmpz_set(fmpz_mat_entry(L->rel, row, k - s), P->relorder + k);
+        fmpz_set(fmpz_mat_entry(L->rel, row, k - start), P->relorder + k);
         const pcw_struct *w = P->pow + k;
         for (slong t = 0; t < w->len; t++)
-            if (w->gen[t] < s + cnt)
-                fmpz_sub(fmpz_mat_entry(L->rel, row, w->gen[t] - s),
-                         fmpz_mat_entry(L->rel, row, w->gen[t] - s), w->exp + t);
+            if (w->gen[t] < start + count)
+                fmpz_sub(fmpz_mat_entry(L->rel, row, w->gen[t] - start),
+                         fmpz_mat_entry(L->rel, row, w->gen[t] - start), w->exp + t);
         row++;
     }
+    if (f == 0)
+        return;
+    /* The invariants come from the Smith form of the whole relation block,
+     * not from the relative orders. */
+    fmpz_mat_t S;
+    fmpz_mat_init(S, f, count);
+    fmpz_mat_snf(S, L->rel);
+    slong nt = 0;
+    for (slong k = 0; k < f; k++)
+        if (!fmpz_is_one(fmpz_mat_entry(S, k, k)))
+            nt++;
+    L->ntors = nt;
+    if (nt > 0) {
+        L->torsion = _fmpz_vec_init(nt);
+        nt = 0;
+        for (slong k = 0; k < f; k++)
+            if (!fmpz_is_one(fmpz_mat_entry(S, k, k)))
+                fmpz_abs(L->torsion + nt++, fmpz_mat_entry(S, k, k));
+    }
+    fmpz_mat_clear(S);
+}
+
+void layer_ensure_coords(const layer_t Lc)
+{
+    if (Lc->has_coords)
+        return;
+    layer_struct *L = (layer_struct *)Lc; /* the cache of a logically const layer */
+    slong cnt = L->count, f = L->nfinite, r = L->free_rank;
+    fmpz_mat_clear(L->phi);
+    fmpz_mat_clear(L->sigma);
     fmpz_mat_clear(L->hnf);
+    fmpz_mat_init(L->phi, r, cnt);
+    fmpz_mat_init(L->sigma, cnt, r);
     fmpz_mat_init(L->hnf, f, cnt);
     if (f > 0)
         fmpz_mat_hnf(L->hnf, L->rel);
@@ -114,13 +148,15 @@ void layer_compute(layer_t L, const nq_t Q, slong j)
     for (slong k = 0; k < r; k++) {
         for (slong b = 0; b < cnt; b++)
             fmpz_set(v + b, fmpz_mat_entry(L->sigma, b, k));
-        L->basis[k] = vec_label(v, cnt, Q->labels + s);
+        L->basis[k] = vec_label(v, cnt, L->pc_labels);
     }
     _fmpz_vec_clear(v, FLINT_MAX(cnt, 1));
+    L->has_coords = 1;
 }
 
 void layer_reduce_vec(const layer_t L, fmpz *v)
 {
+    layer_ensure_coords(L);
     fmpz_t q;
     fmpz_init(q);
     slong p = 0;

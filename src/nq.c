@@ -4,6 +4,7 @@
 #include <flint/fmpz_mat.h>
 #include "elim.h"
 #include "nq.h"
+#include "strbuf.h"
 
 /* Limits that keep a run inside time and memory.  Measured on the free
  * group of rank 2: the step to class 12 (from 412 pc generators) takes about
@@ -29,8 +30,7 @@ void nq_init(nq_t Q)
 static void free_layers(nq_t Q)
 {
     for (slong j = 0; j < Q->nlayers; j++)
-        if (Q->layers[j].ntors)
-            _fmpz_vec_clear(Q->layers[j].torsion, Q->layers[j].ntors);
+        layer_clear(Q->layers + j);
     flint_free(Q->layers);
     Q->layers = NULL;
     Q->nlayers = 0;
@@ -548,72 +548,33 @@ static char *make_label(const char *x, const char *y)
     return s;
 }
 
+/* The labels of the pc generators, then the layers (which keep a pointer
+ * to their labels). */
 static void compute_layers(nq_t Q)
 {
     const pcp_struct *P = Q->pcp;
     slong c = Q->class_reached;
-    free_layers(Q);
-    Q->nlayers = c;
-    Q->layers = flint_calloc(FLINT_MAX(c, 1), sizeof(nq_layer_struct));
-    Q->hirsch_length = 0;
-    slong g = 0;
-    for (slong j = 1; j <= c; j++) {
-        nq_layer_struct *L = Q->layers + j - 1;
-        L->weight = j;
-        L->start = g;
-        while (g < P->n && P->weight[g] == j)
-            g++;
-        L->count = g - L->start;
-        slong f = 0;
-        for (slong k = L->start; k < g; k++)
-            if (!fmpz_is_zero(P->relorder + k))
-                f++;
-        L->free_rank = L->count - f;
-        Q->hirsch_length += L->free_rank;
-        if (f == 0)
-            continue;
-        /* The layer's invariants come from the Smith form of its whole
-         * power-relation block, not from the relative orders. */
-        fmpz_mat_t A, S;
-        fmpz_mat_init(A, f, L->count);
-        fmpz_mat_init(S, f, L->count);
-        slong r = 0;
-        for (slong k = L->start; k < g; k++) {
-            if (fmpz_is_zero(P->relorder + k))
-                continue;
-            fmpz_set(fmpz_mat_entry(A, r, k - L->start), P->relorder + k);
-            const pcw_struct *w = P->pow + k;
-            for (slong t = 0; t < w->len; t++)
-                if (w->gen[t] < g)
-                    fmpz_sub(fmpz_mat_entry(A, r, w->gen[t] - L->start),
-                             fmpz_mat_entry(A, r, w->gen[t] - L->start), w->exp + t);
-            r++;
-        }
-        fmpz_mat_snf(S, A);
-        slong nt = 0;
-        for (slong k = 0; k < f; k++)
-            if (!fmpz_is_one(fmpz_mat_entry(S, k, k)))
-                nt++;
-        L->ntors = nt;
-        L->torsion = _fmpz_vec_init(FLINT_MAX(nt, 1));
-        nt = 0;
-        for (slong k = 0; k < f; k++)
-            if (!fmpz_is_one(fmpz_mat_entry(S, k, k)))
-                fmpz_abs(L->torsion + nt++, fmpz_mat_entry(S, k, k));
-        if (nt == 0)
-            _fmpz_vec_clear(L->torsion, 1);
-        fmpz_mat_clear(A);
-        fmpz_mat_clear(S);
-    }
     Q->labels = flint_malloc(FLINT_MAX(P->n, 1) * sizeof(char *));
     for (slong k = 0; k < P->n; k++) {
         const pcp_def_struct *d = P->def + k;
-        if (d->kind == PCP_DEF_IMAGE) {
-            const char *nm = Q->pres->gens->name[d->a];
-            Q->labels[k] = flint_malloc(strlen(nm) + 1);
-            strcpy(Q->labels[k], nm);
-        } else
+        if (d->kind == PCP_DEF_IMAGE)
+            Q->labels[k] = strbuf_dup_str(Q->pres->gens->name[d->a]);
+        else
             Q->labels[k] = make_label(Q->labels[d->a], Q->labels[d->b]);
+    }
+    free_layers(Q);
+    Q->nlayers = c;
+    Q->layers = flint_malloc(FLINT_MAX(c, 1) * sizeof(layer_struct));
+    Q->hirsch_length = 0;
+    slong g = 0;
+    for (slong j = 1; j <= c; j++) {
+        layer_struct *L = Q->layers + j - 1;
+        slong start = g;
+        while (g < P->n && P->weight[g] == j)
+            g++;
+        layer_init(L);
+        layer_set(L, P, j, start, g - start, Q->labels);
+        Q->hirsch_length += L->free_rank;
     }
 }
 

@@ -27,17 +27,9 @@
 #ifndef NILSTEP_NQ_H
 #define NILSTEP_NQ_H
 
+#include "layer.h"
 #include "pcp.h"
 #include "pres.h"
-
-/* Layer j = gamma_j / gamma_(j+1) = Z^free_rank + Z/d_1 + ... + Z/d_k. */
-typedef struct {
-    slong weight;
-    slong start, count;  /* its pc generators: start .. start+count-1 */
-    slong free_rank;
-    slong ntors;
-    fmpz *torsion;       /* ntors invariant factors d_1 | d_2 | ..., all > 1 */
-} nq_layer_struct;
 
 typedef struct {
     pres_t pres;           /* a copy of the input presentation */
@@ -46,8 +38,11 @@ typedef struct {
     int stabilised;        /* 1: gamma_(class_reached+1) is known trivial */
     pcp_t pcp;             /* the class-(class_reached) quotient */
     fmpz *images;          /* pres->gens.n rows of pcp.n: the generators' images */
-    slong nlayers;
-    nq_layer_struct *layers;
+    slong nlayers;         /* = class_reached */
+    layer_struct *layers;  /* layer j = gamma_j / gamma_(j+1) is layers[j-1],
+                              computed once here and borrowed by everyone
+                              else (their coordinates on first use:
+                              layer_ensure_coords) */
     char **labels;         /* pcp.n labels: "a", "[b,a]", "[b,a,a]" */
     slong hirsch_length;
 } nq_struct;

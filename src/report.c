@@ -302,9 +302,9 @@ static void report_text(strbuf_t b, const analysis_t A, const char *title)
     strbuf_puts(b, "layer  group                basis of the free part\n");
     for (slong j = 0; j < A->nlayers; j++) {
         const analysis_layer_struct *L = A->layers + j;
-        strbuf_printf(b, "%5ld  %-20s ", (long)L->weight, L->group_str);
-        for (slong k = 0; k < L->free_rank; k++)
-            strbuf_printf(b, "%s%s", k ? ", " : "", L->basis[k]);
+        strbuf_printf(b, "%5ld  %-20s ", (long)L->layer->weight, L->group_str);
+        for (slong k = 0; k < L->layer->free_rank; k++)
+            strbuf_printf(b, "%s%s", k ? ", " : "", L->layer->basis[k]);
         strbuf_puts(b, "\n");
     }
     free(pres);
@@ -327,12 +327,12 @@ static void report_text(strbuf_t b, const analysis_t A, const char *title)
         strbuf_printf(b, "              %s -> %s\n", Q->pres->gens->name[x], A->gen_image_str[x]);
     for (slong j = 0; j < A->nlayers; j++) {
         const analysis_layer_struct *L = A->layers + j;
-        strbuf_printf(b, "\nlayer %ld: %s\n", (long)L->weight, L->group_str);
-        if (L->ntors > 0 && L->npc > 0) {
+        strbuf_printf(b, "\nlayer %ld: %s\n", (long)L->layer->weight, L->group_str);
+        if (L->layer->ntors > 0 && L->layer->count > 0) {
             strbuf_puts(b, "  action on the layer's pc generators (modulo its power relations)\n");
             text_matrix(b, L->action, "    ");
         }
-        if (L->free_rank == 0)
+        if (L->layer->free_rank == 0)
             continue;
         strbuf_puts(b, "  matrix\n");
         text_matrix(b, L->matrix, "    ");
@@ -340,7 +340,7 @@ static void report_text(strbuf_t b, const analysis_t A, const char *title)
         strbuf_printf(b, "  rho           %s\n", L->rho_str);
         if (L->rho_minpoly_str)
             strbuf_printf(b, "  rho is a root of %s\n", L->rho_minpoly_str);
-        strbuf_printf(b, "  rho^(1/%ld)     %s\n", (long)L->weight, L->root_bound_str);
+        strbuf_printf(b, "  rho^(1/%ld)     %s\n", (long)L->layer->weight, L->root_bound_str);
         strbuf_puts(b, "  det           ");
         put_fmpz(b, L->det);
         strbuf_puts(b, "\n  det(I - M)    ");
@@ -469,19 +469,19 @@ static void json_group(strbuf_t b, const analysis_t A, const char *title)
     for (slong j = 0; j < A->nlayers; j++) {
         const analysis_layer_struct *L = A->layers + j;
         strbuf_printf(b, "%s\n     {\"weight\": %ld, \"free_rank\": %ld, \"torsion\": [",
-                      j ? "," : "", (long)L->weight, (long)L->free_rank);
-        for (slong t = 0; t < L->ntors; t++) {
+                      j ? "," : "", (long)L->layer->weight, (long)L->layer->free_rank);
+        for (slong t = 0; t < L->layer->ntors; t++) {
             if (t)
                 strbuf_puts(b, ", ");
-            put_fmpz(b, L->torsion + t);
+            put_fmpz(b, L->layer->torsion + t);
         }
         strbuf_puts(b, "], \"group\": ");
         strbuf_put_json_str(b, L->group_str);
-        strbuf_printf(b, ", \"pc_generators\": %ld, \"basis\": [", (long)L->npc);
-        for (slong k = 0; k < L->free_rank; k++) {
+        strbuf_printf(b, ", \"pc_generators\": %ld, \"basis\": [", (long)L->layer->count);
+        for (slong k = 0; k < L->layer->free_rank; k++) {
             if (k)
                 strbuf_puts(b, ", ");
-            strbuf_put_json_str(b, L->basis[k]);
+            strbuf_put_json_str(b, L->layer->basis[k]);
         }
         strbuf_puts(b, "]}");
     }
@@ -519,10 +519,10 @@ static void json_map_layers(strbuf_t b, const analysis_t A)
     strbuf_puts(b, ",\n   \"layers\": [");
     for (slong j = 0; A->valid && j < A->nlayers; j++) {
         const analysis_layer_struct *L = A->layers + j;
-        strbuf_printf(b, "%s\n     {\"weight\": %ld, \"matrix\": ", j ? "," : "", (long)L->weight);
+        strbuf_printf(b, "%s\n     {\"weight\": %ld, \"matrix\": ", j ? "," : "", (long)L->layer->weight);
         json_matrix(b, L->matrix);
         strbuf_puts(b, ", \"charpoly\": [");
-        for (slong k = 0; k <= L->free_rank; k++) {
+        for (slong k = 0; k <= L->layer->free_rank; k++) {
             if (k)
                 strbuf_puts(b, ", ");
             put_fmpz(b, L->charpoly + k);
@@ -684,15 +684,15 @@ static void latex_group(strbuf_t b, const analysis_layer_struct *L)
 {
     strbuf_puts(b, "$");
     int any = 0;
-    if (L->free_rank > 0) {
+    if (L->layer->free_rank > 0) {
         strbuf_puts(b, "\\mathbb{Z}");
-        if (L->free_rank > 1)
-            strbuf_printf(b, "^{%ld}", (long)L->free_rank);
+        if (L->layer->free_rank > 1)
+            strbuf_printf(b, "^{%ld}", (long)L->layer->free_rank);
         any = 1;
     }
-    for (slong t = 0; t < L->ntors; t++) {
+    for (slong t = 0; t < L->layer->ntors; t++) {
         strbuf_puts(b, any ? " \\oplus \\mathbb{Z}/" : "\\mathbb{Z}/");
-        put_fmpz(b, L->torsion + t);
+        put_fmpz(b, L->layer->torsion + t);
         any = 1;
     }
     if (!any)
@@ -733,7 +733,7 @@ static void report_latex(strbuf_t b, const analysis_t A, const char *title)
         strbuf_puts(b, "\\begin{tabular}{cl}\n$j$ & $\\gamma_j/\\gamma_{j+1}$ \\\\\n\\hline\n");
     for (slong j = 0; j < A->nlayers; j++) {
         const analysis_layer_struct *L = A->layers + j;
-        strbuf_printf(b, "%ld & ", (long)L->weight);
+        strbuf_printf(b, "%ld & ", (long)L->layer->weight);
         latex_group(b, L);
         if (maps) {
             strbuf_puts(b, " & ");

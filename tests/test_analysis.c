@@ -234,7 +234,7 @@ static void torus_lefschetz_and_reidemeister(void **state)
             assert_true(A->nq->stabilised);
         assert_int_equal(A->nq->hirsch_length, n);
         for (slong j = 2; j <= c; j++)
-            assert_int_equal(A->layers[j - 1].free_rank, 0);
+            assert_int_equal(A->layers[j - 1].layer->free_rank, 0);
 
         fmpz_mat_t M;
         fmpz_mat_init(M, n, n);
@@ -331,10 +331,10 @@ static void free_nilpotent_brandt_traces(void **state)
             fmpz_set_si(f + d, r);
         for (slong j = 1; j <= c; j++) {
             necklace_sum(want, f, (ulong)j);
-            if (fmpz_get_si(want) != A->layers[j - 1].free_rank || A->layers[j - 1].ntors)
+            if (fmpz_get_si(want) != A->layers[j - 1].layer->free_rank || A->layers[j - 1].layer->ntors)
                 fail_msg("%s layer %ld: free rank %ld (+%ld torsion), Witt's formula gives %ld",
-                         g[gi].pres, (long)j, (long)A->layers[j - 1].free_rank,
-                         (long)A->layers[j - 1].ntors, fmpz_get_si(want));
+                         g[gi].pres, (long)j, (long)A->layers[j - 1].layer->free_rank,
+                         (long)A->layers[j - 1].layer->ntors, fmpz_get_si(want));
         }
         /* Brandt */
         fmpz_mat_t M, P;
@@ -361,7 +361,7 @@ static void free_nilpotent_brandt_traces(void **state)
                     fail_msg("%s layer %ld: trace %ld, Brandt's formula gives %ld (map %s)",
                              g[gi].pres, (long)j, fmpz_get_si(got), fmpz_get_si(want), map);
                 /* the charpoly's x^(r-1) coefficient is -trace */
-                slong rk = A->layers[j - 1].free_rank;
+                slong rk = A->layers[j - 1].layer->free_rank;
                 fmpz_neg(got, A->layers[j - 1].charpoly + rk - 1);
                 assert_fmpz_eq(got, want, "minus the subleading charpoly coefficient", map);
             }
@@ -394,10 +394,10 @@ static void heisenberg_centre_times_det(void **state)
     set_group(A, "<x, y | [x,y,x], [x,y,y]>", 3);
     assert_int_equal(A->nq->class_reached, 2);
     assert_true(A->nq->stabilised);
-    assert_int_equal(A->layers[1].free_rank, 1);
+    assert_int_equal(A->layers[1].layer->free_rank, 1);
     set_group(H, "heisenberg(1)", 2);
-    assert_int_equal(H->layers[0].free_rank, 2);
-    assert_int_equal(H->layers[1].free_rank, 1);
+    assert_int_equal(H->layers[0].layer->free_rank, 2);
+    assert_int_equal(H->layers[1].layer->free_rank, 1);
 
     fmpz_mat_t M;
     fmpz_t d;
@@ -682,8 +682,8 @@ static void growth_rate_torsion_keeps_it_one(void **state)
     analysis_t A;
     analysis_init(A);
     set_group(A, "<a, t | t^2, [a,t]>", 2);
-    assert_int_equal(A->layers[0].free_rank, 1);
-    assert_int_equal(A->layers[0].ntors, 1);
+    assert_int_equal(A->layers[0].layer->free_rank, 1);
+    assert_int_equal(A->layers[0].layer->ntors, 1);
     set_map(A, "a -> t, t -> t");
     assert_true(A->valid);
     assert_string_equal(A->layers[0].rho_str, "0");
@@ -725,7 +725,7 @@ static void validity_relator_in_gamma3(void **state)
     assert_int_equal(A->nfail, 0);
 
     set_group(A, "<a, b | [a,b,a]>", 3);
-    assert_int_equal(A->layers[2].free_rank, 1);
+    assert_int_equal(A->layers[2].layer->free_rank, 1);
     set_map(A, "a -> b, b -> a");
     assert_false(A->valid);
     assert_int_equal(A->nfail, 1);

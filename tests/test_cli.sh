@@ -406,6 +406,12 @@ assert a["images"] == b["images"], (a["images"], b["images"])
 ' "$tmp/pow2" "$tmp/out" || fail "--power 2 and --then with the same map should agree"
 expect_status 2 "inverse of a non-automorphism" report --group 'free(2)' --class 2 \
     --map 'a -> a^2, b -> b' --power -1
+# layers without torsion but with pc generators of finite relative order
+# (the trefoil group: x^-1 y^2 generates its abelianisation Z)
+expect_status 0 "inverse with torsion-free layers and finite pc generators" report \
+    --group '<x, y | x^2 = y^3>' --class 2 --map 'x -> x, y -> y' --power -1
+[[ $out == *$'\n              x -> x\n              y -> y\n'* ]] ||
+    fail "the inverse of the identity should be the identity"
 
 echo "# $checks checks passed, $failures failed"
 (( failures == 0 ))

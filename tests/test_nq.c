@@ -61,7 +61,7 @@ static void eval_word(const nq_t Q, fmpz *out, const char *text)
 static void check_layer(const nq_t Q, slong j, slong free_rank, slong ntors, const slong *tors)
 {
     assert_true(j >= 1 && j <= Q->nlayers);
-    const nq_layer_struct *L = Q->layers + j - 1;
+    const layer_struct *L = Q->layers + j - 1;
     if (L->free_rank != free_rank || L->ntors != ntors)
         fail_msg("layer %ld: free rank %ld (expected %ld), %ld torsion invariants "
                  "(expected %ld)",
@@ -82,7 +82,7 @@ static void check_shape(const nq_t Q)
     assert_true(Q->class_reached <= Q->class_requested);
     slong next = 0, hirsch = 0;
     for (slong j = 1; j <= Q->nlayers; j++) {
-        const nq_layer_struct *L = Q->layers + j - 1;
+        const layer_struct *L = Q->layers + j - 1;
         assert_int_equal(L->weight, j);
         assert_int_equal(L->start, next);
         assert_true(L->count >= 1);
@@ -225,7 +225,7 @@ static void check_free_layers(const nq_t Q, slong c, void (*rank)(fmpz_t, ulong,
     check_shape(Q);
     for (slong j = 1; j <= c; j++) {
         rank(want, param, (ulong)j);
-        const nq_layer_struct *L = Q->layers + j - 1;
+        const layer_struct *L = Q->layers + j - 1;
         if (!fmpz_equal_si(want, L->free_rank) || L->ntors != 0) {
             char *s = fmpz_get_str(NULL, 10, want);
             fail_msg("%s: layer %ld has free rank %ld and %ld torsion invariants; "
@@ -504,7 +504,7 @@ static void mixed_torsion_one_relator(void **state)
     check_layer(G, 2, 0, 1, two);
     assert_int_equal(G->class_reached, H->class_reached);
     for (slong j = 2; j <= G->class_reached; j++) {
-        const nq_layer_struct *x = G->layers + j - 1, *y = H->layers + j - 1;
+        const layer_struct *x = G->layers + j - 1, *y = H->layers + j - 1;
         assert_int_equal(x->free_rank, y->free_rank);
         assert_int_equal(x->ntors, y->ntors);
         for (slong k = 0; k < x->ntors; k++)

@@ -111,23 +111,23 @@ static void detail_build(explorer_app *app, detail_text *t)
     detail_add(t, ROLE_HEADING, "Layer %ld = %s%ld / %s%ld  %s  %s", (long)j, gam, (long)j, gam,
                (long)(j + 1), sym(app, "\xE2\x89\x85", "="), L->group_str ? L->group_str : "?");
     detail_add(t, ROLE_NORMAL, "  free rank %ld, %ld torsion factor%s, %ld pc generator%s",
-               (long)L->free_rank, (long)L->ntors, L->ntors == 1 ? "" : "s", (long)L->npc,
-               L->npc == 1 ? "" : "s");
-    if (L->ntors > 0 && L->pc_labels) {
+               (long)L->layer->free_rank, (long)L->layer->ntors, L->layer->ntors == 1 ? "" : "s", (long)L->layer->count,
+               L->layer->count == 1 ? "" : "s");
+    if (L->layer->ntors > 0 && L->layer->pc_labels) {
         /* the torsion is only visible on the pc generators: name them */
         char names[512] = "";
         size_t k = 0;
-        for (slong g = 0; g < L->npc && k + 2 < sizeof names; g++)
+        for (slong g = 0; g < L->layer->count && k + 2 < sizeof names; g++)
             k += (size_t)snprintf(names + k, sizeof names - k, "%s%s", g ? ", " : "",
-                                  L->pc_labels[g]);
+                                  L->layer->pc_labels[g]);
         detail_add(t, ROLE_NORMAL, "  pc generators of the layer: %s", names);
     }
     detail_add(t, ROLE_NORMAL, "%s", "");
     detail_add(t, ROLE_HEADING, "Basis of the free part, as commutators");
-    if (L->free_rank == 0)
+    if (L->layer->free_rank == 0)
         detail_add(t, ROLE_NORMAL, "  (no free part)");
-    for (slong k = 0; k < L->free_rank; k++)
-        detail_add(t, ROLE_NORMAL, "  e%ld = %s", (long)(k + 1), L->basis[k]);
+    for (slong k = 0; k < L->layer->free_rank; k++)
+        detail_add(t, ROLE_NORMAL, "  e%ld = %s", (long)(k + 1), L->layer->basis[k]);
     detail_add(t, ROLE_NORMAL, "%s", "");
 
     if (!A->has_map) {
@@ -145,10 +145,10 @@ static void detail_build(explorer_app *app, detail_text *t)
     }
     detail_add(t, ROLE_HEADING, "Matrix M%ld (column k holds the image of e_k)", (long)j);
     detail_matrix(t, L->matrix);
-    if (L->ntors > 0) {
+    if (L->layer->ntors > 0) {
         detail_add(t, ROLE_NORMAL, "%s", "");
         detail_add(t, ROLE_HEADING, "Action on the layer's %ld pc generators, torsion included",
-                   (long)L->npc);
+                   (long)L->layer->count);
         detail_matrix(t, L->action);
     }
     detail_add(t, ROLE_NORMAL, "%s", "");

@@ -203,12 +203,12 @@ static void draw_table(explorer_app *app, int y0, int rows)
             paint_text(y, COL_DET, W_DET, role, "-");
             paint_text(y, COL_DIM, W_DIM, role, "-");
         }
-        if (COLS > COL_BASIS + 10 && L->basis && L->free_rank > 0) {
+        if (COLS > COL_BASIS + 10 && L->layer->basis && L->layer->free_rank > 0) {
             char basis[512] = "";
             size_t k = 0;
-            for (slong b = 0; b < L->free_rank && k + 2 < sizeof basis; b++)
+            for (slong b = 0; b < L->layer->free_rank && k + 2 < sizeof basis; b++)
                 k += (size_t)snprintf(basis + k, sizeof basis - k, "%s%s", b ? ", " : "",
-                                      L->basis[b]);
+                                      L->layer->basis[b]);
             paint_text(y, COL_BASIS, COLS - COL_BASIS, sel ? role : ROLE_DIM, basis);
         }
     }
