@@ -259,15 +259,10 @@ void analysis_share_group(analysis_t A, const analysis_t src)
     for (slong j = 0; j < A->nlayers; j++) {
         analysis_layer_struct *L = A->layers + j;
         const analysis_layer_struct *S = src->layers + j;
-        L->weight = S->weight;
-        L->npc = S->npc;
-        L->free_rank = S->free_rank;
-        L->ntors = S->ntors;
-        L->torsion = S->torsion;
+        /* src's layers have their coordinates (analysis_set_group computed
+         * them), so threads sharing them only read */
+        L->layer = S->layer;
         L->group_str = S->group_str;
-        L->basis = S->basis;
-        L->pc_labels = S->pc_labels;
-        *L->lcs = *S->lcs;
         fmpz_mat_init(L->matrix, 0, 0);
         fmpz_mat_init(L->action, 0, 0);
         fmpz_init(L->det);
