@@ -234,7 +234,7 @@ ns_status analysis_set_group(analysis_t A, const pres_t G, slong c, const ns_pro
         slong cr = A->nq->class_reached;
         const layer_struct **lp = malloc(FLINT_MAX(cr, 1) * sizeof(layer_struct *));
         for (slong j = 0; j < cr; j++)
-            lp[j] = A->layers[j].lcs;
+            lp[j] = A->layers[j].layer;
         st = torsion_compute(A->tors, A->nq, lp, progress, err);
         free(lp);
         if (st != NS_OK) {
@@ -531,7 +531,7 @@ static ns_status analyse_finite_part(analysis_t A, const ns_progress_t *progress
     const layer_struct **lp = malloc(FLINT_MAX(c, 1) * sizeof(layer_struct *));
     const fmpz_mat_struct **mp = malloc(FLINT_MAX(c, 1) * sizeof(fmpz_mat_struct *));
     for (slong j = 0; j < c; j++) {
-        lp[j] = A->layers[j].lcs;
+        lp[j] = A->layers[j].layer;
         mp[j] = A->layers[j].matrix;
     }
     ns_status st = torsion_map_compute(A->tmap, A->tors, A->nq, lp, mp, A->endo, reid_inf,

@@ -71,10 +71,10 @@ static void put_quotient_group(strbuf_t b, const analysis_layer_struct *L, const
                                slong j, int latex)
 {
     int any = 0;
-    if (L->free_rank > 0) {
+    if (L->layer->free_rank > 0) {
         strbuf_puts(b, latex ? "\\mathbb{Z}" : "Z");
-        if (L->free_rank > 1)
-            strbuf_printf(b, latex ? "^{%ld}" : "^%ld", (long)L->free_rank);
+        if (L->layer->free_rank > 1)
+            strbuf_printf(b, latex ? "^{%ld}" : "^%ld", (long)L->layer->free_rank);
         any = 1;
     }
     slong nt = j < T->nlayers ? T->q_ntors[j] : 0;
@@ -126,7 +126,7 @@ static void text_torsion(strbuf_t b, const analysis_t A)
         strbuf_t g;
         strbuf_init(g);
         put_quotient_group(g, L, T, j, 0);
-        strbuf_printf(b, "%5ld  %-20s ", (long)L->weight, g->s);
+        strbuf_printf(b, "%5ld  %-20s ", (long)L->layer->weight, g->s);
         strbuf_clear(g);
         if (j < T->nlayers)
             put_fmpz(b, T->u_ord + j);
@@ -175,7 +175,7 @@ static void json_torsion(strbuf_t b, const analysis_t A)
         const analysis_layer_struct *L = A->layers + j;
         slong nt = j < T->nlayers ? T->q_ntors[j] : 0;
         strbuf_printf(b, "%s\n     {\"weight\": %ld, \"free_rank\": %ld, \"torsion\": [",
-                      j ? "," : "", (long)L->weight, (long)L->free_rank);
+                      j ? "," : "", (long)L->layer->weight, (long)L->layer->free_rank);
         for (slong t = 0; t < nt; t++) {
             if (t)
                 strbuf_puts(b, ", ");
@@ -187,11 +187,11 @@ static void json_torsion(strbuf_t b, const analysis_t A)
         strbuf_puts(b, "], \"group\": ");
         strbuf_put_json_str(b, g->s);
         strbuf_clear(g);
-        strbuf_printf(b, ", \"pc_generators\": %ld, \"basis\": [", (long)(L->free_rank + nt));
-        for (slong k = 0; k < L->free_rank; k++) {
+        strbuf_printf(b, ", \"pc_generators\": %ld, \"basis\": [", (long)(L->layer->free_rank + nt));
+        for (slong k = 0; k < L->layer->free_rank; k++) {
             if (k)
                 strbuf_puts(b, ", ");
-            strbuf_put_json_str(b, L->basis[k]);
+            strbuf_put_json_str(b, L->layer->basis[k]);
         }
         strbuf_puts(b, "]}");
     }

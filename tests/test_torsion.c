@@ -104,10 +104,10 @@ static void klein_bottle_quotients(void **state)
         assert_int_equal(si(T->inv), 1L << c);
         assert_false(T->finite);
         assert_true(T->quotient_layers_free);
-        assert_int_equal(A->layers[0].free_rank, 1);
+        assert_int_equal(A->layers[0].layer->free_rank, 1);
         for (slong j = 0; j < c; j++) {
             assert_int_equal(T->q_ntors[j], 0);
-            assert_int_equal(A->layers[j].free_rank, j == 0 ? 1 : 0);
+            assert_int_equal(A->layers[j].layer->free_rank, j == 0 ? 1 : 0);
         }
         set_map(A, "a -> a, t -> t^3");
         check_t_closed(A);
@@ -182,7 +182,7 @@ static void layer_torsion_that_does_not_lift(void **state)
     analysis_t A;
     analysis_init(A);
     set_group(A, "<x, y, z | [y,x] = z^2, [z,x], [z,y]>", 2);
-    assert_int_equal(A->layers[0].ntors, 1);
+    assert_int_equal(A->layers[0].layer->ntors, 1);
     assert_int_equal(si(A->tors->order), 1);
     assert_int_equal(A->tors->q_ntors[0], 1); /* Gc/T = Gc keeps Z/2 in layer 1 */
     set_map(A, "x -> x^2, y -> y^3, z -> z^6");

@@ -189,7 +189,7 @@ static void draw_table(explorer_app *app, int y0, int rows)
         paint_text(y, 0, 2, role, sel ? "> " : "  ");
         paint_textf(y, COL_J, W_J, role, "%3ld", (long)(j + 1));
         paint_text(y, COL_LAYER, W_LAYER - 1, role, L->group_str ? L->group_str : "?");
-        if (L->ntors > 0) /* a torsion row: its torsion goes to T or to Gc/T */
+        if (L->layer->ntors > 0) /* a torsion row: its torsion goes to T or to Gc/T */
             paint_text(y, COL_J + W_J, 1, sel ? role : ROLE_MARKER, "t");
         if (valid && L->rho_str) {
             number_cell(y, COL_RHO, W_RHO, role, L->rho_str, A->upper_layer == j + 1 ? "U" : NULL);
@@ -256,13 +256,13 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
             const analysis_layer_struct *L = A->layers + j;
             slong nt = j < T->nlayers ? T->q_ntors[j] : 0;
             k += (size_t)snprintf(line + k, sizeof line - k, "%s ", j ? "," : "");
-            if (L->free_rank)
-                k += (size_t)snprintf(line + k, sizeof line - k, L->free_rank > 1 ? "Z^%ld" : "Z",
-                                      (long)L->free_rank);
+            if (L->layer->free_rank)
+                k += (size_t)snprintf(line + k, sizeof line - k, L->layer->free_rank > 1 ? "Z^%ld" : "Z",
+                                      (long)L->layer->free_rank);
             if (nt)
                 k += (size_t)snprintf(line + k, sizeof line - k, "%s+tors",
-                                      L->free_rank ? "" : "0");
-            if (!L->free_rank && !nt)
+                                      L->layer->free_rank ? "" : "0");
+            if (!L->layer->free_rank && !nt)
                 k += (size_t)snprintf(line + k, sizeof line - k, "0");
         }
         paint_text(y + 2, hx, COLS - hx, ROLE_DIM, line);
