@@ -248,5 +248,56 @@ grep -q "^<stdin>:3: error: in \"map\" at column 16: unknown generator 'c'" "$tm
 [[ $("$PY" -c 'import json,sys; print(" ".join(str(json.loads(l)["id"]) for l in open(sys.argv[1])))' \
     "$tmp/out") == "1 4" ]] && ok || fail "the good lines around bad ones were not all analysed"
 
+# ---- 10. the worked search of README "Scans": hyperbolic automorphisms of
+# the free nilpotent group of rank 3 and class 2 with entries in [-1, 1] ---
+# Independent count: layer 2 is the exterior square of layer 1, with
+# eigenvalues l_i l_j = det / l_k; so for det = +-1 the map is hyperbolic
+# exactly when layer 1 is, and a monic integer cubic with constant term +-1
+# has a root of modulus 1 only if it has the root 1 or -1 (a conjugate pair
+# on the circle forces the third root to be +-1): det(I - M) != 0 and
+# det(I + M) != 0.
+want=$("$PY" -c '
+import itertools
+def det(m):
+    (a, b, c), (d, e, f), (g, h, i) = m
+    return a * (e * i - f * h) - b * (d * i - f * g) + c * (d * h - e * g)
+n = 0
+for v in itertools.product(range(-1, 2), repeat=9):
+    m = [v[0:3], v[3:6], v[6:9]]
+    if det(m) in (1, -1):
+        e = [[int(i == j) for j in range(3)] for i in range(3)]
+        n += det([[e[i][j] - m[i][j] for j in range(3)] for i in range(3)]) != 0 and \
+             det([[e[i][j] + m[i][j] for j in range(3)] for i in range(3)]) != 0
+print(n)')
+readme=$(sed -n 's/^.*worked search found \([0-9]*\) .*$/\1/p' "$SRC/README.md")
+got=$("$NS" scan --group 'free(3)' --class 2 \
+    --family 'a -> a^p1 b^p2 c^p3, b -> a^q1 b^q2 c^q3, c -> a^r1 b^r2 c^r3' \
+    --range p1=-1..1 --range p2=-1..1 --range p3=-1..1 --range q1=-1..1 --range q2=-1..1 \
+    --range q3=-1..1 --range r1=-1..1 --range r2=-1..1 --range r3=-1..1 \
+    --only automorphism --only hyperbolic --jobs 2 2>/dev/null | wc -l)
+[[ $got == "$want" ]] && ok || fail "hyperbolic automorphisms of free(3) class 2: $got, brute force $want"
+[[ $readme == "$want" ]] && ok || fail "README's worked search says '$readme', brute force $want"
+
+# ---- 11. bash completion, installed beside the man page -------------------
+(
+    source "$SRC/completions/nilstep.bash"
+    comp() { COMP_WORDS=("$@"); COMP_CWORD=$(( $# - 1 )); COMPREPLY=(); _nilstep; echo "${COMPREPLY[*]}"; }
+    [[ $(comp nilstep sc) == scan ]] || exit 1
+    [[ $(comp nilstep scan --only hy) == hyperbolic ]] || exit 2
+    [[ $(comp nilstep scan --only finite) == finite-reidemeister ]] || exit 3
+    [[ $(comp nilstep scan --grow) == --growth-between ]] || exit 4
+    [[ $(comp nilstep report --group heis) == "heisenberg(" ]] || exit 5
+    [[ $(comp nilstep scan --shard sl) == slurm ]] || exit 6
+    [[ $(comp nilstep scan --res) == --resume ]] || exit 7
+    cd "$SRC/scenarios" && [[ $(comp nilstep scan unip) == unipotent-shear.nilstep ]] || exit 8
+) && ok || fail "bash completion: case $? gives the wrong words"
+if [[ -n ${NILSTEP_BUILD_DIR:-} ]]; then
+    cmake --install "$NILSTEP_BUILD_DIR" --prefix "$tmp/inst" >/dev/null 2>&1
+    [[ -f $tmp/inst/share/bash-completion/completions/nilstep &&
+       -f $tmp/inst/share/man/man1/nilstep.1 ]] && ok ||
+        fail "cmake --install does not put the completion beside the man page"
+    grep -q '^\.SH SCANS' "$tmp/inst/share/man/man1/nilstep.1" && ok || fail "the man page lacks scan"
+fi
+
 echo "$checks checks passed, $failures failed"
 (( failures == 0 ))
