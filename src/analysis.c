@@ -4,20 +4,17 @@
 #include <string.h>
 #include "analysis.h"
 #include "elim.h"
+#include "strbuf.h"
 
-/* A malloc copy of a flint_malloc string, freeing the original. */
-static char *own(char *s)
+/* Strings from spectrum.h still come from malloc: this is the one place
+ * they enter the analysis, as flint_malloc copies (the engine's scheme,
+ * strbuf.h).  NULL stays NULL. */
+static char *from_spectrum(char *s)
 {
-    char *t = malloc(strlen(s) + 1);
-    strcpy(t, s);
-    flint_free(s);
-    return t;
-}
-
-static char *dup_str(const char *s)
-{
-    char *t = malloc(strlen(s) + 1);
-    strcpy(t, s);
+    if (!s)
+        return NULL;
+    char *t = strbuf_dup_str(s);
+    free(s);
     return t;
 }
 
@@ -26,19 +23,19 @@ static void free_strs(char **v, slong n)
     if (!v)
         return;
     for (slong k = 0; k < n; k++)
-        free(v[k]);
-    free(v);
+        flint_free(v[k]);
+    flint_free(v);
 }
 
 static void layer_map_clear(analysis_layer_struct *L)
 {
-    free(L->charpoly_str);
-    free(L->charpoly_factored_str);
-    free(L->charpoly_latex);
-    free(L->rho_str);
-    free(L->rho_minpoly_str);
-    free(L->root_bound_str);
-    free(L->entropy_str);
+    flint_free(L->charpoly_str);
+    flint_free(L->charpoly_factored_str);
+    flint_free(L->charpoly_latex);
+    flint_free(L->rho_str);
+    flint_free(L->rho_minpoly_str);
+    flint_free(L->root_bound_str);
+    flint_free(L->entropy_str);
     free_strs(L->ev_str, L->nev);
     free_strs(L->ev_abs_str, L->nev);
     if (L->charpoly)
@@ -62,7 +59,7 @@ static void layer_map_clear(analysis_layer_struct *L)
 void analysis_clear_map(analysis_t A)
 {
     slong X = A->has_group ? A->nq->pres->gens->n : 0;
-    free(A->map_str);
+    flint_free(A->map_str);
     A->map_str = NULL;
     free_strs(A->fail_relator, A->nfail);
     free_strs(A->fail_image, A->nfail);
@@ -74,11 +71,11 @@ void analysis_clear_map(analysis_t A)
     A->fail_relator = A->fail_image = A->gen_image_str = NULL;
     A->nfail = 0;
     A->has_map = A->valid = 0;
-    free(A->lower_bound_str);
-    free(A->upper_bound_str);
-    free(A->growth_str);
-    free(A->log_growth_str);
-    free(A->entropy_str);
+    flint_free(A->lower_bound_str);
+    flint_free(A->upper_bound_str);
+    flint_free(A->growth_str);
+    flint_free(A->log_growth_str);
+    flint_free(A->entropy_str);
     A->lower_bound_str = A->upper_bound_str = A->growth_str = NULL;
     A->log_growth_str = A->entropy_str = NULL;
     A->lower_layer = A->upper_layer = 0;
@@ -115,7 +112,7 @@ static void clear_group(analysis_t A)
             fmpz_clear(L->det_i_minus);
             spectrum_clear(L->spectrum);
         }
-        free(A->layers);
+        flint_free(A->layers);
         A->layers = NULL;
         A->nlayers = 0;
         A->has_group = A->group_borrowed = 0;
@@ -124,7 +121,7 @@ static void clear_group(analysis_t A)
     }
     for (slong j = 0; j < A->nlayers; j++) {
         analysis_layer_struct *L = A->layers + j;
-        free(L->group_str);
+        flint_free(L->group_str);
         fmpz_mat_clear(L->matrix);
         fmpz_mat_clear(L->action);
         fmpz_clear(L->det);
@@ -133,7 +130,7 @@ static void clear_group(analysis_t A)
     }
     for (slong j = A->nq->class_reached; j < A->nlayers; j++)
         layer_clear(A->trivial_layers + j - A->nq->class_reached);
-    free(A->layers);
+    flint_free(A->layers);
     flint_free(A->trivial_layers);
     A->layers = NULL;
     A->trivial_layers = NULL;
@@ -175,24 +172,20 @@ void analysis_clear(analysis_t A)
 /* "Z^2 + Z/2 + Z/4", "Z", "0" */
 static char *group_string(slong r, const fmpz *tors, slong nt)
 {
-    size_t cap = 32, len = 0;
-    char *s = malloc(cap);
-    s[0] = '\0';
-    if (r > 0)
-        len = (size_t)(r == 1 ? sprintf(s, "Z") : sprintf(s, "Z^%ld", (long)r));
+    strbuf_t b;
+    strbuf_init(b);
+    if (r == 1)
+        strbuf_puts(b, "Z");
+    else if (r > 1)
+        strbuf_printf(b, "Z^%ld", (long)r);
     for (slong t = 0; t < nt; t++) {
         char *d = fmpz_get_str(NULL, 10, tors + t);
-        size_t need = len + strlen(d) + 8;
-        if (need > cap) {
-            cap = 2 * need;
-            s = realloc(s, cap);
-        }
-        len += (size_t)sprintf(s + len, "%sZ/%s", len ? " + " : "", d);
+        strbuf_printf(b, "%sZ/%s", b->len ? " + " : "", d);
         flint_free(d);
     }
-    if (len == 0)
-        strcpy(s, "0");
-    return s;
+    if (b->len == 0)
+        strbuf_puts(b, "0");
+    return strbuf_take(b);
 }
 
 ns_status analysis_set_group(analysis_t A, const pres_t G, slong c, const ns_progress_t *progress,
@@ -205,7 +198,7 @@ ns_status analysis_set_group(analysis_t A, const pres_t G, slong c, const ns_pro
     A->has_group = 1;
     A->class_requested = c;
     A->nlayers = c;
-    A->layers = calloc((size_t)c, sizeof(analysis_layer_struct));
+    A->layers = flint_calloc((size_t)c, sizeof(analysis_layer_struct));
     slong reached = A->nq->class_reached;
     A->trivial_layers = flint_malloc(FLINT_MAX(c - reached, 1) * sizeof(layer_struct));
     A->layers_torsion_free = 1;
@@ -232,11 +225,11 @@ ns_status analysis_set_group(analysis_t A, const pres_t G, slong c, const ns_pro
     }
     if (!A->layers_torsion_free) {
         slong cr = A->nq->class_reached;
-        const layer_struct **lp = malloc(FLINT_MAX(cr, 1) * sizeof(layer_struct *));
+        const layer_struct **lp = flint_malloc(FLINT_MAX(cr, 1) * sizeof(layer_struct *));
         for (slong j = 0; j < cr; j++)
             lp[j] = A->layers[j].layer;
         st = torsion_compute(A->tors, A->nq, lp, progress, err);
-        free(lp);
+        flint_free(lp);
         if (st != NS_OK) {
             clear_group(A);
             return st;
@@ -255,7 +248,7 @@ void analysis_share_group(analysis_t A, const analysis_t src)
     A->class_requested = src->class_requested;
     A->nlayers = src->nlayers;
     A->layers_torsion_free = src->layers_torsion_free;
-    A->layers = calloc((size_t)FLINT_MAX(A->nlayers, 1), sizeof(analysis_layer_struct));
+    A->layers = flint_calloc((size_t)FLINT_MAX(A->nlayers, 1), sizeof(analysis_layer_struct));
     for (slong j = 0; j < A->nlayers; j++) {
         analysis_layer_struct *L = A->layers + j;
         const analysis_layer_struct *S = src->layers + j;
@@ -349,8 +342,8 @@ static int layer_map_onto(const analysis_layer_struct *L)
 
 static char *arb_str(const arb_t x)
 {
-    char *s = spectrum_ball_get_str(x, ANALYSIS_DIGITS);
-    return s ? s : dup_str("(not certified)");
+    char *s = from_spectrum(spectrum_ball_get_str(x, ANALYSIS_DIGITS));
+    return s ? s : strbuf_dup_str("(not certified)");
 }
 
 /* Matrices and spectra of every layer (valid map). */
@@ -390,21 +383,21 @@ static ns_status analyse_layers(analysis_t A, const ns_progress_t *progress, nse
         L->charpoly = _fmpz_vec_init(d + 1);
         for (slong k = 0; k <= d; k++)
             fmpz_poly_get_coeff_fmpz(L->charpoly + k, spectrum_charpoly(S), k);
-        L->charpoly_str = spectrum_charpoly_get_str(S, SPECTRUM_STR_PLAIN);
-        L->charpoly_factored_str = spectrum_factored_get_str(S, SPECTRUM_STR_PLAIN);
-        L->charpoly_latex = spectrum_factored_get_str(S, SPECTRUM_STR_LATEX);
-        L->rho_str = spectrum_radius_get_str(S, ANALYSIS_DIGITS);
-        L->rho_minpoly_str = spectrum_radius_minpoly_get_str(S, SPECTRUM_STR_PLAIN);
-        L->root_bound_str = spectrum_root_bound_get_str(S, (ulong)j, ANALYSIS_DIGITS);
-        L->entropy_str = spectrum_entropy_get_str(S, ANALYSIS_DIGITS);
+        L->charpoly_str = from_spectrum(spectrum_charpoly_get_str(S, SPECTRUM_STR_PLAIN));
+        L->charpoly_factored_str = from_spectrum(spectrum_factored_get_str(S, SPECTRUM_STR_PLAIN));
+        L->charpoly_latex = from_spectrum(spectrum_factored_get_str(S, SPECTRUM_STR_LATEX));
+        L->rho_str = from_spectrum(spectrum_radius_get_str(S, ANALYSIS_DIGITS));
+        L->rho_minpoly_str = from_spectrum(spectrum_radius_minpoly_get_str(S, SPECTRUM_STR_PLAIN));
+        L->root_bound_str = from_spectrum(spectrum_root_bound_get_str(S, (ulong)j, ANALYSIS_DIGITS));
+        L->entropy_str = from_spectrum(spectrum_entropy_get_str(S, ANALYSIS_DIGITS));
         fmpz_set(L->det, spectrum_det(S));
         fmpz_set(L->det_i_minus, spectrum_det_one_minus(S));
         L->nev = d;
-        L->ev_str = malloc(FLINT_MAX(d, 1) * sizeof(char *));
-        L->ev_abs_str = malloc(FLINT_MAX(d, 1) * sizeof(char *));
+        L->ev_str = flint_malloc(FLINT_MAX(d, 1) * sizeof(char *));
+        L->ev_abs_str = flint_malloc(FLINT_MAX(d, 1) * sizeof(char *));
         for (slong k = 0; k < d; k++) {
-            L->ev_str[k] = spectrum_eigenvalue_get_str(S, k, 16);
-            L->ev_abs_str[k] = spectrum_eigenvalue_abs_get_str(S, k, 16);
+            L->ev_str[k] = from_spectrum(spectrum_eigenvalue_get_str(S, k, 16));
+            L->ev_abs_str[k] = from_spectrum(spectrum_eigenvalue_abs_get_str(S, k, 16));
         }
         L->n_unimodular = spectrum_count_on_one(S);
         L->n_above_one = spectrum_count_above_one(S);
@@ -430,11 +423,11 @@ static void analyse_bounds(analysis_t A)
     if (A->nlayers > 0) {
         A->lower_layer = lo;
         A->upper_layer = up;
-        A->lower_bound_str = dup_str(A->layers[lo - 1].root_bound_str);
-        A->upper_bound_str = dup_str(A->layers[up - 1].rho_str);
+        A->lower_bound_str = strbuf_dup_str(A->layers[lo - 1].root_bound_str);
+        A->upper_bound_str = strbuf_dup_str(A->layers[up - 1].rho_str);
     } else {
-        A->lower_bound_str = dup_str("0");
-        A->upper_bound_str = dup_str("0");
+        A->lower_bound_str = strbuf_dup_str("0");
+        A->upper_bound_str = strbuf_dup_str("0");
     }
 }
 
@@ -442,12 +435,12 @@ static void analyse_bounds(analysis_t A)
 static void analyse_growth(analysis_t A)
 {
     if (A->nq->class_reached == 0) {
-        A->growth_str = dup_str("0");
+        A->growth_str = strbuf_dup_str("0");
         A->growth_reason = "the quotient is trivial";
     } else if (spectrum_radius_cmp_one(A->layers[0].spectrum) >= 0) {
         arb_t t;
         arb_init(t);
-        A->growth_str = dup_str(A->layers[0].rho_str);
+        A->growth_str = strbuf_dup_str(A->layers[0].rho_str);
         A->growth_reason = "rho_1 >= 1, and the growth rate of a map of a nilpotent group is "
                            "the spectral radius on the abelianisation";
         spectrum_radius_arb(t, A->layers[0].spectrum, 4 * ANALYSIS_DIGITS + 64);
@@ -455,14 +448,14 @@ static void analyse_growth(analysis_t A)
         A->log_growth_str = arb_str(t);
         arb_clear(t);
     } else if (layer_map_nilpotent(A->layers)) {
-        A->growth_str = dup_str("0");
+        A->growth_str = strbuf_dup_str("0");
         A->growth_reason = "the map is nilpotent on the abelianisation, so a power of it is "
                            "trivial";
     } else {
-        A->growth_str = dup_str("1");
+        A->growth_str = strbuf_dup_str("1");
         A->growth_reason = "rho_1 = 0 but the map is not nilpotent on the torsion of the "
                            "abelianisation, so word lengths stay bounded and nonzero";
-        A->log_growth_str = dup_str("0");
+        A->log_growth_str = strbuf_dup_str("0");
     }
 }
 
@@ -528,16 +521,16 @@ static ns_status analyse_finite_part(analysis_t A, const ns_progress_t *progress
                                           "Dekimpe-Goncalves 2014)";
         return NS_OK;
     }
-    const layer_struct **lp = malloc(FLINT_MAX(c, 1) * sizeof(layer_struct *));
-    const fmpz_mat_struct **mp = malloc(FLINT_MAX(c, 1) * sizeof(fmpz_mat_struct *));
+    const layer_struct **lp = flint_malloc(FLINT_MAX(c, 1) * sizeof(layer_struct *));
+    const fmpz_mat_struct **mp = flint_malloc(FLINT_MAX(c, 1) * sizeof(fmpz_mat_struct *));
     for (slong j = 0; j < c; j++) {
         lp[j] = A->layers[j].layer;
         mp[j] = A->layers[j].matrix;
     }
     ns_status st = torsion_map_compute(A->tmap, A->tors, A->nq, lp, mp, A->endo, reid_inf,
                                        progress, A->limit);
-    free(lp);
-    free(mp);
+    flint_free(lp);
+    flint_free(mp);
     if (st == NS_ERR_CANCELLED)
         return nserr_set(err, st, 0, 0, "cancelled");
     A->limit_hit = st == NS_ERR_LIMIT;
@@ -570,18 +563,18 @@ static ns_status analyse_endo(analysis_t A, const ns_progress_t *progress, nserr
 {
     const nq_struct *Q = A->nq;
     slong X = Q->pres->gens->n, n = Q->pcp->n;
-    A->gen_image_str = malloc(FLINT_MAX(X, 1) * sizeof(char *));
+    A->gen_image_str = flint_malloc(FLINT_MAX(X, 1) * sizeof(char *));
     for (slong x = 0; x < X; x++)
-        A->gen_image_str[x] = own(nq_elt_get_str(Q, A->endo->gen_img + x * n));
+        A->gen_image_str[x] = (nq_elt_get_str(Q, A->endo->gen_img + x * n));
     A->valid = A->endo->valid;
     if (!A->valid) {
         A->nfail = A->endo->nfail;
-        A->fail_relator = malloc(FLINT_MAX(A->nfail, 1) * sizeof(char *));
-        A->fail_image = malloc(FLINT_MAX(A->nfail, 1) * sizeof(char *));
+        A->fail_relator = flint_malloc(FLINT_MAX(A->nfail, 1) * sizeof(char *));
+        A->fail_image = flint_malloc(FLINT_MAX(A->nfail, 1) * sizeof(char *));
         for (slong k = 0; k < A->nfail; k++) {
             slong r = A->endo->fail_rel[k];
-            A->fail_relator[k] = dup_str(Q->pres->text[r]);
-            A->fail_image[k] = own(nq_elt_get_str(Q, A->endo->fail_val + k * n));
+            A->fail_relator[k] = strbuf_dup_str(Q->pres->text[r]);
+            A->fail_image[k] = (nq_elt_get_str(Q, A->endo->fail_val + k * n));
         }
         return NS_OK;
     }
@@ -607,7 +600,7 @@ ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_pro
     analysis_clear_map(A);
     const nq_struct *Q = A->nq;
     A->has_map = 1;
-    A->map_str = own(pres_get_map_str(images, Q->pres));
+    A->map_str = (pres_get_map_str(images, Q->pres));
     ns_status st = endo_set(A->endo, Q, images, progress, err);
     if (st != NS_OK) {
         analysis_clear_map(A);
@@ -620,22 +613,14 @@ ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_pro
  * normal words in the pc labels, exactly as gen_image_str shows them. */
 static char *map_text_of(const nq_struct *Q, const fmpz *gen_img)
 {
-    slong X = Q->pres->gens->n, n = Q->pcp->n;
-    size_t cap = 64, len = 0;
-    char *s = malloc(cap);
-    s[0] = '\0';
-    for (slong x = 0; x < X; x++) {
-        char *w = nq_elt_get_str(Q, gen_img + x * n);
-        const char *g = Q->pres->gens->name[x];
-        size_t need = len + strlen(w) + strlen(g) + 8;
-        if (need > cap) {
-            cap = 2 * need;
-            s = realloc(s, cap);
-        }
-        len += (size_t)sprintf(s + len, "%s%s -> %s", x ? ", " : "", g, w);
+    strbuf_t b;
+    strbuf_init(b);
+    for (slong x = 0; x < Q->pres->gens->n; x++) {
+        char *w = nq_elt_get_str(Q, gen_img + x * Q->pcp->n);
+        strbuf_printf(b, "%s%s -> %s", x ? ", " : "", Q->pres->gens->name[x], w);
         flint_free(w);
     }
-    return s;
+    return strbuf_take(b);
 }
 
 ns_status analysis_set_map_endo(analysis_t A, endo_t E, const ns_progress_t *progress,
@@ -734,9 +719,9 @@ ns_status analysis_set_inverse(analysis_t A, const ns_progress_t *progress, nser
             return st;
         }
         slong X = A->nq->pres->gens->n, n = A->nq->pcp->n;
-        v = malloc(FLINT_MAX(X, 1) * sizeof(char *));
+        v = flint_malloc(FLINT_MAX(X, 1) * sizeof(char *));
         for (slong x = 0; x < X; x++)
-            v[x] = own(nq_elt_get_str(A->nq, I->gen_img + x * n));
+            v[x] = (nq_elt_get_str(A->nq, I->gen_img + x * n));
         endo_clear(I);
     }
     free_strs(A->inverse_str, A->inverse_str ? A->nq->pres->gens->n : 0);

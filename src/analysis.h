@@ -12,8 +12,10 @@
  *                         an endo_t of the quotient (analysis_set_map_endo:
  *                         powers, composites, inverses, iterates), never
  *                         through a round trip via text.
- * All strings are owned by the analysis and stay valid until the next
- * analysis_set_* or analysis_clear. */
+ * All strings (and arrays of strings) are owned by the analysis, allocated
+ * with flint_malloc as everywhere in the engine (strbuf.h), and stay valid
+ * until the next analysis_set_* or analysis_clear; the static texts
+ * (growth_reason, undefined_reason, inverse_reason) are never freed. */
 #ifndef NILSTEP_ANALYSIS_H
 #define NILSTEP_ANALYSIS_H
 

@@ -33,14 +33,6 @@ void names_clear(names_t g)
     g->name = NULL;
 }
 
-static char *str_dup_n(const char *s, size_t len)
-{
-    char *d = flint_malloc(len + 1);
-    memcpy(d, s, len);
-    d[len] = '\0';
-    return d;
-}
-
 void names_set(names_t dst, const names_t src)
 {
     if (dst == src)
@@ -50,14 +42,14 @@ void names_set(names_t dst, const names_t src)
         return;
     dst->name = flint_malloc(sizeof(char *) * src->n);
     for (slong i = 0; i < src->n; i++)
-        dst->name[i] = str_dup_n(src->name[i], strlen(src->name[i]));
+        dst->name[i] = strbuf_dup_strn(src->name[i], strlen(src->name[i]));
     dst->n = src->n;
 }
 
 slong names_add(names_t g, const char *name)
 {
     g->name = flint_realloc(g->name, sizeof(char *) * (g->n + 1));
-    g->name[g->n] = str_dup_n(name, strlen(name));
+    g->name[g->n] = strbuf_dup_strn(name, strlen(name));
     return g->n++;
 }
 
@@ -373,7 +365,7 @@ void _expr_tok_describe(char *buf, size_t n, const expr_tok_struct *t)
 
 void _expr_tok_get_fmpz(fmpz_t out, const expr_tok_struct *t)
 {
-    char *digits = str_dup_n(t->start, t->len);
+    char *digits = strbuf_dup_strn(t->start, t->len);
     if (fmpz_set_str(out, digits, 10) != 0)
         fmpz_zero(out);
     flint_free(digits);

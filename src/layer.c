@@ -2,6 +2,7 @@
 #include <string.h>
 #include "elim.h"
 #include "layer.h"
+#include "strbuf.h"
 
 void layer_init(layer_t L)
 {
@@ -30,24 +31,19 @@ void layer_clear(layer_t L)
 /* "x^2 y^-1" for the layer element v in labels. */
 static char *vec_label(const fmpz *v, slong n, char *const *labels)
 {
-    size_t cap = 32, len = 0;
-    char *s = flint_malloc(cap);
-    s[0] = '\0';
+    strbuf_t b;
+    strbuf_init(b);
     for (slong k = 0; k < n; k++) {
         if (fmpz_is_zero(v + k))
             continue;
-        char *e = fmpz_get_str(NULL, 10, v + k);
-        size_t need = len + strlen(labels[k]) + strlen(e) + 4;
-        if (need > cap) {
-            cap = 2 * need;
-            s = flint_realloc(s, cap);
+        strbuf_printf(b, "%s%s", b->len ? " " : "", labels[k]);
+        if (!fmpz_is_one(v + k)) {
+            char *e = fmpz_get_str(NULL, 10, v + k);
+            strbuf_printf(b, "^%s", e);
+            flint_free(e);
         }
-        len += (size_t)sprintf(s + len, "%s%s", len ? " " : "", labels[k]);
-        if (!fmpz_is_one(v + k))
-            len += (size_t)sprintf(s + len, "^%s", e);
-        flint_free(e);
     }
-    return s;
+    return strbuf_take(b);
 }
 
 void layer_set(layer_t L, const pcp_t P, slong j, slong start, slong count,

@@ -539,13 +539,14 @@ static ns_status step(nq_t Q, slong c, pcp_work_t W, const ns_progress_t *prog, 
 /* "[b,a]" and "a" give "[b,a,a]"; "b" and "a" give "[b,a]". */
 static char *make_label(const char *x, const char *y)
 {
-    size_t lx = strlen(x), ly = strlen(y);
-    char *s = flint_malloc(lx + ly + 4);
-    if (x[0] == '[')
-        sprintf(s, "%.*s,%s]", (int)(lx - 1), x, y);
-    else
-        sprintf(s, "[%s,%s]", x, y);
-    return s;
+    strbuf_t b;
+    strbuf_init(b);
+    if (x[0] == '[') {
+        strbuf_putn(b, x, strlen(x) - 1);
+        strbuf_printf(b, ",%s]", y);
+    } else
+        strbuf_printf(b, "[%s,%s]", x, y);
+    return strbuf_take(b);
 }
 
 /* The labels of the pc generators, then the layers (which keep a pointer

@@ -3,6 +3,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "pcp.h"
+#include "strbuf.h"
 
 /* ---------------------------------------------------------------- words */
 
@@ -784,26 +785,21 @@ int pcp_complete(pcp_t P, pcp_work_t W)
 
 char *pcp_elt_get_str(const pcp_t P, const fmpz *u, char *const *names)
 {
-    size_t cap = 64, len = 0;
-    char *s = flint_malloc(cap);
-    s[0] = '\0';
+    strbuf_t b;
+    strbuf_init(b);
     for (slong k = 0; k < P->n; k++) {
         if (fmpz_is_zero(u + k))
             continue;
-        char *e = fmpz_get_str(NULL, 10, u + k);
-        size_t need = len + strlen(names[k]) + strlen(e) + 4;
-        if (need >= cap) {
-            cap = 2 * need;
-            s = flint_realloc(s, cap);
+        strbuf_printf(b, "%s%s", b->len ? " " : "", names[k]);
+        if (!fmpz_is_one(u + k)) {
+            char *e = fmpz_get_str(NULL, 10, u + k);
+            strbuf_printf(b, "^%s", e);
+            flint_free(e);
         }
-        len += (size_t)sprintf(s + len, "%s%s", len ? " " : "", names[k]);
-        if (!fmpz_is_one(u + k))
-            len += (size_t)sprintf(s + len, "^%s", e);
-        flint_free(e);
     }
-    if (len == 0)
-        strcpy(s, "1");
-    return s;
+    if (b->len == 0)
+        strbuf_puts(b, "1");
+    return strbuf_take(b);
 }
 
 /* ---------------------------------------------------------- consistency */

@@ -46,13 +46,6 @@ void pres_clear(pres_t p)
     pres_init(p);
 }
 
-static char *dup_str(const char *s)
-{
-    size_t n = strlen(s);
-    char *d = flint_malloc(n + 1);
-    memcpy(d, s, n + 1);
-    return d;
-}
 
 /* Appends a relator; takes root and text (flint_malloc'd).  Only used on
  * presentations this file built from pres_init, whose arrays have room for
@@ -82,7 +75,7 @@ void pres_set(pres_t dst, const pres_t src)
     names_set(dst->gens, src->gens);
     for (slong i = 0; i < src->nrels; i++)
         pres_push_rel(dst, expr_node_copy(src->rels[i].root),
-                      dup_str(src->text && src->text[i] ? src->text[i] : ""),
+                      strbuf_dup_str(src->text && src->text[i] ? src->text[i] : ""),
                       src->line ? src->line[i] : 0, src->col ? src->col[i] : 0);
 }
 

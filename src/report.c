@@ -47,14 +47,6 @@ static const char *yes_no(int v)
     return v ? "yes" : "no";
 }
 
-static char *presentation(const analysis_t A)
-{
-    char *p = pres_get_str(A->nq->pres);
-    char *s = malloc(strlen(p) + 1);
-    strcpy(s, p);
-    flint_free(p);
-    return s;
-}
 
 /* "a -> w_a, b -> w_b" from one word per input generator. */
 static void put_map_words(strbuf_t b, const analysis_t A, char *const *w)
@@ -289,7 +281,7 @@ static void text_matrix(strbuf_t b, const fmpz_mat_t M, const char *indent)
 static void report_text(strbuf_t b, const analysis_t A, const char *title)
 {
     const nq_struct *Q = A->nq;
-    char *pres = presentation(A);
+    char *pres = pres_get_str(A->nq->pres);
     strbuf_printf(b, "nilstep report%s%s\n\n", title ? ": " : "", title ? title : "");
     strbuf_printf(b, "group         %s\n", pres);
     strbuf_printf(b, "class         %ld", (long)A->class_requested);
@@ -307,7 +299,7 @@ static void report_text(strbuf_t b, const analysis_t A, const char *title)
             strbuf_printf(b, "%s%s", k ? ", " : "", L->layer->basis[k]);
         strbuf_puts(b, "\n");
     }
-    free(pres);
+    flint_free(pres);
     if (!A->layers_torsion_free)
         text_torsion(b, A);
     if (!A->has_map)
@@ -447,13 +439,13 @@ static const char *json_bool(int v)
 static void json_group(strbuf_t b, const analysis_t A, const char *title)
 {
     const nq_struct *Q = A->nq;
-    char *pres = presentation(A);
+    char *pres = pres_get_str(A->nq->pres);
     strbuf_puts(b, "{\"format\": \"nilstep-report\", \"version\": 1,\n");
     strbuf_puts(b, " \"title\": ");
     json_str_or_null(b, title);
     strbuf_puts(b, ",\n \"group\": {\"presentation\": ");
     strbuf_put_json_str(b, pres);
-    free(pres);
+    flint_free(pres);
     strbuf_puts(b, ", \"generators\": [");
     for (slong x = 0; x < Q->pres->gens->n; x++) {
         if (x)
@@ -702,7 +694,7 @@ static void latex_group(strbuf_t b, const analysis_layer_struct *L)
 
 static void report_latex(strbuf_t b, const analysis_t A, const char *title)
 {
-    char *pres = presentation(A);
+    char *pres = pres_get_str(A->nq->pres);
     strbuf_puts(b, "% nilstep report (LaTeX); needs \\usepackage{amsmath,amssymb}\n");
     if (title) {
         /* every line of a multi-line title stays inside the comment */
@@ -717,7 +709,7 @@ static void report_latex(strbuf_t b, const analysis_t A, const char *title)
     }
     strbuf_puts(b, "\\noindent Group: \\texttt{");
     strbuf_put_latex_str(b, pres);
-    free(pres);
+    flint_free(pres);
     strbuf_printf(b, "}, class %ld, Hirsch length %ld.\\\\\n", (long)A->class_requested,
                 (long)A->nq->hirsch_length);
     int maps = A->has_map && A->valid;

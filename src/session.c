@@ -17,14 +17,6 @@
 /* ------------------------------------------------------------------------ */
 /* Small helpers                                                             */
 
-static char *dup_n(const char *s, size_t n)
-{
-    char *d = flint_malloc(n + 1);
-    memcpy(d, s, n);
-    d[n] = '\0';
-    return d;
-}
-
 static int is_blank(char c)
 {
     return c == ' ' || c == '\t' || c == '\r' || c == '\f' || c == '\v';
@@ -39,7 +31,7 @@ static void text_clear(session_text_struct *t)
 
 static void text_set(session_text_struct *t, const char *s, size_t n, int line, int col)
 {
-    char *d = dup_n(s, n);
+    char *d = strbuf_dup_strn(s, n);
     flint_free(t->text);
     t->text = d;
     t->line = line;
@@ -893,7 +885,7 @@ char *session_get_str(const session_t s)
  * Caller frees with flint_free. */
 static char *resolve_links(const char *path, int *errnum)
 {
-    char *p = dup_n(path, strlen(path));
+    char *p = strbuf_dup_strn(path, strlen(path));
     for (int hops = 0;; hops++) {
         struct stat st;
         if (lstat(p, &st) != 0 || !S_ISLNK(st.st_mode))
@@ -935,7 +927,7 @@ static char *resolve_links(const char *path, int *errnum)
 static char *dir_of(const char *path)
 {
     const char *slash = strrchr(path, '/');
-    return slash == NULL ? dup_n(".", 1) : dup_n(path, slash == path ? 1 : (size_t)(slash - path));
+    return slash == NULL ? strbuf_dup_strn(".", 1) : strbuf_dup_strn(path, slash == path ? 1 : (size_t)(slash - path));
 }
 
 /* How many bytes of the file name `base` a sibling name base[..k] + suffix
