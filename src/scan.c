@@ -42,13 +42,25 @@ void scan_clear(scan_t S)
     fmpz_clear(S->box);
     fmpq_clear(S->window_lo);
     fmpq_clear(S->window_hi);
+    flint_free(S->group_json);
 }
 
 ns_status scan_set_group(scan_t S, const pres_t G, slong c, const ns_progress_t *progress,
                          nserr_t err)
 {
     clear_template(S);
-    return analysis_set_group(S->group, G, c, progress, err);
+    flint_free(S->group_json);
+    S->group_json = NULL;
+    ns_status st = analysis_set_group(S->group, G, c, progress, err);
+    if (st == NS_OK) {
+        char *p = pres_get_str(S->group->nq->pres);
+        strbuf_t b;
+        strbuf_init(b);
+        strbuf_put_json_str(b, p);
+        S->group_json = strbuf_take(b);
+        flint_free(p);
+    }
+    return st;
 }
 
 /* ---- The family ---------------------------------------------------------- */
@@ -498,7 +510,8 @@ static char *member_json(const scan_t S, const worker *w, ulong index, const sca
         }
         strbuf_puts(b, "}");
     }
-    strbuf_puts(b, ", \"map\": ");
+    strbuf_printf(b, ", \"group\": %s, \"class\": %ld, \"map\": ", S->group_json,
+                  (long)A->class_requested);
     strbuf_put_json_str(b, A->map_str);
     strbuf_printf(b, ", \"valid\": %s", json_bool(A->valid));
     if (!A->valid) {

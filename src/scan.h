@@ -40,6 +40,7 @@ enum {
 
 typedef struct {
     analysis_t group;          /* the shared group stage (no map) */
+    char *group_json;          /* the presentation as a JSON string, for every line */
     /* the family; nparams == 0 and no template: maps come from the caller */
     int has_template;
     names_t params;            /* parameter names, in --range order */

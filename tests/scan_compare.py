@@ -16,16 +16,17 @@ import sys
 
 nilstep, group, cls, path = sys.argv[1:5]
 
-KEYS_VALID = ["map", "valid", "growth_rate", "growth_rate_minpoly", "lower_bound",
+KEYS_VALID = ["group", "class", "map", "valid", "growth_rate", "growth_rate_minpoly", "lower_bound",
               "lower_bound_layer", "upper_bound", "upper_bound_layer", "entropy",
               "lefschetz", "nielsen", "reidemeister", "automorphism", "injective",
               "image_index", "hyperbolic", "expanding", "spectral_radii"]
-KEYS_INVALID = ["map", "valid", "failing_relator", "failing_image"]
+KEYS_INVALID = ["group", "class", "map", "valid", "failing_relator", "failing_image"]
 
 
 def expected(rep):
     m = rep["map"]
-    e = {"map": m["text"], "valid": m["valid"]}
+    e = {"map": m["text"], "valid": m["valid"], "group": rep["group"]["presentation"],
+         "class": rep["group"]["class"]}
     if not m["valid"]:
         e["failing_relator"] = m["failures"][0]["relator"]
         e["failing_image"] = m["failures"][0]["image"]

@@ -36,7 +36,7 @@ enum {
     ACT_DISCARD = 128 /* remove the recovery copy */
 };
 
-typedef enum { SCREEN_MAIN, SCREEN_LAYER, SCREEN_HELP } screen_id;
+typedef enum { SCREEN_MAIN, SCREEN_LAYER, SCREEN_HELP, SCREEN_MEMBERS } screen_id;
 
 typedef enum {
     PROMPT_NONE,
@@ -57,6 +57,7 @@ typedef enum {
 #define UIKEY_CTRL(c) ((c)&0x1f)
 
 typedef struct explorer_app_struct explorer_app;
+typedef struct members_struct members_t; /* screen_members.c */
 
 /* One line of a key table: the action runs on `key`; `keys` and `help` are
  * what the help screen shows (the first binding of an action carries
@@ -134,6 +135,9 @@ struct explorer_app_struct {
     session_t recovered;    /* the copy found at start (PROMPT_RECOVER) */
     char recovery_diff[2000];
 
+    members_t *members; /* an open scan result file (screen_members.c), or NULL */
+    int doc_is_member;  /* the document came from it and has no file yet */
+
     int utf8; /* the terminal takes UTF-8: use ρ, ↦, … */
     int running;
 };
@@ -148,6 +152,17 @@ const ui_keymap *screen_layer_keys(void);
 
 void screen_help_draw(explorer_app *app);
 const ui_keymap *screen_help_keys(void);
+
+/* The members of a scan result file (nilstep scan's JSON Lines). */
+void screen_members_draw(explorer_app *app);
+const ui_keymap *screen_members_keys(void);
+/* Reads the file into *out; -1 with msg set when it has no scan result. */
+int members_load(members_t **out, const char *path, char *msg, size_t msgsize);
+/* Loads path and shows its members (status message on failure). */
+int members_show(explorer_app *app, const char *path);
+/* Back to the member list from another screen (a key action). */
+int members_act_return(explorer_app *app);
+void members_free(members_t *m);
 
 /* Draws the prompt over the bottom of the frame. */
 void prompt_draw(explorer_app *app);

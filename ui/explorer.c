@@ -133,7 +133,9 @@ void app_draw_header(explorer_app *app, const char *where)
 {
     paint_fill(0, 0, COLS, ROLE_BAR);
     /* The file name gives way from the left; "[modified]" always shows. */
-    const char *file = app->path ? app->path : defaults_session_name();
+    const char *file = app->path            ? app->path
+                       : app->doc_is_member ? "(a scan member, not saved)"
+                                            : defaults_session_name();
     const char *mod = app->vm->dirty ? " [modified] " : " ";
     int room = COLS / 2 - (int)strlen(mod);
     int flen = (int)lineedit_utf8_ncols(file);
@@ -220,6 +222,9 @@ static void explorer_draw(explorer_app *app)
             break;
         case SCREEN_HELP:
             screen_help_draw(app);
+            break;
+        case SCREEN_MEMBERS:
+            screen_members_draw(app);
             break;
         }
         if (app->prompt != PROMPT_NONE)
@@ -579,15 +584,16 @@ static void explorer_do_open(explorer_app *app)
     char *path = app->pending_path;
     app->pending_path = NULL;
     app->has_pending_doc = 0;
+    const char *shown = path ? path : "the member"; /* a scan member has no file yet */
     if (explorer_parts_from_session(&p, app->pending_doc, err) != NS_OK) {
         char buf[700];
-        nserr_format(buf, sizeof buf, err, path);
+        nserr_format(buf, sizeof buf, err, shown);
         app_status(app, 1, "%s", buf);
         goto done;
     }
     analysis_struct *B = explorer_compute_group(app, p.pres, p.cls, err);
     if (B == NULL) {
-        app_status(app, err->status != NS_ERR_CANCELLED, "%s not opened: %s", path, err->msg);
+        app_status(app, err->status != NS_ERR_CANCELLED, "%s not opened: %s", shown, err->msg);
         goto done;
     }
     session_swap(app->doc, app->pending_doc);
@@ -600,7 +606,10 @@ static void explorer_do_open(explorer_app *app)
     app->group_problem[0] = '\0';
     explorer_apply_map(app);
     if (app->group_problem[0] == '\0') /* else apply_map said what went wrong */
-        app_status(app, 0, "opened %s", app->path);
+        app_status(app, 0, "opened %s", app->path ? app->path : app->title);
+    app->doc_is_member = app->path == NULL;
+    if (app->path == NULL) /* a scan member: new work, kept by the recovery copy */
+        viewmodel_mark_dirty(app->vm);
     explorer_check_leftovers(app);
 done:
     session_clear(app->pending_doc);
@@ -734,6 +743,8 @@ static const ui_keymap *explorer_keymap(const explorer_app *app)
         return screen_layer_keys();
     case SCREEN_HELP:
         return screen_help_keys();
+    case SCREEN_MEMBERS:
+        return screen_members_keys();
     case SCREEN_MAIN:
         break;
     }
@@ -929,6 +940,7 @@ static void explorer_app_clear(explorer_app *app)
     viewmodel_clear(app->vm);
     lineedit_clear(app->edit);
     explorer_analysis_free(app->A);
+    members_free(app->members);
     free(app->path);
     free(app->title);
     free(app->group_text);
@@ -944,6 +956,21 @@ int explorer_run(const char *path)
     nserr_t err;
     nserr_init(err);
     int status = 0;
+    /* a scan result file opens as its member list over the default scenario */
+    const char *results = NULL;
+    size_t plen = path ? strlen(path) : 0;
+    if (plen > 6 && !strcmp(path + plen - 6, ".jsonl")) {
+        results = path;
+        path = NULL;
+        char msg[600];
+        if (members_load(&app.members, results, msg, sizeof msg) != 0) {
+            fprintf(stderr, "nilstep: %s\n", msg);
+            status = 2;
+            explorer_app_clear(&app);
+            nserr_clear(err);
+            return status;
+        }
+    }
     int is_new = path != NULL && access(path, F_OK) != 0;
     ns_status st;
     if (path == NULL || is_new)
@@ -978,6 +1005,10 @@ int explorer_run(const char *path)
     explorer_apply_map(&app);
     if (is_new)
         app_status(&app, 0, "%s is a new file: s saves this scenario there", path);
+    if (results) {
+        app.screen = SCREEN_MEMBERS;
+        app_status(&app, 0, "scan results: Enter makes a member the current map");
+    }
     explorer_check_leftovers(&app);
     explorer_loop(&app);
     int sig = explorer_term_signal;

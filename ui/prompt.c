@@ -339,6 +339,9 @@ static int act_apply(explorer_app *app)
         app->pending_path = prompt_strdup(text);
         return ACT_SAVE | ACT_REDRAW;
     case PROMPT_OPEN: {
+        size_t tl = strlen(text);
+        if (tl > 6 && !strcmp(text + tl - 6, ".jsonl")) /* scan results: the member list */
+            return members_show(app, text);
         nserr_t err;
         nserr_init(err);
         session_clear(app->pending_doc);

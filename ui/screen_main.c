@@ -558,6 +558,7 @@ static const ui_binding main_bindings[] = {
      NULL},
     {'=', act_class_up, NULL, NULL, NULL},
     {'p', act_edit_group, "p", "edit the presentation of the group", "p group"},
+    {'L', members_act_return, "L", "back to the member list of an open scan result file", NULL},
     {'s', act_save, "s", "save the session to its file", "s save"},
     {UIKEY_FN(KEY_UP), act_layer_prev, "Up / k", "select the previous layer", NULL},
     {'k', act_layer_prev, NULL, NULL, NULL},
