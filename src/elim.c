@@ -299,6 +299,11 @@ void elim_get_quotient(elim_quotient_t Q, const elim_t E)
         Q->rel = _fmpz_vec_init(ns * ns);
         Q->expr = _fmpz_vec_init(n * ns);
     }
+    if (ns == 0) {
+        /* Z^n/L is trivial: nothing to express (and no arrays to index) */
+        flint_free(sidx);
+        return;
+    }
     /* Back substitution from the last column: a unit-pivot column is minus
      * the rest of its row. */
     for (slong c = n - 1; c >= 0; c--) {

@@ -590,18 +590,30 @@ void pcp_elt_pow(pcp_work_t W, fmpz *out, const fmpz *u, const fmpz_t e)
     fmpz_t E;
     fmpz_init(E);
     fmpz_abs(E, e);
-    /* A single generator to a power is one collection step:
-     * (a_g^x)^e = a_g^(x e) in any group. */
-    slong nz = 0, g = -1;
+    /* A single generator times central ones is one collection step per
+     * generator: (a_g^x z)^e = a_g^(x e) z^e for z central (generators
+     * >= ncore commute with everything), in any group.  This keeps the
+     * cost of the conjugation automorphisms in conj_by_power independent
+     * of the size of their exponents (issue 8: a^(10^1000) at class 3). */
+    slong g = -1;
+    int head_central = 1;
     for (slong k = 0; k < n; k++)
         if (!fmpz_is_zero(u + k)) {
-            nz++;
-            g = k;
+            if (g < 0)
+                g = k;
+            else if (k < W->P->ncore) {
+                head_central = 0;
+                break;
+            }
         }
-    if (nz == 1) {
-        fmpz_mul(E, u + g, e);
-        pcp_collect_gen(W, res, g, E);
-    } else if (nz > 1 && W->P->torsion_free && !W->plain && fmpz_bits(e) > PCP_SMALL_BITS) {
+    if (g >= 0 && head_central) {
+        for (slong k = g; k < n && !W->overflow; k++) {
+            if (fmpz_is_zero(u + k))
+                continue;
+            fmpz_mul(E, u + k, e);
+            pcp_collect_gen(W, res, k, E);
+        }
+    } else if (g >= 0 && W->P->torsion_free && !W->plain && fmpz_bits(e) > PCP_SMALL_BITS) {
         const pcp_struct *P = W->P;
         slong f = first_nonzero(u, n), m = P->weight[f], D = P->maxweight / m, len = n - f;
         slong *from = flint_malloc((D + 1) * sizeof(slong));
@@ -620,7 +632,7 @@ void pcp_elt_pow(pcp_work_t W, fmpz *out, const fmpz *u, const fmpz_t e)
         pcw_clear(uw);
         flint_free(from);
         _fmpz_vec_clear(smp, (D + 1) * len);
-    } else if (nz > 1) {
+    } else if (g >= 0) {
         /* square and multiply; only this branch needs u^-1 for e < 0 */
         if (fmpz_sgn(e) < 0)
             pcp_elt_inv(W, base, u);

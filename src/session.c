@@ -750,14 +750,34 @@ static ns_status io_error(nserr_t err, const char *what, const char *path, int e
 
 ns_status session_load(session_t s, const char *path, nserr_t err)
 {
-    FILE *f = fopen(path, "rb");
     char *buf = NULL;
     size_t len = 0, cap = 0;
     session_t t;
     ns_status st;
+    struct stat info;
+    FILE *f;
+    /* O_NONBLOCK: opening a FIFO must not wait for a writer; anything but
+     * a regular file is refused before a byte is read. */
+    int fd = open(path, O_RDONLY | O_NONBLOCK);
 
-    if (f == NULL)
+    if (fd < 0)
         return io_error(err, "cannot open", path, errno);
+    if (fstat(fd, &info) != 0) {
+        int e = errno;
+        close(fd);
+        return io_error(err, "cannot open", path, e);
+    }
+    if (!S_ISREG(info.st_mode)) {
+        close(fd);
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "'%s' is not a regular file", path);
+    }
+    fcntl(fd, F_SETFL, fcntl(fd, F_GETFL) & ~O_NONBLOCK);
+    f = fdopen(fd, "rb");
+    if (f == NULL) {
+        int e = errno;
+        close(fd);
+        return io_error(err, "cannot open", path, e);
+    }
     for (;;) {
         size_t got;
         if (cap - len < 65536) {

@@ -106,7 +106,8 @@ int session_equal(const session_t a, const session_t b);
 ns_status session_parse(session_t s, const char *text, nserr_t err);
 
 /* Reads and parses the file at path (at most SESSION_MAX_BYTES; NUL bytes
- * and invalid UTF-8 are located errors).  Nothing in the file is executed.
+ * and invalid UTF-8 are located errors; a FIFO, directory or device is
+ * refused at once with NS_ERR_INPUT).  Nothing in the file is executed.
  * On failure s is unchanged. */
 ns_status session_load(session_t s, const char *path, nserr_t err);
 

@@ -1194,6 +1194,70 @@ static void hand_written_consistency(void **state)
     }
 }
 
+
+/* Counts the engine's polls (one every 2^12 collection steps). */
+static int count_polls(void *ctx, const char *stage, double fraction)
+{
+    (void)fraction;
+    if (stage == NULL)
+        (*(slong *)ctx)++;
+    return 0;
+}
+
+/* Collection work for the class-3 quotient of <a, b | a^(10^K)>, in polls
+ * of 2^12 steps; checks the layers against the free Lie ring on x of order
+ * M = 10^K and y free: L1 = Z + Z/M, L2 = Z/M ([y,x]), L3 = (Z/M)^2 ([y,x,x],
+ * [y,x,y]) (Lazard's elimination; the Lie ring of Z/M * Z, from memory). */
+static slong quotient_polls(slong K)
+{
+    char text[4200];
+    int len = snprintf(text, sizeof text, "<a, b | a^1");
+    for (slong k = 0; k < K; k++)
+        text[len++] = '0';
+    snprintf(text + len, sizeof text - (size_t)len, ">");
+    pres_t G;
+    nq_t Q;
+    nserr_t err;
+    slong polls = 0;
+    ns_progress_t hook = {count_polls, &polls};
+    pres_init(G);
+    nq_init(Q);
+    nserr_init(err);
+    parse_pres_or_fail(G, text);
+    if (nq_compute(Q, G, 3, &hook, err) != NS_OK)
+        fail_msg("K = %ld: %s", (long)K, err->msg);
+    assert_int_equal(Q->hirsch_length, 1);
+    assert_int_equal(Q->pcp->n, 5); /* a, b, [b,a], [b,a,a], [b,a,b] */
+    fmpz_t M;
+    fmpz_init_set_ui(M, 10);
+    fmpz_pow_ui(M, M, (ulong)K);
+    slong finite = 0;
+    for (slong i = 0; i < Q->pcp->n; i++)
+        if (!fmpz_is_zero(Q->pcp->relorder + i)) {
+            assert_true(fmpz_equal(Q->pcp->relorder + i, M));
+            finite++;
+        }
+    assert_int_equal(finite, 4);
+    fmpz_clear(M);
+    nq_clear(Q);
+    pres_clear(G);
+    return polls;
+}
+
+/* Issue 8: the size of an exponent must not drive the cost beyond the
+ * number of its bits (a^(10^1000) at class 3 took 18.7 s, all in the
+ * consistency check, quadratic in the digits).  Counted in collection
+ * steps, not timed: four times the digits may cost at most about four
+ * times the work. */
+static void power_cost_grows_at_most_with_the_bits(void **state)
+{
+    (void)state;
+    slong small = quotient_polls(100), big = quotient_polls(400);
+    printf("# <a,b | a^(10^K)> class 3: %ld polls of 2^12 steps for K = 100, %ld for K = 400\n",
+           (long)small, (long)big);
+    assert_true(big <= 6 * small + 20);
+}
+
 /* pcp_consistency_run hands both sides to the callback and stops when it
  * returns nonzero. */
 static int count_tests(void *vctx, const fmpz *l, const fmpz *r)
@@ -1240,6 +1304,7 @@ int main(void)
         cmocka_unit_test(unitriangular_matrix_model),
         cmocka_unit_test(hand_written_consistency),
         cmocka_unit_test(consistency_run_callback),
+        cmocka_unit_test(power_cost_grows_at_most_with_the_bits),
     };
     return cmocka_run_group_tests(tests, setup_seed, NULL);
 }

@@ -764,12 +764,16 @@ static void save_should_not_split_hard_links(void **state)
     parse_ok(s, example);
     snprintf(a, sizeof a, "%s/a.nilstep", dir);
     snprintf(b, sizeof b, "%s/b.nilstep", dir);
-    write_file(a, "a much longer old content than the new one will be, to be cut\n"
-                  "a much longer old content than the new one will be, to be cut\n"
-                  "a much longer old content than the new one will be, to be cut\n"
-                  "a much longer old content than the new one will be, to be cut\n"
-                  "a much longer old content than the new one will be, to be cut\n",
-               315);
+    {
+        static const char old[] = "a much longer old content than the new one will be, to be cut\n"
+                                  "a much longer old content than the new one will be, to be cut\n"
+                                  "a much longer old content than the new one will be, to be cut\n"
+                                  "a much longer old content than the new one will be, to be cut\n"
+                                  "a much longer old content than the new one will be, to be cut\n"
+                                  "a much longer old content than the new one will be, to be cut\n"
+                                  "a much longer old content than the new one will be, to be cut\n";
+        write_file(a, old, sizeof old - 1);
+    }
     assert_int_equal(chmod(a, 0600), 0);
     assert_int_equal(link(a, b), 0);
     assert_int_equal(session_save(s, a, err), NS_OK);

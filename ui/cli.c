@@ -1,10 +1,13 @@
 /* cli.c — see cli.h.  The only place besides the explorer that prints. */
+#include <stddef.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <time.h>
 #include <unistd.h>
 #include "analysis.h"
 #include "cli.h"
+#include "memlimit.h"
 #include "report.h"
 #include "session.h"
 
@@ -14,6 +17,7 @@ void cli_print_help(FILE *out)
           "       nilstep report [--format text|json|latex] FILE\n"
           "       nilstep report --group PRES --class C [--map MAP] [--format text|json|latex]\n"
           "                      [--power K] [--then MAP2] [--inverse]\n"
+          "                      [--time-limit SECONDS] [--max-memory SIZE]\n"
           "       nilstep scan (FILE | --group PRES --class C) --family TEMPLATE\n"
           "                    --range NAME=LO..HI ... [options]   (nilstep scan --help)\n"
           "       nilstep scan --summary OUT\n"
@@ -36,6 +40,9 @@ void cli_print_help(FILE *out)
           "    --then MAP2       analyse the composite: first the map, then MAP2\n"
           "    --inverse         also compute the images of the inverse of the\n"
           "                      (resulting) map, for automorphisms\n"
+          "    --time-limit S    stop after S seconds (exit 3, naming the stage)\n"
+          "    --max-memory SIZE stop when FLINT and GMP would hold more than SIZE\n"
+          "                      (e.g. 512M, 4G; default: half the physical memory)\n"
           "  scan                many maps of one group: a family with integer\n"
           "                      parameters, or JSON Lines on standard input, written\n"
           "                      as JSON Lines (nilstep scan --help)\n"
@@ -70,21 +77,66 @@ static int report_error(const nserr_t err, const char *where)
     return 2;
 }
 
+/* Progress and the time limit: every call from the engine lands here. */
 typedef struct {
-    int shown;
+    int shown;         /* a progress line is on stderr */
+    int tty;           /* stderr is a terminal: show progress */
+    double limit;      /* --time-limit in seconds, 0 none */
+    double start;      /* when the run began */
+    double last_shown; /* when the line was last written */
+    int timed_out;
+    char stage[128]; /* the last stage the engine named */
 } progress_state;
 
-/* Progress on stderr, only when it is a terminal. */
+static double cli_now(void)
+{
+    struct timespec t;
+    clock_gettime(CLOCK_MONOTONIC, &t);
+    return (double)t.tv_sec + 1e-9 * (double)t.tv_nsec;
+}
+
+/* Shows "nilstep: STAGE [NN%]" on a terminal (at most ten times a second)
+ * and stops the computation when the time limit has passed. */
 static int show_progress(void *ctx, const char *stage, double fraction)
 {
     progress_state *p = ctx;
-    (void)fraction;
-    if (stage) {
-        fprintf(stderr, "\r\033[Knilstep: %s", stage);
+    double now = cli_now();
+    if (stage)
+        snprintf(p->stage, sizeof p->stage, "%s", stage);
+    if (p->limit > 0 && now - p->start > p->limit) {
+        p->timed_out = 1;
+        return 1;
+    }
+    if (p->tty && (stage || now - p->last_shown >= 0.1)) {
+        p->last_shown = now;
+        if (fraction >= 0 && fraction <= 1)
+            fprintf(stderr, "\r\033[Knilstep: %s  %3.0f%%", p->stage, 100 * fraction);
+        else
+            fprintf(stderr, "\r\033[Knilstep: %s", p->stage);
         fflush(stderr);
         p->shown = 1;
     }
     return 0;
+}
+
+static void progress_erase(progress_state *p)
+{
+    if (p->shown)
+        fputs("\r\033[K", stderr);
+    p->shown = 0;
+}
+
+/* The exit status for a failed stage: a time-limit stop names the stage
+ * the engine was in; anything else goes through report_error. */
+static int stage_error(progress_state *p, const nserr_t err, const char *where, const char *doing)
+{
+    progress_erase(p);
+    if (p->timed_out && err->status == NS_ERR_CANCELLED) {
+        fprintf(stderr, "nilstep report: time limit of %g s reached while %s (%s)\n", p->limit,
+                doing, p->stage[0] ? p->stage : "starting");
+        return 3;
+    }
+    return report_error(err, where);
 }
 
 /* Replaces the analysed map by alpha^k (--power) and then by beta o alpha
@@ -143,59 +195,100 @@ static int derived_map(analysis_t A, const char *power, const char *then,
     return 0;
 }
 
-int cli_report(int argc, char **argv)
+/* What `nilstep report` was asked, as given (values unparsed). */
+typedef struct {
+    const char *format, *file, *group, *cls, *map, *power, *then;
+    const char *time_limit, *max_memory;
+    int inverse;
+} cli_options;
+
+/* Fills o from the arguments.  Returns -1 when they are usable, else the
+ * exit status (0 after --help, 2 after a usage message).  A missing value
+ * is named by its option (an argument starting with "--" is never taken as
+ * a value); an option given twice is an error. */
+static int cli_parse_args(cli_options *o, int argc, char **argv)
 {
-    const char *format = "text", *file = NULL, *group = NULL, *cls = NULL, *map = NULL;
-    const char *power = NULL, *then = NULL;
-    int inverse = 0;
+    static const struct {
+        const char *name;
+        size_t slot; /* offset of the const char * in cli_options */
+    } opts[] = {
+        {"--format", offsetof(cli_options, format)},
+        {"--group", offsetof(cli_options, group)},
+        {"--class", offsetof(cli_options, cls)},
+        {"--map", offsetof(cli_options, map)},
+        {"--power", offsetof(cli_options, power)},
+        {"--then", offsetof(cli_options, then)},
+        {"--time-limit", offsetof(cli_options, time_limit)},
+        {"--max-memory", offsetof(cli_options, max_memory)},
+    };
+    char msg[300];
+    memset(o, 0, sizeof *o);
     for (int i = 1; i < argc; i++) {
         const char *a = argv[i];
-        const char **slot = NULL;
-        if (!strcmp(a, "--format"))
-            slot = &format;
-        else if (!strcmp(a, "--group"))
-            slot = &group;
-        else if (!strcmp(a, "--class"))
-            slot = &cls;
-        else if (!strcmp(a, "--map"))
-            slot = &map;
-        else if (!strcmp(a, "--power"))
-            slot = &power;
-        else if (!strcmp(a, "--then"))
-            slot = &then;
-        else if (!strcmp(a, "--inverse")) {
-            inverse = 1;
-            continue;
+        size_t k = 0, nopts = sizeof opts / sizeof opts[0];
+        while (k < nopts && strcmp(a, opts[k].name) != 0)
+            k++;
+        if (k < nopts) {
+            const char **slot = (const char **)((char *)o + opts[k].slot);
+            if (*slot != NULL) {
+                snprintf(msg, sizeof msg, "option '%s' given twice", a);
+                return usage(msg);
+            }
+            if (i + 1 >= argc || strncmp(argv[i + 1], "--", 2) == 0) {
+                snprintf(msg, sizeof msg, "option '%s' needs a value", a);
+                return usage(msg);
+            }
+            *slot = argv[++i];
+        } else if (!strcmp(a, "--inverse")) {
+            if (o->inverse)
+                return usage("option '--inverse' given twice");
+            o->inverse = 1;
         } else if (!strcmp(a, "--help") || !strcmp(a, "-h")) {
             cli_print_help(stdout);
             return 0;
         } else if (a[0] == '-' && a[1] != '\0') {
-            char msg[300];
             snprintf(msg, sizeof msg, "unknown option '%.200s'", a);
             return usage(msg);
-        } else if (file) {
+        } else if (o->file) {
             return usage("only one FILE may be given");
         } else {
-            file = a;
-            continue;
+            o->file = a;
         }
-        if (i + 1 >= argc) {
-            char msg[300];
-            snprintf(msg, sizeof msg, "option '%s' needs a value", a);
-            return usage(msg);
-        }
-        *slot = argv[++i];
     }
-    int fmt = report_parse_format(format);
-    if (fmt < 0)
+    if (o->format == NULL)
+        o->format = "text";
+    if (report_parse_format(o->format) < 0)
         return usage("--format takes text, json or latex");
-    if (file && (group || cls || map))
+    if (o->file && (o->group || o->cls || o->map))
         return usage("give either FILE or --group/--class/--map, not both");
-    if (!file && !group)
+    if (!o->file && !o->group)
         return usage("no FILE and no --group given");
-    if (group && !cls)
+    if (o->group && !o->cls)
         return usage("--group needs --class");
+    if (o->time_limit) {
+        char *end;
+        double t = strtod(o->time_limit, &end);
+        if (*o->time_limit == '\0' || *end != '\0' || !(t > 0) || t > 1e9)
+            return usage("--time-limit takes a positive number of seconds");
+    }
+    if (o->max_memory) {
+        size_t m;
+        if (memlimit_parse_size(&m, o->max_memory) != 0)
+            return usage("--max-memory takes a size such as 512M or 4G (K, M, G, T: powers "
+                         "of 1024)");
+    }
+    return -1;
+}
 
+/* Runs the report o describes; returns the exit status. */
+static int cli_run(const cli_options *o)
+{
+    int fmt = report_parse_format(o->format);
+    if (o->max_memory) {
+        size_t m = 0;
+        memlimit_parse_size(&m, o->max_memory);
+        memlimit_set_max_memory(m, "the --max-memory limit");
+    }
     nserr_t err;
     nserr_init(err);
     session_t s;
@@ -209,12 +302,19 @@ int cli_report(int argc, char **argv)
     const char *gtext, *mtext = NULL, *title = NULL;
     int gline = 1, gcol = 1, mline = 1, mcol = 1;
     long c = 0;
-    if (file) {
-        if (session_load(s, file, err) != NS_OK) {
-            status = report_error(err, file);
+    progress_state ps;
+    memset(&ps, 0, sizeof ps);
+    ps.tty = isatty(2);
+    ps.limit = o->time_limit ? strtod(o->time_limit, NULL) : 0;
+    ps.start = cli_now();
+    ns_progress_t prog = {show_progress, &ps};
+    const ns_progress_t *pp = ps.tty || ps.limit > 0 ? &prog : NULL;
+    if (o->file) {
+        if (session_load(s, o->file, err) != NS_OK) {
+            status = report_error(err, o->file);
             goto done;
         }
-        where_group = where_map = file;
+        where_group = where_map = o->file;
         gtext = s->group.text;
         gline = s->group.line;
         gcol = s->group.col;
@@ -228,11 +328,11 @@ int cli_report(int argc, char **argv)
     } else {
         where_group = "--group";
         where_map = "--map";
-        gtext = group;
-        mtext = map;
+        gtext = o->group;
+        mtext = o->map;
         char *end;
-        c = strtol(cls, &end, 10);
-        if (*cls == '\0' || *end != '\0' || c < 1 || c > NQ_MAX_CLASS) {
+        c = strtol(o->cls, &end, 10);
+        if (*o->cls == '\0' || *end != '\0' || c < 1 || c > NQ_MAX_CLASS) {
             char msg[200];
             snprintf(msg, sizeof msg, "--class takes a whole number from 1 to %d", NQ_MAX_CLASS);
             status = usage(msg);
@@ -243,37 +343,41 @@ int cli_report(int argc, char **argv)
         status = report_error(err, where_group);
         goto done;
     }
-    progress_state ps = {0};
-    ns_progress_t prog = {show_progress, &ps};
-    const ns_progress_t *pp = isatty(2) ? &prog : NULL;
+    char doing[64];
+    snprintf(doing, sizeof doing, "computing the class-%ld quotient", c);
     ns_status st = analysis_set_group(A, G, (slong)c, pp, err);
-    if (ps.shown)
-        fputs("\r\033[K", stderr);
     if (st != NS_OK) {
-        status = report_error(err, where_group);
+        status = stage_error(&ps, err, where_group, doing);
         goto done;
     }
+    progress_erase(&ps);
     if (mtext) {
         st = analysis_set_map_text(A, mtext, mline, mcol, pp, err);
-        if (ps.shown)
-            fputs("\r\033[K", stderr);
         if (st != NS_OK) {
-            status = report_error(err, where_map);
+            status = stage_error(&ps, err, where_map, "analysing the map");
             goto done;
         }
-        status = derived_map(A, power, then, pp, err);
-        if (status != 0)
+        progress_erase(&ps);
+        status = derived_map(A, o->power, o->then, pp, err);
+        if (status != 0) {
+            if (ps.timed_out) {
+                progress_erase(&ps);
+                fprintf(stderr, "nilstep report: time limit of %g s reached while %s (%s)\n",
+                        ps.limit, "deriving the map", ps.stage);
+                status = 3;
+            }
             goto done;
-        if (inverse) {
+        }
+        progress_erase(&ps);
+        if (o->inverse) {
             st = analysis_set_inverse(A, pp, err);
-            if (ps.shown)
-                fputs("\r\033[K", stderr);
             if (st != NS_OK) {
-                status = report_error(err, "--inverse");
+                status = stage_error(&ps, err, "--inverse", "inverting the map");
                 goto done;
             }
+            progress_erase(&ps);
         }
-    } else if (power || then || inverse) {
+    } else if (o->power || o->then || o->inverse) {
         status = usage("--power, --then and --inverse need a map");
         goto done;
     }
@@ -288,6 +392,7 @@ int cli_report(int argc, char **argv)
         status = 3;
     }
 done:
+    progress_erase(&ps);
     analysis_clear(A);
     pres_clear(G);
     session_clear(s);
@@ -297,4 +402,11 @@ done:
         status = 2;
     }
     return status;
+}
+
+int cli_report(int argc, char **argv)
+{
+    cli_options o;
+    int status = cli_parse_args(&o, argc, argv);
+    return status >= 0 ? status : cli_run(&o);
 }

@@ -4,6 +4,7 @@
 #include <string.h>
 #include "cli.h"
 #include "explorer.h"
+#include "memlimit.h"
 
 #ifndef NILSTEP_VERSION
 #define NILSTEP_VERSION "unknown"
@@ -14,6 +15,8 @@ int main(int argc, char **argv)
     /* A file-size limit (ulimit -f) must be a write error (EFBIG) that we
      * report, not a signal that kills the explorer with the work unsaved. */
     signal(SIGXFSZ, SIG_IGN);
+    /* Out of memory is exit 3 with the limit named, never an abort. */
+    memlimit_install();
     if (argc >= 2 && !strcmp(argv[1], "report"))
         return cli_report(argc - 1, argv + 1);
     if (argc >= 2 && !strcmp(argv[1], "scan"))
