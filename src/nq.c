@@ -367,7 +367,7 @@ static ns_status step_tailed_presentation(step_struct *S, const nq_t Q, pcp_work
             fmpz_one(S->img + x * N + n + S->imgtail[x]);
     }
     W->P = S->E;
-    if (pcp_complete(S->E, W))
+    if (pcp_complete_from(S->E, Q->pcp, W))
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld", (long)(c + 1));
     return NS_OK;
 }
@@ -492,7 +492,7 @@ static ns_status step_extend(step_struct *S, nq_t Q, pcp_work_t W, nserr_t err)
     _fmpz_vec_clear(v, ns);
     W->P = R;
     ns_status st = NS_OK;
-    if (pcp_complete(R, W)) {
+    if (pcp_complete_from(R, Q->pcp, W)) {
         st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld", (long)(c + 1));
         _fmpz_vec_clear(img2, FLINT_MAX(X * M, 1));
     } else {

@@ -793,6 +793,123 @@ int pcp_complete(pcp_t P, pcp_work_t W)
     return W->overflow;
 }
 
+/* y := the normal form y0 z^-1 for the old element y0 (entries below n0)
+ * and z whose entries below n0 are zero; returns 0 when z has an entry
+ * below n0 (then the caller falls back to pcp_complete's way). */
+static int correct_by_central(fmpz *y, const fmpz *y0, const fmpz *z, slong n0, slong n)
+{
+    for (slong k = 0; k < n0; k++)
+        if (!fmpz_is_zero(z + k))
+            return 0;
+    _fmpz_vec_set(y, y0, n0);
+    _fmpz_vec_neg(y + n0, z + n0, n - n0);
+    return 1;
+}
+
+/* The vector of a stored word of prev (indices below prev->n), or of a_k^s
+ * (s = +-1) when the stored word is absent. */
+static void old_word_vec(fmpz *y, slong n, const pcw_struct *w, slong k, int s)
+{
+    if (w)
+        pcw_get_vec(y, n, w);
+    else {
+        _fmpz_vec_zero(y, n);
+        fmpz_set_si(y + k, s);
+    }
+}
+
+int pcp_complete_from(pcp_t P, const pcp_t prev, pcp_work_t W)
+{
+    slong n = P->n, n0 = prev->n;
+    P->torsion_free = 1;
+    for (slong i = 0; i < n; i++)
+        if (!fmpz_is_zero(P->relorder + i))
+            P->torsion_free = 0;
+    fmpz *y = _fmpz_vec_init(n);
+    fmpz *y0 = _fmpz_vec_init(n);
+    fmpz *z = _fmpz_vec_init(n);
+    fmpz *ak = _fmpz_vec_init(n);
+    for (slong i = n - 1; i >= 0 && !W->overflow; i--) {
+        if (!fmpz_is_zero(P->relorder + i)) {
+            /* powinv: (y0 pow) is central when y0 inverts pow modulo it */
+            int done = 0;
+            if (i < n0 && !fmpz_is_zero(prev->relorder + i)) {
+                pcw_get_vec(y0, n, prev->powinv + i);
+                _fmpz_vec_set(z, y0, n);
+                pcp_collect_word(W, z, P->pow + i);
+                done = correct_by_central(y, y0, z, n0, n);
+            }
+            if (!done) {
+                pcw_get_vec(y, n, P->pow + i);
+                pcp_elt_inv(W, y, y);
+            }
+            pcw_set_vec(P->powinv + i, y, n);
+        }
+        if (i >= P->ncore)
+            continue;
+        for (slong k = i + 1; k < P->ncore; k++) {
+            slong s = pcp_slot(k, i);
+            if (P->trivial[s])
+                continue;
+            int inprev = k < prev->ncore && !prev->trivial[s];
+            int done = 0;
+            if (inprev || fmpz_is_zero(P->relorder + k)) {
+                old_word_vec(y0, n, inprev ? prev->conjinv + s : NULL, k, -1);
+                _fmpz_vec_set(z, y0, n);
+                pcp_collect_word(W, z, P->conj + s);
+                done = correct_by_central(y, y0, z, n0, n);
+            }
+            if (!done) {
+                pcw_get_vec(y, n, P->conj + s);
+                pcp_elt_inv(W, y, y);
+            }
+            pcw_set_vec(P->conjinv + s, y, n);
+        }
+        /* a_k^(a_i^-1) = y0 z^-1 where y0 is the old one and y0^(a_i) =
+         * a_k z with z central: one conjugation instead of pcp_complete's
+         * rounds; then its inverse the same way */
+        for (slong k = i + 1; k < P->ncore; k++) {
+            slong s = pcp_slot(k, i);
+            if (P->trivial[s])
+                continue;
+            int inprev = k < prev->ncore && !prev->trivial[s];
+            old_word_vec(y0, n, inprev ? prev->conjm + s : NULL, k, 1);
+            conj_once(W, z, y0, i);
+            fmpz_sub_ui(z + k, z + k, 1);
+            int done = correct_by_central(y, y0, z, n0, n);
+            if (!done) {
+                _fmpz_vec_zero(ak, n);
+                fmpz_one(ak + k);
+                _fmpz_vec_set(y, ak, n);
+                for (slong round = 0; round <= P->maxweight + 1 && !W->overflow; round++) {
+                    conj_once(W, z, y, i);
+                    if (_fmpz_vec_equal(z, ak, n))
+                        break;
+                    pcp_elt_inv(W, z, z);
+                    pcp_elt_mul(W, y, y, z);
+                    pcp_elt_mul(W, y, y, ak);
+                }
+            }
+            pcw_set_vec(P->conjm + s, y, n);
+            done = 0;
+            if (inprev || fmpz_is_zero(P->relorder + k)) {
+                old_word_vec(y0, n, inprev ? prev->conjminv + s : NULL, k, -1);
+                _fmpz_vec_set(z, y0, n);
+                pcp_collect_word(W, z, P->conjm + s);
+                done = correct_by_central(z, y0, z, n0, n);
+            }
+            if (!done)
+                pcp_elt_inv(W, z, y);
+            pcw_set_vec(P->conjminv + s, z, n);
+        }
+    }
+    _fmpz_vec_clear(y, n);
+    _fmpz_vec_clear(y0, n);
+    _fmpz_vec_clear(z, n);
+    _fmpz_vec_clear(ak, n);
+    return W->overflow;
+}
+
 /* ------------------------------------------------------------- output */
 
 char *pcp_elt_get_str(const pcp_t P, const fmpz *u, char *const *names)

@@ -119,6 +119,15 @@ void pcp_work_clear(pcp_work_t W);
  * Returns 0, or 1 when W ran out of budget. */
 int pcp_complete(pcp_t P, pcp_work_t W);
 
+/* The same tables for a presentation P that extends prev by central
+ * generators of weight P->maxweight = prev->maxweight + 1 (indices
+ * prev->n ..): P's relations are prev's times words in those generators.
+ * Each inverse word is prev's times a central correction found by one
+ * collection (the inverse of w t, t central, is w^-1 t^-1), instead of
+ * inverting and iterating from scratch; where that does not apply it falls
+ * back to pcp_complete's way.  Returns 0, or 1 when W ran out of budget. */
+int pcp_complete_from(pcp_t P, const pcp_t prev, pcp_work_t W);
+
 /* u := u * a_i^e.  u has P->n entries in normal form. */
 void pcp_collect_gen(pcp_work_t W, fmpz *u, slong i, const fmpz_t e);
 /* u := u * w. */
