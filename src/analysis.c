@@ -117,6 +117,7 @@ static void clear_group(analysis_t A)
         A->nlayers = 0;
         A->has_group = A->group_borrowed = 0;
         nq_init(A->nq); /* forget the borrowed struct; nothing to free */
+        torsion_init(A->tors); /* likewise the borrowed torsion subgroup */
         return;
     }
     for (slong j = 0; j < A->nlayers; j++) {
@@ -248,6 +249,8 @@ void analysis_share_group(analysis_t A, const analysis_t src)
     A->class_requested = src->class_requested;
     A->nlayers = src->nlayers;
     A->layers_torsion_free = src->layers_torsion_free;
+    torsion_clear(A->tors);
+    *A->tors = *src->tors; /* shallow, like nq: read only while borrowed */
     A->layers = flint_calloc((size_t)FLINT_MAX(A->nlayers, 1), sizeof(analysis_layer_struct));
     for (slong j = 0; j < A->nlayers; j++) {
         analysis_layer_struct *L = A->layers + j;

@@ -123,6 +123,26 @@ static void klein_bottle_quotients(void **state)
     }
 }
 
+/* A second analysis that borrows the group (as the scan threads do) sees
+ * the same torsion subgroup and gets the same numbers: the Klein bottle
+ * quotient at class 3 with a -> a, t -> t^3 has R = 2^3 + 2 = 10 (above). */
+static void shared_group_keeps_torsion(void **state)
+{
+    (void)state;
+    analysis_t A, B;
+    analysis_init(A);
+    analysis_init(B);
+    set_group(A, "<a, t | t^-1 a t = a^-1>", 3);
+    analysis_share_group(B, A);
+    assert_int_equal(si(B->tors->order), 8);
+    set_map(B, "a -> a, t -> t^3");
+    assert_int_equal(B->reid_kind, ANALYSIS_REID_FINITE);
+    assert_int_equal(si(B->reidemeister), 10);
+    analysis_clear(B);
+    assert_int_equal(si(A->tors->order), 8);
+    analysis_clear(A);
+}
+
 /* Gc = Z^2 x Z/2 = <a, b, z | z^2, [a,b], [a,z], [b,z]> and product maps
  * beta x gamma.  R multiplies over direct products (the twisted classes of
  * a product are the products of twisted classes; common practice); on Z^2,
@@ -256,6 +276,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(klein_bottle_quotients),
+        cmocka_unit_test(shared_group_keeps_torsion),
         cmocka_unit_test(product_with_z2),
         cmocka_unit_test(layer_torsion_that_does_not_lift),
         cmocka_unit_test(surface_times_z2),
