@@ -249,9 +249,15 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
         char line[256];
         size_t k = 0;
         char *o = fmpz_get_str(NULL, 10, T->order);
-        k += (size_t)snprintf(line, sizeof line, "   T: order %.40s%s   Gc/T:", o,
-                              T->finite ? " (Gc finite)" : "");
+        k += (size_t)snprintf(line, sizeof line, "   T: order %.40s", o);
         flint_free(o);
+        for (slong t = 0; T->abelian && t < T->ninv && k + 40 < sizeof line; t++) {
+            char *d = fmpz_get_str(NULL, 10, T->inv + t);
+            k += (size_t)snprintf(line + k, sizeof line - k, "%sZ/%.20s", t ? " + " : " = ", d);
+            flint_free(d);
+        }
+        k += (size_t)snprintf(line + k, sizeof line - k, "%s   Gc/T:",
+                              T->finite ? " (Gc finite)" : "");
         for (slong j = 0; j < A->nlayers && k + 24 < sizeof line; j++) {
             const analysis_layer_struct *L = A->layers + j;
             slong nt = j < T->nlayers ? T->q_ntors[j] : 0;
