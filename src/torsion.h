@@ -56,6 +56,10 @@ typedef struct {
     slong *q_ntors;    /* nlayers: invariant factors of L_j / U_j */
     fmpz **q_tors;
     int quotient_layers_free; /* every L_j / U_j is torsion-free */
+    slong nsteps;
+    tsub_struct *steps; /* steps[k]: the torsion subgroup of G/gamma_(k+1)
+                           (k < nsteps; steps[0] = 1), for the isolator
+                           series of Gc/T; only when T was computed by steps */
 } torsion_struct;
 typedef torsion_struct torsion_t[1];
 
@@ -106,5 +110,6 @@ void tsub_clear(tsub_t S);
 void tsub_add(tsub_t S, pcp_work_t W, const fmpz *gens, slong ngens, const fmpz *conj_by,
               slong nconj, slong keep);
 void tsub_order(fmpz_t order, const tsub_t S);
+void tsub_set(tsub_t D, const tsub_t S);
 
 #endif

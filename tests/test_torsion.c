@@ -212,6 +212,43 @@ static void layer_torsion_that_does_not_lift(void **state)
     analysis_clear(A);
 }
 
+/* Gc/T torsion-free but with torsion in a layer, and T != 1: products of
+ * the group above (R = 10 for its map, by the product formula) with Z/2
+ * (R(id) = 2, R(trivial) = 1) and with the class-3 Klein bottle quotient
+ * (R = 2^3 + 2 = 10 for a -> a, t -> t^3, see klein_bottle_quotients).  R
+ * multiplies over direct products, and the lower central series of a
+ * direct product is the product of theirs, so Gc is the product too:
+ *   (x -> x^2, y -> y^3, z -> z^6) x (w -> w)        R = 10 * 2 = 20;
+ *   (x -> x^2, y -> y^3, z -> z^6) x (w -> 1)        R = 10 * 1 = 10;
+ *   (a -> a, t -> t^3) x (x -> x^2, ...)            R = 10 * 10 = 100,
+ *                                                   L = (-2)(-10) = 20. */
+static void quotient_layers_with_torsion(void **state)
+{
+    (void)state;
+    analysis_t A;
+    analysis_init(A);
+    set_group(A, "<x, y, z, w | [y,x] = z^2, [z,x], [z,y], w^2, [w,x], [w,y], [w,z]>", 2);
+    assert_int_equal(si(A->tors->order), 2);
+    assert_false(A->tors->quotient_layers_free);
+    set_map(A, "x -> x^2, y -> y^3, z -> z^6, w -> w");
+    check_t_closed(A);
+    assert_int_equal(A->reid_kind, ANALYSIS_REID_FINITE);
+    assert_int_equal(si(A->reidemeister), 20);
+    set_map(A, "x -> x^2, y -> y^3, z -> z^6, w -> 1");
+    assert_int_equal(si(A->reidemeister), 10);
+    set_group(A,
+              "<a, t, x, y, z | t^-1 a t = a^-1, [y,x] = z^2, [z,x], [z,y], [a,x], [a,y], "
+              "[a,z], [t,x], [t,y], [t,z]>",
+              3);
+    assert_int_equal(si(A->tors->order), 8);
+    set_map(A, "a -> a, t -> t^3, x -> x^2, y -> y^3, z -> z^6");
+    check_t_closed(A);
+    assert_int_equal(si(A->lefschetz), 20);
+    assert_int_equal(A->reid_kind, ANALYSIS_REID_FINITE);
+    assert_int_equal(si(A->reidemeister), 100);
+    analysis_clear(A);
+}
+
 /* surface(2) x Z/2: T = <z> of order 2, central; Gc/T = the class-c
  * quotient of the surface group, whose layers are torsion-free (Labute
  * 1970).  The map swapping the handles fixes z. */
@@ -279,6 +316,7 @@ int main(void)
         cmocka_unit_test(shared_group_keeps_torsion),
         cmocka_unit_test(product_with_z2),
         cmocka_unit_test(layer_torsion_that_does_not_lift),
+        cmocka_unit_test(quotient_layers_with_torsion),
         cmocka_unit_test(surface_times_z2),
         cmocka_unit_test(too_large_to_count),
         cmocka_unit_test(torsion_free_untouched),
