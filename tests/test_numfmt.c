@@ -72,6 +72,38 @@ static void clip_should_mark_what_it_cut(void **state)
     assert_string_equal(tiny, "\xCE\xB1");
 }
 
+/* The shortened form must stay true: its leading digits are a prefix of
+ * the number, the exponent is the number of digits minus one, and the
+ * digit count is the length (counted here with Python's len(str(n)) in
+ * mind: 2^200 has 61 digits, computed by hand from 200*log10(2) = 60.2). */
+static void integers_should_be_whole_or_marked(void **state)
+{
+    (void)state;
+    char buf[128];
+    assert_int_equal(numfmt_integer(buf, sizeof buf, "123456", 6, 0), 0);
+    assert_string_equal(buf, "123456");
+    assert_int_equal(numfmt_integer(buf, sizeof buf, "-7", 2, 0), 0);
+    assert_string_equal(buf, "-7");
+    const char *two200 = "1606938044258990275541962092341162602522202993782792835301376";
+    assert_int_equal(numfmt_integer(buf, sizeof buf, two200, 24, 1), 1);
+    assert_string_equal(buf, "1.606938~e60 (61 digits)");
+    assert_int_equal(numfmt_integer(buf, sizeof buf, two200, 24, 0), 1);
+    assert_string_equal(buf, "1.606938\xE2\x80\xA6" "e60 (61 digits)");
+    /* a negative number keeps its sign; a tiny width keeps one digit */
+    assert_int_equal(numfmt_integer(buf, sizeof buf, "-98765432109876", 5, 1), 1);
+    assert_string_equal(buf, "-9.8~e13");
+    /* a narrow cell drops the digit count, which the exponent implies */
+    assert_int_equal(numfmt_integer(buf, sizeof buf, two200, 10, 1), 1);
+    assert_string_equal(buf, "1.6069~e60");
+    /* never more digits than there are */
+    assert_int_equal(numfmt_integer(buf, sizeof buf, "12345", 3, 1), 1);
+    assert_string_equal(buf, "1.2~e4");
+    /* a buffer too small for the whole number gets the short form */
+    char small[16];
+    assert_int_equal(numfmt_integer(small, sizeof small, two200, 100, 1), 1);
+    assert_string_equal(small, "1.606938044~e60");
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -79,6 +111,7 @@ int main(void)
         cmocka_unit_test(decimals_should_always_have_a_decimal_point),
         cmocka_unit_test(other_text_should_be_copied),
         cmocka_unit_test(clip_should_mark_what_it_cut),
+        cmocka_unit_test(integers_should_be_whole_or_marked),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

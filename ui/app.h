@@ -36,7 +36,7 @@ enum {
     ACT_DISCARD = 128 /* remove the recovery copy */
 };
 
-typedef enum { SCREEN_MAIN, SCREEN_LAYER, SCREEN_HELP, SCREEN_MEMBERS } screen_id;
+typedef enum { SCREEN_MAIN, SCREEN_LAYER, SCREEN_HELP, SCREEN_MEMBERS, SCREEN_FULL } screen_id;
 
 typedef enum {
     PROMPT_NONE,
@@ -99,6 +99,8 @@ struct explorer_app_struct {
     session_t pending_doc; /* valid when has_pending_doc */
     int has_pending_doc;
     char *pending_path; /* owned */
+    char *retry_group;  /* owned: a cancelled or failed quotient request, */
+    slong retry_cls;    /* which c asks for again; NULL / 0 when none */
 
     /* the state machine */
     screen_id screen;
@@ -115,6 +117,7 @@ struct explorer_app_struct {
     int detail_scroll;
     int detail_hscroll; /* code points cut from the left of each line */
     int help_scroll;
+    int full_scroll;
     int table_top; /* first layer row shown */
     int image_top; /* first image row shown */
 
@@ -150,6 +153,9 @@ const ui_keymap *screen_main_keys(void);
 void screen_layer_draw(explorer_app *app);
 const ui_keymap *screen_layer_keys(void);
 
+void screen_full_draw(explorer_app *app);
+const ui_keymap *screen_full_keys(void);
+
 void screen_help_draw(explorer_app *app);
 const ui_keymap *screen_help_keys(void);
 
@@ -180,6 +186,11 @@ const ui_keymap *prompt_keys(void);
 /* Sets the bottom-line message (printf-style). */
 void app_status(explorer_app *app, int is_error, const char *fmt, ...)
     __attribute__((format(printf, 3, 4)));
+
+/* msg without the "error: " that nserr_format puts after the location, for
+ * a line that already says "error:" (static storage, valid until the next
+ * call). */
+const char *app_error_text(const char *msg);
 
 /* Draws the bottom key line from a keymap's hints. */
 void app_draw_hints(explorer_app *app, const ui_keymap *km);

@@ -45,6 +45,17 @@ void app_status(explorer_app *app, int is_error, const char *fmt, ...)
     app->status_error = is_error;
 }
 
+const char *app_error_text(const char *msg)
+{
+    /* "FILE:L:C: error: why" from nserr_format: one "error:" is enough */
+    const char *e = strstr(msg, "error: ");
+    static char buf[sizeof ((explorer_app *)0)->status];
+    if (e == NULL)
+        return msg;
+    snprintf(buf, sizeof buf, "%.*s%s", (int)(e - msg), msg, e + 7);
+    return buf;
+}
+
 /* ---- terminal ---------------------------------------------------------- */
 
 static volatile sig_atomic_t explorer_curses_on;
@@ -137,7 +148,15 @@ void app_draw_header(explorer_app *app, const char *where)
                        : app->doc_is_member ? "(a scan member, not saved)"
                                             : defaults_session_name();
     const char *mod = app->vm->dirty ? " [modified] " : " ";
-    int room = COLS / 2 - (int)strlen(mod);
+    /* the screen's own part first (it says where we are), the file name in
+     * what is left, at most half the bar */
+    char left[700];
+    snprintf(left, sizeof left, " nilstep %s %s", app->utf8 ? "\xE2\x80\xA2" : "|", where);
+    int room = COLS - 2 - (int)lineedit_utf8_ncols(left) - (int)strlen(mod);
+    if (room > COLS / 2 - (int)strlen(mod))
+        room = COLS / 2 - (int)strlen(mod);
+    if (room < 12)
+        room = 12;
     int flen = (int)lineedit_utf8_ncols(file);
     char right[700];
     if (flen > room)
@@ -146,8 +165,7 @@ void app_draw_header(explorer_app *app, const char *where)
     else
         snprintf(right, sizeof right, "%s%s", file, mod);
     int rw = (int)lineedit_utf8_ncols(right);
-    paint_textf(0, 0, COLS - rw - 1, ROLE_BAR, " nilstep %s %s", app->utf8 ? "\xE2\x80\xA2" : "|",
-                where);
+    paint_text(0, 0, COLS - rw - 1, ROLE_BAR, left);
     paint_text(0, COLS - rw, rw, ROLE_BAR, right);
 }
 
@@ -159,7 +177,7 @@ void app_draw_status(explorer_app *app)
         return;
     if (app->status_error) {
         int w = paint_text(y, 0, COLS, ROLE_ERROR, "error: ");
-        paint_text(y, w, COLS - w, ROLE_ERROR, app->status);
+        paint_text(y, w, COLS - w, ROLE_ERROR, app_error_text(app->status));
     } else {
         paint_text(y, 0, COLS, ROLE_GOOD, app->status);
     }
@@ -225,6 +243,9 @@ static void explorer_draw(explorer_app *app)
             break;
         case SCREEN_MEMBERS:
             screen_members_draw(app);
+            break;
+        case SCREEN_FULL:
+            screen_full_draw(app);
             break;
         }
         if (app->prompt != PROMPT_NONE)
@@ -532,12 +553,19 @@ static void explorer_do_group(explorer_app *app)
     }
     analysis_struct *B = explorer_compute_group(app, G, cls, err);
     if (B == NULL) {
-        /* a cancel is the user's choice, not an error */
+        /* a cancel is the user's choice, not an error; c asks again */
         app_status(app, err->status != NS_ERR_CANCELLED,
-                   "class %ld not computed (%s); kept class %ld", (long)cls, err->msg,
-                   (long)app->cls);
+                   "class %ld not computed (%s); kept class %ld (c tries again)", (long)cls,
+                   err->msg, (long)app->cls);
+        free(app->retry_group);
+        app->retry_group = text;
+        app->retry_cls = cls;
+        text = NULL;
         goto done;
     }
+    free(app->retry_group);
+    app->retry_group = NULL;
+    app->retry_cls = 0;
     int changed = strcmp(text, app->group_text) != 0 || cls != app->cls;
     const char **names = malloc((size_t)FLINT_MAX(G->gens->n, 1) * sizeof(char *));
     if (names == NULL)
@@ -714,7 +742,14 @@ static void explorer_do_save(explorer_app *app)
     session_init(s);
     explorer_build_session(app, s);
     if (session_save(s, path, err) != NS_OK) {
-        app_status(app, 1, "not saved: %s", err->msg);
+        if (app->pending_path) {
+            /* save as: the prompt stays open with the typed path and why */
+            prompt_open(app, PROMPT_SAVE_AS, app->pending_path);
+            snprintf(app->edit_msg, sizeof app->edit_msg, "not saved: %s", err->msg);
+            app->edit_ok = 0;
+        } else {
+            app_status(app, 1, "not saved: %s", err->msg);
+        }
     } else {
         session_swap(app->doc, s);
         viewmodel_mark_saved(app->vm);
@@ -745,6 +780,8 @@ static const ui_keymap *explorer_keymap(const explorer_app *app)
         return screen_help_keys();
     case SCREEN_MEMBERS:
         return screen_members_keys();
+    case SCREEN_FULL:
+        return screen_full_keys();
     case SCREEN_MAIN:
         break;
     }
@@ -946,6 +983,7 @@ static void explorer_app_clear(explorer_app *app)
     free(app->group_text);
     free(app->pending_group);
     free(app->pending_path);
+    free(app->retry_group);
 }
 
 int explorer_run(const char *path)

@@ -1,6 +1,7 @@
 /* numfmt.c — see numfmt.h. */
 #include "numfmt.h"
 
+#include <stdio.h>
 #include <string.h>
 
 #include "lineedit.h"
@@ -118,4 +119,44 @@ int numfmt_clip(char *buf, size_t n, const char *s, size_t width, int ascii)
     memcpy(buf + bytes, ell, extra);
     buf[bytes + extra] = '\0';
     return cut;
+}
+
+int numfmt_integer(char *buf, size_t n, const char *dig, size_t width, int ascii)
+{
+    if (n == 0)
+        return 0;
+    if (dig == NULL)
+        dig = "";
+    size_t len = strlen(dig);
+    if (width > n - 1) /* what does not fit in buf is shortened too */
+        width = n - 1;
+    if (len <= width || len < 3) {
+        memcpy(buf, dig, len);
+        buf[len] = '\0';
+        return 0;
+    }
+    const char *sign = dig[0] == '-' ? "-" : "";
+    const char *d = dig + strlen(sign);
+    size_t nd = strlen(d);
+    const char *ell = ascii ? "~" : "\xE2\x80\xA6";
+    /* With the digit count when it leaves room for 3 digits after the
+     * point, else without (the exponent says it too). */
+    char tail[64];
+    size_t frac = 0;
+    for (int with_count = 1; with_count >= 0; with_count--) {
+        if (with_count)
+            snprintf(tail, sizeof tail, "%se%zu (%zu digits)", ell, nd - 1, nd);
+        else
+            snprintf(tail, sizeof tail, "%se%zu", ell, nd - 1);
+        size_t fixed = strlen(sign) + 2 + lineedit_utf8_ncols(tail); /* sign, d, '.' */
+        frac = width > fixed ? width - fixed : 0;
+        if (frac >= 3 || !with_count)
+            break;
+    }
+    if (frac < 1)
+        frac = 1;
+    if (frac > nd - 1)
+        frac = nd - 1;
+    snprintf(buf, n, "%s%c.%.*s%s", sign, d[0], (int)frac, d + 1, tail);
+    return 1;
 }

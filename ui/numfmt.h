@@ -19,4 +19,13 @@ void numfmt_decimal(char *buf, size_t n, const char *dec, int sig);
  * ascii is set).  Returns 1 if s was shortened. */
 int numfmt_clip(char *buf, size_t n, const char *s, size_t width, int ascii);
 
+/* Writes the integer given by its decimal digits dig ("-12345", "0") into
+ * buf (size n) in at most width code points: whole when it fits, else
+ * shortened in a form that is still true, "-1.23…e40 (41 digits)": the
+ * leading digits (cut, not rounded), the power of ten and, when there is
+ * room, the number of digits ("~" replaces "…" when ascii is set).  Keeps at least one digit
+ * after the point, so a very small width may be exceeded.  Returns 1 if the
+ * number was shortened. */
+int numfmt_integer(char *buf, size_t n, const char *dig, size_t width, int ascii);
+
 #endif

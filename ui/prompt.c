@@ -98,8 +98,9 @@ static void check_group(explorer_app *app, const char *text)
     if (pres_parse(G, text, 1, 1, err) == NS_OK) {
         app->edit_ok = 1;
         snprintf(app->edit_msg, sizeof app->edit_msg,
-                 "parses: %ld generators, %ld relations; Enter computes the quotient",
-                 (long)G->gens->n, (long)G->nrels);
+                 "parses: %ld generator%s, %ld relation%s; Enter computes the quotient",
+                 (long)G->gens->n, G->gens->n == 1 ? "" : "s", (long)G->nrels,
+                 G->nrels == 1 ? "" : "s");
     } else {
         app->edit_ok = 0;
         if (err->line == 1 && err->col > 0) {
@@ -244,7 +245,7 @@ void prompt_draw(explorer_app *app)
         paint_text(y0 + 3, 1, COLS - 1, ROLE_GOOD, app->edit_msg);
     } else {
         int w = paint_text(y0 + 3, 1, COLS - 1, ROLE_ERROR, "error: ");
-        paint_text(y0 + 3, 1 + w, COLS - 1 - w, ROLE_ERROR, app->edit_msg);
+        paint_text(y0 + 3, 1 + w, COLS - 1 - w, ROLE_ERROR, app_error_text(app->edit_msg));
     }
     curs_set(1);
     move(y0 + 1, px + (int)(cur - app->edit_scroll));
@@ -346,9 +347,11 @@ static int act_apply(explorer_app *app)
         nserr_init(err);
         session_clear(app->pending_doc);
         if (session_load(app->pending_doc, text, err) != NS_OK) {
-            char buf[700];
-            nserr_format(buf, sizeof buf, err, text);
-            app_status(app, 1, "%s", buf);
+            /* keep the prompt and the typed path, with the reason */
+            app->prompt = PROMPT_OPEN;
+            nserr_format(app->edit_msg, sizeof app->edit_msg, err, NULL);
+            app->edit_ok = 0;
+            app->edit_caret = 0;
             nserr_clear(err);
             return ACT_REDRAW;
         }

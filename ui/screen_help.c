@@ -2,8 +2,10 @@
  * tables the screens dispatch with, so the help cannot fall behind. */
 #include <curses.h>
 #include <stdio.h>
+#include <string.h>
 
 #include "app.h"
+#include "lineedit.h"
 #include "paint.h"
 
 /* Lines of the help, in order; a NULL keys entry is a heading. */
@@ -15,7 +17,7 @@ typedef struct {
 static int help_collect(help_line *out, int cap)
 {
     const ui_keymap *maps[] = {screen_main_keys(), screen_layer_keys(), prompt_keys(),
-                               screen_members_keys(), screen_help_keys()};
+                               screen_members_keys(), screen_full_keys(), screen_help_keys()};
     int n = 0;
 #define HELP_PUT(k, t)         \
     do {                       \
@@ -43,28 +45,74 @@ static int help_collect(help_line *out, int cap)
     return n;
 }
 
+/* One screen row of the help: a help line's text is wrapped at blanks to
+ * the width left for it, so that nothing is cut at the minimum size. */
+typedef struct {
+    const char *keys; /* NULL: heading; "": plain text or a continuation */
+    int indent;       /* first column of the text */
+    char text[256];
+} help_row;
+
+static int help_wrap(help_row *out, int cap, const help_line *l, int width)
+{
+    int indent = l->keys == NULL || l->keys[0] == '\0' ? 1 : 22;
+    int w = width - indent;
+    if (w < 10)
+        w = 10;
+    const char *s = l->text;
+    int n = 0;
+    do {
+        size_t len = strlen(s);
+        size_t take = len;
+        if (lineedit_utf8_ncols(s) > (size_t)w) {
+            take = lineedit_utf8_offset(s, (size_t)w);
+            size_t b = take;
+            while (b > 0 && s[b] != ' ')
+                b--;
+            if (b > 0)
+                take = b;
+        }
+        if (n < cap) {
+            out[n].keys = n == 0 ? l->keys : "";
+            out[n].indent = n == 0 ? indent : (indent == 22 ? 24 : indent + 2);
+            snprintf(out[n].text, sizeof out[n].text, "%.*s", (int)take, s);
+        }
+        n++;
+        s += take;
+        while (*s == ' ')
+            s++;
+        w = width - (indent == 22 ? 24 : indent + 2);
+    } while (*s);
+    return n;
+}
+
 void screen_help_draw(explorer_app *app)
 {
     app_draw_header(app, "keys");
     help_line lines[256];
-    int n = help_collect(lines, 256);
-    if (n > 256)
-        n = 256;
+    int nl = help_collect(lines, 256);
+    if (nl > 256)
+        nl = 256;
+    static help_row rows_v[1024];
+    int n = 0;
+    for (int i = 0; i < nl && n < 1024; i++)
+        n += help_wrap(rows_v + n, 1024 - n, &lines[i], COLS - 1);
+    if (n > 1024)
+        n = 1024;
     int rows = LINES - 3;
     if (app->help_scroll > n - rows)
         app->help_scroll = n - rows;
     if (app->help_scroll < 0)
         app->help_scroll = 0;
     for (int r = 0; r < rows && app->help_scroll + r < n; r++) {
-        const help_line *l = &lines[app->help_scroll + r];
+        const help_row *l = &rows_v[app->help_scroll + r];
         int y = 1 + r;
         if (l->keys == NULL) {
-            paint_text(y, 1, COLS - 1, ROLE_HEADING, l->text);
-        } else if (l->keys[0] == '\0') {
-            paint_text(y, 1, COLS - 1, ROLE_NORMAL, l->text);
+            paint_text(y, l->indent, COLS - l->indent, ROLE_HEADING, l->text);
         } else {
-            paint_text(y, 3, 18, ROLE_KEY, l->keys);
-            paint_text(y, 22, COLS - 22, ROLE_NORMAL, l->text);
+            if (l->keys[0] != '\0')
+                paint_text(y, 3, 18, ROLE_KEY, l->keys);
+            paint_text(y, l->indent, COLS - l->indent, ROLE_NORMAL, l->text);
         }
     }
     if (n > rows)

@@ -9,6 +9,7 @@
 #include <string.h>
 
 #include "app.h"
+#include "lineedit.h"
 #include "paint.h"
 
 typedef struct {
@@ -110,9 +111,16 @@ static void detail_build(explorer_app *app, detail_text *t)
 
     detail_add(t, ROLE_HEADING, "Layer %ld = %s%ld / %s%ld  %s  %s", (long)j, gam, (long)j, gam,
                (long)(j + 1), sym(app, "\xE2\x89\x85", "="), L->group_str ? L->group_str : "?");
-    detail_add(t, ROLE_NORMAL, "  free rank %ld, %ld torsion factor%s, %ld pc generator%s",
-               (long)L->layer->free_rank, (long)L->layer->ntors, L->layer->ntors == 1 ? "" : "s", (long)L->layer->count,
-               L->layer->count == 1 ? "" : "s");
+    /* every pc generator of the layer is accounted for */
+    long dep = (long)(L->layer->count - L->layer->free_rank - L->layer->ntors);
+    detail_add(t, ROLE_NORMAL, "  %ld pc generator%s: %ld for the free part, %ld for torsion factors, "
+               "%ld dependent",
+               (long)L->layer->count, L->layer->count == 1 ? "" : "s", (long)L->layer->free_rank, (long)L->layer->ntors, dep);
+    if (dep > 0)
+        detail_add(t, ROLE_DIM,
+                   "  (dependent: the layer's relations write %s through the other pc generators,"
+                   " so %s nothing to the group)", dep == 1 ? "it" : "each of them",
+                   dep == 1 ? "it adds" : "they add");
     if (L->layer->ntors > 0 && L->layer->pc_labels) {
         /* the torsion is only visible on the pc generators: name them */
         char names[512] = "";
@@ -179,8 +187,12 @@ static void detail_build(explorer_app *app, detail_text *t)
     char *d = fmpz_get_str(NULL, 10, L->det);
     char *e = fmpz_get_str(NULL, 10, L->det_i_minus);
     detail_add(t, ROLE_HEADING, "Determinants");
-    detail_add(t, ROLE_NUMBER, "  det M%ld       = %s", (long)j, d);
-    detail_add(t, ROLE_NUMBER, "  det(I %s M%ld) = %s", sym(app, "\xE2\x88\x92", "-"), (long)j, e);
+    char l1[64], l2[64];
+    snprintf(l1, sizeof l1, "det M%ld", (long)j);
+    snprintf(l2, sizeof l2, "det(I %s M%ld)", sym(app, "\xE2\x88\x92", "-"), (long)j);
+    int pad = (int)lineedit_utf8_ncols(l2) - (int)lineedit_utf8_ncols(l1);
+    detail_add(t, ROLE_NUMBER, "  %s%*s = %s", l1, pad, "", d);
+    detail_add(t, ROLE_NUMBER, "  %s = %s", l2, e);
     flint_free(d);
     flint_free(e);
     if (L->entropy_str)
@@ -190,9 +202,6 @@ static void detail_build(explorer_app *app, detail_text *t)
 
 void screen_layer_draw(explorer_app *app)
 {
-    char where[96];
-    snprintf(where, sizeof where, "layer %zu of %zu", app->vm->sel_layer + 1, app->vm->nlayers);
-    app_draw_header(app, where);
     detail_text t = {0};
     detail_build(app, &t);
     int rows = LINES - 3;
@@ -200,14 +209,19 @@ void screen_layer_draw(explorer_app *app)
         app->detail_scroll = t.n - rows;
     if (app->detail_scroll < 0)
         app->detail_scroll = 0;
+    /* where we are goes in the header, so that no message can cover it */
+    char where[160];
+    int k = snprintf(where, sizeof where, "layer %zu of %zu", app->vm->sel_layer + 1,
+                     app->vm->nlayers);
+    if (t.n > rows)
+        snprintf(where + k, sizeof where - (size_t)k, "   lines %d-%d of %d", app->detail_scroll + 1,
+                 app->detail_scroll + rows < t.n ? app->detail_scroll + rows : t.n, t.n);
+    app_draw_header(app, where);
     for (int r = 0; r < rows && app->detail_scroll + r < t.n; r++) {
         const detail_line *l = &t.v[app->detail_scroll + r];
         const char *text = l->text + lineedit_utf8_offset(l->text, (size_t)app->detail_hscroll);
         paint_text(1 + r, 1, COLS - 1, l->role, text);
     }
-    if (t.n > rows)
-        paint_textf(LINES - 2, COLS - 24, 24, ROLE_DIM, "lines %d-%d of %d", app->detail_scroll + 1,
-                    app->detail_scroll + rows < t.n ? app->detail_scroll + rows : t.n, t.n);
     detail_free(&t);
     if (app->status[0])
         app_draw_status(app);

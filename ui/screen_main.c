@@ -10,9 +10,11 @@
  *   LINES-2          messages;  LINES-1  keys */
 #include <curses.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include "app.h"
+#include "lineedit.h"
 #include "numfmt.h"
 #include "paint.h"
 
@@ -70,14 +72,33 @@ static void main_layout(const explorer_app *app, int *img_y, int *ni, int *tab_y
     *tab_y = *img_y + *ni + 2;
 }
 
-static void keep_in_view(int *top, int sel, int rows)
+/* Scrolls so that row sel of n shows in rows rows, and never leaves rows
+ * empty at the end while rows are hidden at the top (after the window
+ * grew). */
+static void keep_in_view(int *top, int sel, int rows, int n)
 {
     if (sel < *top)
         *top = sel;
     if (sel >= *top + rows)
         *top = sel - rows + 1;
+    if (*top > n - rows)
+        *top = n - rows;
     if (*top < 0)
         *top = 0;
+}
+
+/* Every pc generator of the quotient is one of: a generator of a free
+ * part, of a torsion factor, or dependent (the layer's relations express it
+ * through the others: an invariant factor 1). */
+static void pc_accounting(const analysis_struct *A, long *free_, long *tors, long *dep)
+{
+    *free_ = *tors = *dep = 0;
+    for (slong j = 0; j < A->nlayers; j++) {
+        const analysis_layer_struct *L = A->layers + j;
+        *free_ += (long)L->layer->free_rank;
+        *tors += (long)L->layer->ntors;
+        *dep += (long)(L->layer->count - L->layer->free_rank - L->layer->ntors);
+    }
 }
 
 static void draw_group(explorer_app *app)
@@ -86,13 +107,20 @@ static void draw_group(explorer_app *app)
     paint_text(1, 0, 9, ROLE_HEADING, "Group");
     paint_text(1, 9, COLS - 9, ROLE_NORMAL, app->group_text);
     if (A->has_group) {
-        char extra[160] = "";
+        char extra[160] = "", parts[160];
         if (A->nq->stabilised && A->nq->class_reached < app->cls)
             snprintf(extra, sizeof extra, "   series stable from class %ld",
                      (long)A->nq->class_reached);
+        long fr, to, de;
+        pc_accounting(A, &fr, &to, &de);
+        int k = snprintf(parts, sizeof parts, "%ld free", fr);
+        if (to)
+            k += snprintf(parts + k, sizeof parts - (size_t)k, ", %ld torsion", to);
+        if (de)
+            snprintf(parts + k, sizeof parts - (size_t)k, ", %ld dependent", de);
         paint_textf(2, 9, COLS - 9, ROLE_NORMAL,
-                    "class %ld   Hirsch length %ld   %ld pc generators%s", (long)app->cls,
-                    (long)A->nq->hirsch_length, (long)A->nq->pcp->n, extra);
+                    "class %ld   Hirsch length %ld   %ld pc generators (%s)%s", (long)app->cls,
+                    (long)A->nq->hirsch_length, (long)A->nq->pcp->n, parts, extra);
     } else {
         paint_textf(2, 9, COLS - 9, ROLE_NORMAL, "class %ld   (quotient not computed)",
                     (long)app->cls);
@@ -106,7 +134,11 @@ static void draw_images(explorer_app *app, int y0, int rows)
     int x = paint_text(y0 - 1, 0, COLS, ROLE_HEADING, "Images of the generators");
     if (vm->ngens > (size_t)rows)
         paint_textf(y0 - 1, x, COLS - x, ROLE_DIM, "  (%zu of %zu shown)", (size_t)rows, vm->ngens);
-    keep_in_view(&app->image_top, (int)vm->sel_image, rows);
+    keep_in_view(&app->image_top, (int)vm->sel_image, rows, (int)vm->ngens);
+    int namew = 0; /* names padded so that the arrows line up */
+    for (size_t i = 0; i < vm->ngens; i++)
+        if ((int)lineedit_utf8_ncols(vm->names[i]) > namew)
+            namew = (int)lineedit_utf8_ncols(vm->names[i]);
     for (int r = 0; r < rows; r++) {
         size_t i = (size_t)(app->image_top + r);
         if (i >= vm->ngens)
@@ -116,7 +148,8 @@ static void draw_images(explorer_app *app, int y0, int rows)
         if (sel)
             paint_fill(y, 0, COLS, role);
         int cx = paint_text(y, 0, 2, role, sel ? "> " : "  ");
-        cx += paint_textf(y, cx, COLS - cx, role, "%s %s ", vm->names[i],
+        cx += paint_textf(y, cx, COLS - cx, role, "%s%*s %s ", vm->names[i],
+                          namew - (int)lineedit_utf8_ncols(vm->names[i]), "",
                           sym(app, "\xE2\x86\xA6", "->"));
         int room = COLS - cx;
         /* the normal form in the pc labels, when it says something new */
@@ -156,10 +189,13 @@ static void number_cell(int y, int x, int w, paint_role role, const char *dec, c
         paint_text(y, x + k + 1, 1, role == ROLE_SELECTED ? role : ROLE_MARKER, marker);
 }
 
-static void integer_cell(int y, int x, int w, paint_role role, const fmpz_t v)
+/* An integer cell: whole, or shortened to a true "1.2~e40 (41 digits)". */
+static void integer_cell(explorer_app *app, int y, int x, int w, paint_role role, const fmpz_t v)
 {
     char *s = fmpz_get_str(NULL, 10, v);
-    paint_text(y, x, w - 1, role == ROLE_SELECTED ? role : ROLE_NUMBER, s);
+    char buf[96];
+    numfmt_integer(buf, sizeof buf, s, (size_t)(w - 1), !app->utf8);
+    paint_text(y, x, w - 1, role == ROLE_SELECTED ? role : ROLE_NUMBER, buf);
     flint_free(s);
 }
 
@@ -175,7 +211,7 @@ static void draw_table(explorer_app *app, int y0, int rows)
         return;
     }
     rows -= 1;
-    keep_in_view(&app->table_top, (int)app->vm->sel_layer, rows);
+    keep_in_view(&app->table_top, (int)app->vm->sel_layer, rows, (int)A->nlayers);
     int valid = map_valid(A);
     for (int r = 0; r < rows; r++) {
         slong j = app->table_top + r; /* 0-based */
@@ -195,8 +231,8 @@ static void draw_table(explorer_app *app, int y0, int rows)
             number_cell(y, COL_RHO, W_RHO, role, L->rho_str, A->upper_layer == j + 1 ? "U" : NULL);
             number_cell(y, COL_ROOT, W_ROOT, role, L->root_bound_str,
                         A->lower_layer == j + 1 ? "L" : NULL);
-            integer_cell(y, COL_DET, W_DET, role, L->det);
-            integer_cell(y, COL_DIM, W_DIM, role, L->det_i_minus);
+            integer_cell(app, y, COL_DET, W_DET, role, L->det);
+            integer_cell(app, y, COL_DIM, W_DIM, role, L->det_i_minus);
         } else {
             paint_text(y, COL_RHO, W_RHO, role, "-");
             paint_text(y, COL_ROOT, W_ROOT, role, "-");
@@ -222,6 +258,50 @@ static const char *yes_no(int v)
     return v ? "yes" : "no";
 }
 
+/* Decimal strings compared as numbers (equal strings are equal). */
+static int dec_le(const char *a, const char *b)
+{
+    return strcmp(a, b) == 0 || strtod(a, NULL) <= strtod(b, NULL);
+}
+
+/* The integers of one line, each whole or shortened to a true form so
+ * that all of them fit in w columns: "label value" pairs. */
+typedef struct {
+    const char *label;
+    char *digits; /* flint_malloc'd, or NULL for text */
+    const char *text;
+} inv_item;
+
+static void draw_items(explorer_app *app, int y, int x, int w, inv_item *it, int n)
+{
+    int fixed = 0, nnum = 0;
+    for (int k = 0; k < n; k++) {
+        fixed += (int)lineedit_utf8_ncols(it[k].label) + 1 + (k ? 3 : 0);
+        if (it[k].digits)
+            nnum++;
+        else
+            fixed += (int)lineedit_utf8_ncols(it[k].text);
+    }
+    /* room for the numbers: whole when they fit, else shared out */
+    int need = 0;
+    for (int k = 0; k < n; k++)
+        if (it[k].digits)
+            need += (int)strlen(it[k].digits);
+    int avail = w - x - fixed;
+    int budget = nnum ? avail / nnum : 0;
+    for (int k = 0; k < n; k++) {
+        char buf[128];
+        const char *v = it[k].text;
+        if (it[k].digits) {
+            size_t width = need <= avail ? strlen(it[k].digits) : (size_t)FLINT_MAX(budget, 1);
+            numfmt_integer(buf, sizeof buf, it[k].digits, width, !app->utf8);
+            v = buf;
+        }
+        x += paint_textf(y, x, w - x, ROLE_NORMAL, "%s%s ", k ? "   " : "", it[k].label);
+        x += paint_text(y, x, w - x, it[k].digits ? ROLE_NUMBER : ROLE_NORMAL, v);
+    }
+}
+
 static void draw_bounds_and_invariants(explorer_app *app, int y)
 {
     const analysis_struct *A = app->A;
@@ -231,15 +311,31 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
     numfmt_decimal(gr, sizeof gr, A->growth_str, SIG_DIGITS);
     const char *le = sym(app, "\xE2\x89\xA4", "<=");
     int x = paint_text(y, 0, COLS, ROLE_HEADING, "Growth  ");
-    x += paint_text(y, x, COLS - x, ROLE_MARKER, "L ");
-    x += paint_textf(y, x, COLS - x, ROLE_NUMBER, "%s", lo);
-    x += paint_textf(y, x, COLS - x, ROLE_DIM, " (j=%ld)  %s  ", (long)A->lower_layer, le);
-    x += paint_text(y, x, COLS - x, ROLE_NORMAL, "rate ");
-    x += paint_text(y, x, COLS - x, ROLE_NUMBER, gr);
-    x += paint_textf(y, x, COLS - x, ROLE_DIM, "  %s  ", le);
-    x += paint_text(y, x, COLS - x, ROLE_MARKER, "U ");
-    x += paint_text(y, x, COLS - x, ROLE_NUMBER, up);
-    paint_textf(y, x, COLS - x, ROLE_DIM, " (j=%ld)", (long)A->upper_layer);
+    int free_parts = 0;
+    for (slong j = 0; j < A->nlayers; j++)
+        free_parts |= A->layers[j].layer->free_rank > 0;
+    if (dec_le(A->lower_bound_str, A->growth_str) && dec_le(A->growth_str, A->upper_bound_str)) {
+        x += paint_text(y, x, COLS - x, ROLE_MARKER, "L ");
+        x += paint_textf(y, x, COLS - x, ROLE_NUMBER, "%s", lo);
+        x += paint_textf(y, x, COLS - x, ROLE_DIM, " (j=%ld)  %s  ", (long)A->lower_layer, le);
+        x += paint_text(y, x, COLS - x, ROLE_NORMAL, "rate ");
+        x += paint_text(y, x, COLS - x, ROLE_NUMBER, gr);
+        x += paint_textf(y, x, COLS - x, ROLE_DIM, "  %s  ", le);
+        x += paint_text(y, x, COLS - x, ROLE_MARKER, "U ");
+        x += paint_text(y, x, COLS - x, ROLE_NUMBER, up);
+        paint_textf(y, x, COLS - x, ROLE_DIM, " (j=%ld)", (long)A->upper_layer);
+    } else {
+        /* the bounds come from the free parts only and can miss the rate
+         * (finite layers): say so instead of writing a false chain */
+        x += paint_text(y, x, COLS - x, ROLE_NORMAL, "rate ");
+        x += paint_text(y, x, COLS - x, ROLE_NUMBER, gr);
+        if (!free_parts)
+            paint_text(y, x, COLS - x, ROLE_DIM,
+                       "   every layer is finite: no bounds from free parts");
+        else
+            paint_textf(y, x, COLS - x, ROLE_DIM,
+                        "   not between L %s and U %s, which bound the free parts only", lo, up);
+    }
     paint_textf(y + 1, 8, COLS - 8, ROLE_DIM, "%s", A->growth_reason ? A->growth_reason : "");
 
     int hx = paint_text(y + 2, 0, COLS, ROLE_HEADING, "Invariants");
@@ -248,12 +344,14 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
         const torsion_struct *T = A->tors;
         char line[256];
         size_t k = 0;
-        char *o = fmpz_get_str(NULL, 10, T->order);
-        k += (size_t)snprintf(line, sizeof line, "   T: order %.40s", o);
+        char *o = fmpz_get_str(NULL, 10, T->order), os[64];
+        numfmt_integer(os, sizeof os, o, 40, !app->utf8);
+        k += (size_t)snprintf(line, sizeof line, "   T: order %s", os);
         flint_free(o);
         for (slong t = 0; T->abelian && t < T->ninv && k + 40 < sizeof line; t++) {
-            char *d = fmpz_get_str(NULL, 10, T->inv + t);
-            k += (size_t)snprintf(line + k, sizeof line - k, "%sZ/%.20s", t ? " + " : " = ", d);
+            char *d = fmpz_get_str(NULL, 10, T->inv + t), ds[40];
+            numfmt_integer(ds, sizeof ds, d, 20, !app->utf8);
+            k += (size_t)snprintf(line + k, sizeof line - k, "%sZ/%s", t ? " + " : " = ", ds);
             flint_free(d);
         }
         k += (size_t)snprintf(line + k, sizeof line - k, "%s   Gc/T:",
@@ -287,57 +385,50 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
         paint_textf(y + 3, 2, COLS - 2, ROLE_NORMAL, "%s %s   (growth rate 0: no logarithm)",
                     ent_label, ent);
     if (A->lefschetz_defined) {
-        char *l = fmpz_get_str(NULL, 10, A->lefschetz);
-        char *n = fmpz_get_str(NULL, 10, A->nielsen);
-        char r[128];
+        inv_item it[5] = {{"Lefschetz", fmpz_get_str(NULL, 10, A->lefschetz), NULL},
+                          {"Nielsen", fmpz_get_str(NULL, 10, A->nielsen), NULL},
+                          {"Reidemeister", NULL, NULL}};
         if (A->reid_kind == ANALYSIS_REID_INFINITE)
-            snprintf(r, sizeof r, "%s", sym(app, "\xE2\x88\x9E", "infinite"));
-        else if (A->reid_kind == ANALYSIS_REID_FINITE) {
-            char *rs = fmpz_get_str(NULL, 10, A->reidemeister);
-            snprintf(r, sizeof r, "%.100s", rs);
-            flint_free(rs);
-        } else
-            snprintf(r, sizeof r, "%s", A->limit_hit ? "not computed (limit)" : "not defined");
-        if (A->layers_torsion_free)
-            paint_textf(y + 4, 2, COLS - 2, ROLE_NORMAL,
-                        "Lefschetz %.60s   Nielsen %.60s   Reidemeister %s", l, n, r);
-        else {
-            char fx[96] = "";
-            if (A->tmap->fixed_defined) {
-                char *f = fmpz_get_str(NULL, 10, A->tmap->fixed_elements);
-                snprintf(fx, sizeof fx, "   Fix %.40s", f);
-                flint_free(f);
-            }
-            if (A->tmap->fixed_classes_defined) {
-                char *f = fmpz_get_str(NULL, 10, A->tmap->fixed_classes);
-                size_t k = strlen(fx);
-                snprintf(fx + k, sizeof fx - k, "   fixed classes %.30s", f);
-                flint_free(f);
-            }
-            paint_textf(y + 4, 2, COLS - 2, ROLE_NORMAL,
-                        "on Gc/T: Lefschetz %.40s  Nielsen %.40s   on Gc: Reidemeister %s%s", l, n,
-                        r, fx);
+            it[2].text = sym(app, "\xE2\x88\x9E", "infinite");
+        else if (A->reid_kind == ANALYSIS_REID_FINITE)
+            it[2].digits = fmpz_get_str(NULL, 10, A->reidemeister);
+        else
+            it[2].text = A->limit_hit ? "not computed (limit)" : "not defined";
+        int n = 3;
+        if (!A->layers_torsion_free) {
+            it[0].label = "on Gc/T: Lefschetz";
+            it[2].label = "on Gc: Reidemeister";
+            if (A->tmap->fixed_defined)
+                it[n++] = (inv_item){"Fix", fmpz_get_str(NULL, 10, A->tmap->fixed_elements), NULL};
+            if (A->tmap->fixed_classes_defined)
+                it[n++] = (inv_item){"fixed classes",
+                                     fmpz_get_str(NULL, 10, A->tmap->fixed_classes), NULL};
         }
-        flint_free(l);
-        flint_free(n);
+        draw_items(app, y + 4, 2, COLS, it, n);
+        for (int k = 0; k < n; k++)
+            flint_free(it[k].digits);
     } else {
         paint_textf(y + 4, 2, COLS - 2, ROLE_NORMAL,
                     "Lefschetz, Nielsen, Reidemeister: not defined (%s)",
                     A->undefined_reason ? A->undefined_reason : "see the report");
     }
-    char idx[80] = "-";
-    if (A->index_defined) {
-        char *s = fmpz_get_str(NULL, 10, A->image_index);
-        snprintf(idx, sizeof idx, "%.70s", s);
-        flint_free(s);
-    }
-    paint_textf(y + 5, 2, COLS - 2, ROLE_NORMAL,
-                A->layers_torsion_free
-                    ? "automorphism %s   injective %s   index %s   hyperbolic %s   expanding %s"
-                    : "automorphism %s   injective (Gc) %s   index %s   hyperbolic %s   expanding %s",
-                yes_no(A->automorphism), A->injective_defined ? yes_no(A->injective) : "-", idx,
-                yes_no(A->hyperbolic),
-                yes_no(A->expanding));
+    /* A surjective endomorphism of a finitely generated nilpotent group is
+     * injective (such groups are Hopfian: Mal'cev 1940), with image of
+     * index 1, even when layer torsion leaves the layer test undecided. */
+    int inj_known = A->injective_defined || A->automorphism;
+    int inj = A->automorphism || A->injective;
+    inv_item it[5] = {{"automorphism", NULL, yes_no(A->automorphism)},
+                      {A->layers_torsion_free ? "injective" : "injective (Gc)", NULL,
+                       inj_known ? yes_no(inj) : "undecided"},
+                      {"index", NULL, "-"},
+                      {"hyperbolic", NULL, yes_no(A->hyperbolic)},
+                      {"expanding", NULL, yes_no(A->expanding)}};
+    if (A->index_defined)
+        it[2].digits = fmpz_get_str(NULL, 10, A->image_index);
+    else if (A->automorphism)
+        it[2].text = "1";
+    draw_items(app, y + 5, 2, COLS, it, 5);
+    flint_free(it[2].digits);
 }
 
 static void draw_failures(explorer_app *app, int y)
@@ -494,6 +585,15 @@ static int act_class_up(explorer_app *app)
 
 static int act_recompute(explorer_app *app)
 {
+    /* after a cancel, the request that was cancelled, not the kept one */
+    if (app->retry_group) {
+        free(app->pending_group);
+        app->pending_group = app->retry_group;
+        app->pending_cls = app->retry_cls;
+        app->retry_group = NULL;
+        app->retry_cls = 0;
+        return ACT_GROUP;
+    }
     app->pending_cls = app->cls;
     return ACT_GROUP;
 }
@@ -528,6 +628,13 @@ static int act_save_as(explorer_app *app)
 static int act_open(explorer_app *app)
 {
     prompt_open(app, app->vm->dirty ? PROMPT_CONFIRM_OPEN : PROMPT_OPEN, "");
+    return ACT_REDRAW;
+}
+
+static int act_full(explorer_app *app)
+{
+    app->screen = SCREEN_FULL;
+    app->full_scroll = 0;
     return ACT_REDRAW;
 }
 
@@ -579,8 +686,10 @@ static const ui_binding main_bindings[] = {
     {UIKEY_FN(KEY_BTAB), act_image_prev, NULL, NULL, NULL},
     {UIKEY_FN(KEY_RIGHT), act_image_next, "Right / Tab", "select the next generator's image", NULL},
     {'\t', act_image_next, NULL, NULL, NULL},
+    {'v', act_full, "v", "every value in full: the selected image and layer, all digits of "
+     "every number, whole lines where the screen had to cut", "v full"},
     {'i', act_identity_image, "i", "map the selected generator to itself", NULL},
-    {'c', act_recompute, "c", "compute the quotient again (after a cancel)", NULL},
+    {'c', act_recompute, "c", "compute again: after a cancel, what was cancelled", NULL},
     {'t', act_edit_title, "t", "edit the title of the session", NULL},
     {'w', act_save_as, "w", "save as: write the session to a new path", NULL},
     {'o', act_open, "o", "open another session file", NULL},
