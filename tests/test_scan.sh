@@ -180,6 +180,35 @@ same "$tmp/whole.jsonl" "$tmp/killed.jsonl" "killed after $n_killed lines and re
 "$NS" scan "${BIG[@]}" --jobs 2 --resume "$tmp/killed.jsonl" 2>"$tmp/err"
 grep -q ' 0 tried' "$tmp/err" && ok || fail "resuming a finished scan redid members: $(cat "$tmp/err")"
 
+# SIGTERM (what a batch system sends first) stops cleanly: exit 3, whole
+# lines, and resuming gives the unkilled output
+"$NS" scan "${BIG[@]}" --jobs 2 --output "$tmp/term.jsonl" 2>"$tmp/term.err" &
+bg=$!
+for _ in $(seq 1 400); do
+    [[ -f $tmp/term.jsonl ]] && (( $(wc -l <"$tmp/term.jsonl") >= 200 )) && break
+    sleep 0.01
+done
+kill -TERM $bg
+wait $bg
+rc=$?
+bg=
+[[ $rc == 3 ]] && ok || fail "SIGTERM: exit status $rc, expected 3"
+grep -q "interrupted; every line written is whole, and --resume $tmp/term.jsonl goes on" \
+    "$tmp/term.err" && ok || fail "SIGTERM message: $(cat "$tmp/term.err")"
+"$NS" scan "${BIG[@]}" --jobs 1 --resume "$tmp/term.jsonl" 2>/dev/null
+same "$tmp/whole.jsonl" "$tmp/term.jsonl" "stopped by SIGTERM and resumed"
+# resuming maps from standard input skips the ids already written
+head -n 40 "$tmp/h-in.jsonl" | "$NS" scan --group "$H" --class 2 --output "$tmp/h-res.jsonl" 2>/dev/null
+"$NS" scan --group "$H" --class 2 --resume "$tmp/h-res.jsonl" <"$tmp/h-in.jsonl" 2>"$tmp/err"
+same "$tmp/h-stdin.jsonl" "$tmp/h-res.jsonl" "stdin scan resumed after 40 lines"
+grep -q "^nilstep scan: $(( $(wc -l <"$tmp/h-in.jsonl") - 40 )) tried" "$tmp/err" && ok ||
+    fail "stdin resume redid members: $(cat "$tmp/err")"
+# a result file of another group is not resumed
+"$NS" scan --group "$F2" --class 4 --resume "$tmp/h-res.jsonl" </dev/null >/dev/null 2>"$tmp/err"
+rc=$?
+[[ $rc == 2 ]] && grep -q "h-res.jsonl:1:1: error: a result of another group" "$tmp/err" && ok ||
+    fail "resuming another group's results: exit $rc, $(cat "$tmp/err")"
+
 # ---- 7. GNU parallel: the recipe of scripts/scan-parallel.sh -------------
 if command -v parallel >/dev/null; then
     if NILSTEP=$NS "$SRC/scripts/scan-parallel.sh" 4 "$tmp/par.jsonl" -- "${GL[@]}" \
@@ -282,6 +311,7 @@ got=$("$NS" scan --group 'free(3)' --class 2 \
 (
     source "$SRC/completions/nilstep.bash"
     comp() { COMP_WORDS=("$@"); COMP_CWORD=$(( $# - 1 )); COMPREPLY=(); _nilstep; echo "${COMPREPLY[*]}"; }
+    mkdir -p "$tmp/empty" && cd "$tmp/empty" || exit 9 # no file names to offer
     [[ $(comp nilstep sc) == scan ]] || exit 1
     [[ $(comp nilstep scan --only hy) == hyperbolic ]] || exit 2
     [[ $(comp nilstep scan --only finite) == finite-reidemeister ]] || exit 3

@@ -3,6 +3,7 @@
  * and the input lines, writes the result lines and the summaries. */
 #include <errno.h>
 #include <fcntl.h>
+#include <signal.h>
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -61,7 +62,8 @@ void cli_print_scan_help(FILE *out)
           "Without --family, maps are read from standard input, one JSON object per\n"
           "line with \"id\" and \"map\".  Output: JSON Lines, one object per member kept,\n"
           "in member order.  Exit status: 0 done, 1 some input lines or members\n"
-          "failed (messages on stderr), 2 bad input or usage, 3 a limit was hit.\n",
+          "failed (messages on stderr), 2 bad input or usage, 3 a limit was hit or\n"
+          "SIGINT/SIGTERM stopped the run (lines stay whole; --resume goes on).\n",
           out);
 }
 
@@ -112,6 +114,16 @@ static int parse_ulong(unsigned long long *out, const char *s, unsigned long lon
     return 1;
 }
 
+/* SIGINT or SIGTERM (what a batch system sends before it kills a job): stop
+ * after the member being written, keep every line whole, say how to go on. */
+static volatile sig_atomic_t scan_interrupted;
+
+static void on_stop_signal(int sig)
+{
+    (void)sig;
+    scan_interrupted = 1;
+}
+
 /* ---- Resume: what an earlier run already wrote -------------------------- */
 
 typedef struct {
@@ -127,7 +139,7 @@ static int cmp_str(const void *a, const void *b)
 
 /* Reads OUT; cuts off a last line without newline (a write cut short).
  * Returns 0, or an exit status after a message. */
-static int read_done(done_set *d, const char *path)
+static int read_done(done_set *d, const char *path, const char *group_json, long cls)
 {
     d->last_index = -1;
     FILE *f = fopen(path, "r");
@@ -153,6 +165,16 @@ static int read_done(done_set *d, const char *path)
         if (jsonl_parse(o, line, err) != NS_OK) {
             fprintf(stderr, "%s:%ld:%d: error: not a scan result: %s\n", path, lineno, err->col,
                     err->msg);
+            status = 2;
+            flint_free(line);
+            break;
+        }
+        const char *g = jsonl_get(o, "group"), *c = jsonl_get(o, "class");
+        if ((g && strcmp(g, group_json)) || (c && atol(c) != cls)) {
+            fprintf(stderr,
+                    "%s:%ld:1: error: a result of another group or class; resume a scan with "
+                    "the same group and class\n",
+                    path, lineno);
             status = 2;
             flint_free(line);
             break;
@@ -341,7 +363,7 @@ static int tick(void *ctx, ulong done)
 {
     out_ctx *c = ctx;
     (void)done;
-    if (c->write_failed)
+    if (c->write_failed || scan_interrupted)
         return 1;
     if (!c->tty)
         return 0;
@@ -680,7 +702,7 @@ int cli_scan(int argc, char **argv)
     }
 
     const char *out = a.resume ? a.resume : a.output;
-    if (a.resume && (status = read_done(&done, a.resume)) != 0)
+    if (a.resume && (status = read_done(&done, a.resume, S->group_json, c)) != 0)
         goto done;
     if (out) {
         oc.fd = open(out, O_WRONLY | O_CREAT | O_APPEND | (a.resume ? 0 : O_TRUNC), 0644);
@@ -719,7 +741,15 @@ int cli_scan(int argc, char **argv)
     o.emit_ctx = &oc;
     o.tick = tick;
     o.tick_ctx = &oc;
+    struct sigaction sa, old_int, old_term;
+    memset(&sa, 0, sizeof sa);
+    sa.sa_handler = on_stop_signal;
+    sigemptyset(&sa.sa_mask);
+    sigaction(SIGINT, &sa, &old_int);
+    sigaction(SIGTERM, &sa, &old_term);
     ns_status st = scan_run(S, &o, err);
+    sigaction(SIGINT, &old_int, NULL);
+    sigaction(SIGTERM, &old_term, NULL);
     if (oc.tty)
         fputs("\r\033[K", stderr);
     fprintf(stderr, "nilstep scan: %lu tried, %lu valid, %lu kept", (unsigned long)oc.tried,
@@ -727,9 +757,16 @@ int cli_scan(int argc, char **argv)
     if (oc.failed)
         fprintf(stderr, ", %lu failed", (unsigned long)oc.failed);
     fprintf(stderr, ", %.2f s\n", now() - oc.start);
-    if (oc.write_failed)
+    if (oc.write_failed) {
         status = 2;
-    else if (st != NS_OK)
+    } else if (scan_interrupted) {
+        if (out)
+            fprintf(stderr, "nilstep scan: interrupted; every line written is whole, and "
+                            "--resume %s goes on from there\n", out);
+        else
+            fprintf(stderr, "nilstep scan: interrupted; every line written is whole\n");
+        status = 3;
+    } else if (st != NS_OK)
         status = scan_error(err, "nilstep scan");
     else if (oc.failed)
         status = 1;
