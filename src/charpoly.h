@@ -1,0 +1,66 @@
+/* charpoly.h — the characteristic polynomial det(xI - M) of an integer
+ * matrix, cancellable and spread over threads.
+ *
+ * Why our own: FLINT's fmpz_mat_charpoly (2.9) computes the same thing by
+ * the same multimodular method, but it cannot be interrupted and runs on one
+ * core, and the layers of a nilpotent quotient reach dimensions in the
+ * hundreds where one call takes minutes.  This module exists only for that:
+ * it reduces M modulo word-size primes, lets FLINT compute each
+ * nmod_mat_charpoly (the arithmetic stays FLINT's), combines the residues by
+ * signed Chinese remaindering, polls the caller's progress hook between
+ * primes and works on several primes at once.  Below CHARPOLY_OWN_MIN_DIM it
+ * simply calls fmpz_mat_charpoly.
+ *
+ * How many primes: the product m of the primes must exceed 2B, where B
+ * bounds every |c_k| (symmetric residues then give the exact coefficients,
+ * so the result does not depend on how many primes were used beyond that).
+ * With c_k = (-1)^k e_k(eigenvalues) = (-1)^k (sum of the k x k principal
+ * minors of M), B is the least of three bounds, each evaluated with upward
+ * rounding (Arb's mag_t), so the minimum is a proven bound:
+ *   - Hadamard (J. Hadamard, "Resolution d'une question relative aux
+ *     determinants", Bull. Sci. Math. 17, 1893): a principal minor on the
+ *     index set S is at most prod_{i in S} |row i|_2, so
+ *     |c_k| <= e_k(|row 1|_2, ..., |row d|_2) <= prod_i (1 + |row i|_2),
+ *     and the same with columns;
+ *   - Gershgorin (S. Gershgorin, "Ueber die Abgrenzung der Eigenwerte einer
+ *     Matrix", Izv. Akad. Nauk SSSR 6, 1931): every |lambda| <= R, the least
+ *     of the largest absolute row sum and column sum, so
+ *     |c_k| <= C(d,k) R^k <= (1 + R)^d.
+ * The Hadamard bound on the principal minors is the tighter one for the
+ * dense layer matrices of nilpotent quotients (about 5,900 bits instead of
+ * 8,600 for the 335-dimensional layer of free(2) at class 12).
+ *
+ * Threads are POSIX threads created and joined inside one call; nothing is
+ * shared between calls and the progress hook is only ever called from the
+ * calling thread. */
+#ifndef NILSTEP_CHARPOLY_H
+#define NILSTEP_CHARPOLY_H
+
+#include <flint/fmpz_mat.h>
+#include <flint/fmpz_poly.h>
+
+#include "nserr.h"
+
+/* Below this dimension fmpz_mat_charpoly is quick enough and is used. */
+#define CHARPOLY_OWN_MIN_DIM 12
+
+/* At most this many worker threads. */
+#define CHARPOLY_MAX_THREADS 8
+
+/* b such that every coefficient of det(xI - M) is less than 2^b in
+ * absolute value (M square), by the bounds above; 0 for d = 0. */
+slong charpoly_bound_bits(const fmpz_mat_t M);
+
+/* The number of word-size primes (each above 2^62) that charpoly_compute
+ * uses for M. */
+slong charpoly_num_primes(const fmpz_mat_t M);
+
+/* cp := det(xI - M) for a square M.  threads <= 0 means one per online
+ * processor (at most CHARPOLY_MAX_THREADS); 1 computes in the calling
+ * thread.  progress (may be NULL) is polled between primes and while
+ * waiting for the threads; a nonzero answer stops with NS_ERR_CANCELLED and
+ * cp = 0.  Returns NS_OK otherwise. */
+ns_status charpoly_compute(fmpz_poly_t cp, const fmpz_mat_t M, slong threads,
+                           const ns_progress_t *progress, nserr_t err);
+
+#endif
