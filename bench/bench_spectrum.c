@@ -84,8 +84,8 @@ static void run(const char *name, const fmpz_mat_t M)
            (long) maxdeg, rho, spectrum_radius_is_exact(S) ? "exact" : "ball",
            ent, (long) spectrum_count_below_one(S),
            (long) spectrum_count_on_one(S), (long) spectrum_count_above_one(S));
-    free(rho);
-    free(ent);
+    flint_free(rho);
+    flint_free(ent);
     spectrum_clear(S);
     nserr_clear(err);
 }

@@ -69,9 +69,14 @@
  * Ownership: the caller owns a spectrum_t; spectrum_init / spectrum_clear
  * must be paired.  Pointers returned by accessors are borrowed: valid until
  * the spectrum is recomputed or cleared.  Strings returned by *_get_str
- * functions are allocated with malloc and must be released with free().
+ * functions follow the engine's string scheme (strbuf.h): allocated with
+ * flint_malloc, released with flint_free().
  * Functions taking a const spectrum_t leave it unchanged (refinements work
- * on temporaries).  No function keeps global state, prints or exits. */
+ * on temporaries).  No function keeps global state, prints or exits.
+ *
+ * The characteristic polynomial comes from charpoly.h (FLINT's arithmetic,
+ * cancellable and threaded); the module's own files are listed in
+ * spectrum_internal.h. */
 #ifndef NILSTEP_SPECTRUM_H
 #define NILSTEP_SPECTRUM_H
 
@@ -167,7 +172,7 @@ void spectrum_clear(spectrum_t S);
  * NS_ERR_INPUT when M is not square; NS_ERR_LIMIT when a refinement needed
  * more than SPECTRUM_PREC_MAX bits (not observed in practice).  On error S
  * holds the spectrum of the 0x0 matrix and err says why.
- * Cost: charpoly and factorisation (FLINT), certified roots of each
+ * Cost: charpoly (charpoly.h) and factorisation (FLINT), certified roots of each
  * irreducible factor (Arb), qqbar_abs of at most a few factors of degree
  * <= SPECTRUM_QQBAR_ABS_MAX_DEGREE. */
 ns_status spectrum_compute(spectrum_t S, const fmpz_mat_t M, nserr_t err);
@@ -200,15 +205,15 @@ const fmpz *spectrum_det_one_minus(const spectrum_t S);
 /* The factored charpoly as a string in the given SPECTRUM_STR_* style, e.g.
  * "x^2 (x - 2)^3 (x^2 - x - 1)" (PLAIN), "x^2*(x - 2)^3*(x^2 - x - 1)"
  * (ASCII), "x^{2} (x - 2)^{3} (x^{2} - x - 1)" (LATEX); "1" when d = 0.
- * Caller frees with free(); NULL only when memory runs out. */
+ * Caller frees with flint_free(). */
 char *spectrum_factored_get_str(const spectrum_t S, int style);
 
 /* The expanded charpoly, e.g. "x^2 - 3x + 1" (PLAIN, LATEX: "x^{2} - 3x +
- * 1") or "x^2 - 3*x + 1" (ASCII).  Caller frees with free(). */
+ * 1") or "x^2 - 3*x + 1" (ASCII).  Caller frees with flint_free(). */
 char *spectrum_charpoly_get_str(const spectrum_t S, int style);
 
 /* Any integer polynomial in the same styles ("0" for the zero
- * polynomial).  Caller frees with free(). */
+ * polynomial).  Caller frees with flint_free(). */
 char *spectrum_poly_get_str(const fmpz_poly_t f, int style);
 
 /* ---- eigenvalues ------------------------------------------------------- */
@@ -238,7 +243,7 @@ slong spectrum_eigenvalue_factor(const spectrum_t S, slong i);
  * a part is known less precisely; Arb's "[+/- r]" notation if not even one
  * digit is); exact zeros and exact integers print as such, e.g.
  * "1.618033988749895 + 0i", "0 + 1i", "2 + 0i".  NULL for out-of-range i.
- * Caller frees with free(). */
+ * Caller frees with flint_free(). */
 char *spectrum_eigenvalue_get_str(const spectrum_t S, slong i, slong digits);
 
 /* |lambda_i| as a decimal string, same conventions; "1" when exactly 1. */
@@ -293,7 +298,7 @@ const qqbar_struct *spectrum_radius_qqbar(const spectrum_t S);
 int spectrum_radius_minpoly(fmpz_poly_t res, const spectrum_t S);
 
 /* The minimal polynomial of rho as a string in a SPECTRUM_STR_* style, or
- * NULL when rho is not exact.  Caller frees with free(). */
+ * NULL when rho is not exact.  Caller frees with flint_free(). */
 char *spectrum_radius_minpoly_get_str(const spectrum_t S, int style);
 
 /* rho as a decimal string with `digits` significant digits (digits <= 0
@@ -301,7 +306,7 @@ char *spectrum_radius_minpoly_get_str(const spectrum_t S, int style);
  * integer is returned ("0", "1", "3").  Otherwise the string s has exactly
  * `digits` significant digits and |s - rho| < one unit in its last digit
  * (s is rho correctly rounded unless rho lies within that distance of a
- * rounding boundary).  Caller frees with free(). */
+ * rounding boundary).  Caller frees with flint_free(). */
 char *spectrum_radius_get_str(const spectrum_t S, slong digits);
 
 /* ---- root bound rho^(1/j) -------------------------------------------- */
@@ -353,11 +358,13 @@ int spectrum_cmp_root_bound(const spectrum_t a, ulong ja,
 
 /* Decimal string of the real ball x with exactly `digits` >= 1 significant
  * digits such that |s - x0| < one unit in the last digit for every x0 in
- * x; exact integers (radius 0) print exactly.  Returns NULL when x is not
+ * x (the digits are Arb's arb_get_str; a midpoint halfway between two
+ * decimals rounds as Arb rounds it); exact integers (radius 0) print
+ * exactly.  Returns NULL when x is not
  * precise enough for that (then raise the precision of x) or contains 0
  * without being exactly 0 ("0" is returned for an exact 0).  Plain
  * notation for decimal exponents -5..digits-1, otherwise "d.ddde+N".
- * Caller frees with free(). */
+ * Caller frees with flint_free(). */
 char *spectrum_ball_get_str(const arb_t x, slong digits);
 
 #endif

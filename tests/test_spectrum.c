@@ -84,7 +84,7 @@ static void assert_str_free(char *s, const char *expected)
 {
     assert_non_null(s);
     assert_string_equal(s, expected);
-    free(s);
+    flint_free(s);
 }
 
 /* FLINT's polynomial string format: "len  c0 c1 ...". */
@@ -224,13 +224,13 @@ static void cat_map(void **state)
     {
         char *s = spectrum_radius_get_str(S, 30);
         assert_decimal(s, "2.618033988749894848204586834365638117720", 30);
-        free(s);
+        flint_free(s);
     }
     /* [formula] sqrt(rho) = golden ratio 1.6180339887498948482045868343656... */
     {
         char *s = spectrum_root_bound_get_str(S, 2, 30);
         assert_decimal(s, "1.6180339887498948482045868343656381177203", 30);
-        free(s);
+        flint_free(s);
     }
     /* entropy = log rho: compare the ball with Arb's log of the radius ball,
        and the string with [ref] 0.96242365011920689499551782684873684627 */
@@ -241,7 +241,7 @@ static void cat_map(void **state)
     {
         char *s = spectrum_entropy_get_str(S, 30);
         assert_decimal(s, "0.96242365011920689499551782684873684627036866877132", 30);
-        free(s);
+        flint_free(s);
     }
     assert_str_free(spectrum_eigenvalue_get_str(S, 0, 16), "2.618033988749895 + 0i");
     assert_str_free(spectrum_eigenvalue_get_str(S, 1, 16), "0.3819660112501052 + 0i");
@@ -309,7 +309,7 @@ static void lehmer(void **state)
     {
         char *s = spectrum_radius_get_str(S, 30);
         assert_decimal(s, "1.17628081825991750654407033847403505069", 30);
-        free(s);
+        flint_free(s);
     }
     fmpz_poly_init(mp);
     assert_true(spectrum_radius_minpoly(mp, S));
@@ -606,7 +606,7 @@ static void inexact_radius(void **state)
     {
         char *s = spectrum_radius_get_str(S, 40);
         assert_decimal(s, "2.2360666800582349249072930354501976628379732159173", 40);
-        free(s);
+        flint_free(s);
     }
     /* the same factor twice: equal radii, proved by the dominant factors */
     {
@@ -928,13 +928,13 @@ static void check_case(const ref_case *r)
         arb_clear(a);
         arb_clear(b);
     }
-    free(s);
+    flint_free(s);
     s = spectrum_entropy_get_str(S, 30);
     if (spectrum_count_above_one(S) > 0)
         assert_decimal(s, r->entropy, 30);
     else
         assert_string_equal(s, "0");
-    free(s);
+    flint_free(s);
     if (r->have_minpoly)
     {
         fmpz_poly_t mp;
