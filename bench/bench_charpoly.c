@@ -1,0 +1,170 @@
+/* bench_charpoly.c — characteristic polynomials of the largest layers nilstep
+ * meets: the 810-dimensional layer 8 of the free group of rank 3 at class 8
+ * and the 335-dimensional layer 12 of the free group of rank 2 at class 12
+ * (Witt's formula gives both dimensions), under maps of our own choosing.
+ *
+ * For each case it prints: the dimension; the number of primes our proven
+ * bound asks for next to the number the coefficients actually need; the wall
+ * time of charpoly_compute with all processors; a floor measured in the same
+ * run — FLINT's nmod_mat_charpoly for one prime, times the number of primes,
+ * divided by the threads, i.e. FLINT's own arithmetic with the same bound
+ * and perfect parallel speed-up — and the ratio time / floor; the machine's
+ * load average, so that figures from a loaded machine are read as such.
+ * The result is checked against FLINT's fmpz_mat_charpoly only when
+ * NILSTEP_BENCH_CHECK is set (it takes minutes).  Targets (issue 10): the
+ * 810-dimensional case in at most 10 s. */
+#include <stdio.h>
+#include <stdlib.h>
+#include <time.h>
+#include <unistd.h>
+
+#include <flint/fmpz_vec.h>
+#include <flint/nmod_mat.h>
+#include <flint/nmod_poly.h>
+#include <flint/ulong_extras.h>
+
+#include "charpoly.h"
+#include "endo.h"
+#include "layer.h"
+#include "nq.h"
+#include "pres.h"
+
+static double now(void)
+{
+    struct timespec t;
+    clock_gettime(CLOCK_MONOTONIC, &t);
+    return (double)t.tv_sec + 1e-9 * (double)t.tv_nsec;
+}
+
+static void print_load(void)
+{
+    double l[3];
+    FILE *f = fopen("/proc/loadavg", "r");
+    if (f != NULL && fscanf(f, "%lf %lf %lf", &l[0], &l[1], &l[2]) == 3)
+        printf("  machine load average %.2f %.2f %.2f on %ld processors\n", l[0], l[1], l[2],
+               sysconf(_SC_NPROCESSORS_ONLN));
+    if (f != NULL)
+        fclose(f);
+}
+
+/* M := the matrix the map induces on the top layer of the class-c quotient. */
+static int layer_matrix(fmpz_mat_t M, const char *group, slong c, const char *map)
+{
+    pres_t P;
+    nq_t Q;
+    endo_t E;
+    nserr_t err;
+    int ok = 0;
+    pres_init(P);
+    nq_init(Q);
+    endo_init(E);
+    nserr_init(err);
+    double t0 = now();
+    expr_struct *im = NULL;
+    slong ngens = 0;
+    if (pres_parse(P, group, 1, 1, err) != NS_OK || nq_compute(Q, P, c, NULL, err) != NS_OK)
+        goto done;
+    ngens = P->gens->n;
+    im = flint_malloc(sizeof(expr_struct) * ngens);
+    for (slong i = 0; i < ngens; i++)
+        expr_init(im + i);
+    if (pres_parse_map(im, P, map, 1, 1, err) != NS_OK
+        || endo_set(E, Q, im, NULL, err) != NS_OK)
+        goto done;
+    layer_t L;
+    layer_init(L);
+    layer_compute(L, Q, c);
+    fmpz_mat_t A;
+    fmpz_mat_init(A, 0, 0);
+    endo_layer_matrices(A, M, E, L);
+    fmpz_mat_clear(A);
+    layer_clear(L);
+    printf("  %s class %ld, %s: quotient and layer matrix in %.2f s (not timed below)\n", group,
+           (long)c, map, now() - t0);
+    ok = 1;
+done:
+    if (!ok)
+        fprintf(stderr, "bench_charpoly: %s\n", err->msg);
+    for (slong i = 0; i < ngens; i++)
+        expr_clear(im + i);
+    flint_free(im);
+    endo_clear(E);
+    nq_clear(Q);
+    pres_clear(P);
+    return ok;
+}
+
+static int run(const char *name, const char *group, slong c, const char *map)
+{
+    fmpz_mat_t M;
+    fmpz_poly_t cp, ref;
+    nserr_t err;
+    printf("%s\n", name);
+    fmpz_mat_init(M, 0, 0);
+    if (!layer_matrix(M, group, c, map)) {
+        fmpz_mat_clear(M);
+        return 1;
+    }
+    slong d = fmpz_mat_nrows(M), np = charpoly_num_primes(M);
+    long threads = sysconf(_SC_NPROCESSORS_ONLN);
+    if (threads < 1)
+        threads = 1;
+    if (threads > CHARPOLY_MAX_THREADS)
+        threads = CHARPOLY_MAX_THREADS;
+    fmpz_poly_init(cp);
+    fmpz_poly_init(ref);
+    nserr_init(err);
+    print_load();
+
+    /* the floor: FLINT's nmod_mat_charpoly on one prime of the same size */
+    nmod_mat_t Mp;
+    nmod_poly_t r;
+    mp_limb_t p = n_nextprime(UWORD(1) << (FLINT_BITS - 2), 1);
+    nmod_mat_init(Mp, d, d, p);
+    nmod_poly_init(r, p);
+    double t0 = now();
+    fmpz_mat_get_nmod_mat(Mp, M);
+    nmod_mat_charpoly(r, Mp);
+    double one = now() - t0;
+    nmod_mat_clear(Mp);
+    nmod_poly_clear(r);
+    double floor = one * (double)np / (double)FLINT_MIN(threads, np);
+
+    t0 = now();
+    ns_status st = charpoly_compute(cp, M, 0, NULL, err);
+    double t = now() - t0;
+    slong need = FLINT_ABS(_fmpz_vec_max_bits(cp->coeffs, cp->length));
+    printf("  dimension %ld; bound %ld bits -> %ld primes (the coefficients need %ld bits, %ld "
+           "primes)\n",
+           (long)d, (long)charpoly_bound_bits(M), (long)np, (long)need, (long)((need + 1) / 62 + 1));
+    printf("  %-40s %8s %8s %6s\n", "", "time", "floor", "ratio");
+    printf("  %-40s %7.2fs %7.2fs %6.2f\n", "charpoly_compute, all processors", t, floor,
+           t / floor);
+    int bad = st != NS_OK;
+    if (getenv("NILSTEP_BENCH_CHECK")) {
+        fmpz_poly_zero(ref);
+        t0 = now();
+        fmpz_mat_charpoly(ref, M);
+        printf("  %-40s %7.2fs\n", "fmpz_mat_charpoly (FLINT, its own bound)", now() - t0);
+        if (!fmpz_poly_equal(ref, cp)) {
+            printf("  MISMATCH with fmpz_mat_charpoly\n");
+            bad = 1;
+        }
+    }
+    fmpz_poly_clear(cp);
+    fmpz_poly_clear(ref);
+    fmpz_mat_clear(M);
+    return bad;
+}
+
+int main(void)
+{
+    int bad = 0;
+    setvbuf(stdout, NULL, _IOLBF, 0);
+    bad |= run("layer 8 of free(3) at class 8 (target: at most 10 s)", "free(3)", 8,
+               "a -> a^2 b, b -> a b c, c -> b c");
+    if (!getenv("NILSTEP_BENCH_QUICK"))
+        bad |= run("layer 12 of free(2) at class 12", "free(2)", 12, "a -> a^2 b, b -> a b");
+    flint_cleanup_master();
+    return bad;
+}

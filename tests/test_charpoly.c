@@ -1,0 +1,157 @@
+/* test_charpoly.c — the threaded, cancellable characteristic polynomial
+ * (src/charpoly.c) against FLINT's fmpz_mat_charpoly, an independent
+ * implementation (Dumas–Pernet–Wan bound, one thread), on random matrices
+ * of several shapes; the coefficient bound against the true coefficients;
+ * cancellation.  Random tests print their seed: NILSTEP_SEED replays a run,
+ * NILSTEP_ITER scales the number of matrices. */
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <setjmp.h>
+#include <cmocka.h>
+
+#include <flint/fmpz_vec.h>
+
+#include "charpoly.h"
+#include "testutil.h"
+
+static int setup(void **state)
+{
+    (void)state;
+    return rng_setup_program("test_charpoly");
+}
+
+/* A random d x d matrix: dense with small or large entries, sparse, or with
+ * a few heavy rows, so that each of the three bounds is sometimes the
+ * least. */
+static void random_matrix(fmpz_mat_t M)
+{
+    slong d = fmpz_mat_nrows(M);
+    long shape = rng_range(0, 3);
+    fmpz_mat_zero(M);
+    for (slong i = 0; i < d; i++)
+        for (slong j = 0; j < d; j++) {
+            fmpz *x = fmpz_mat_entry(M, i, j);
+            switch (shape) {
+            case 0:
+                fmpz_set_si(x, rng_range(-3, 3));
+                break;
+            case 1:
+                fmpz_set_si(x, rng_range(-1000000, 1000000));
+                break;
+            case 2:
+                if (rng_range(0, 9) == 0)
+                    fmpz_set_si(x, rng_range(-50, 50));
+                break;
+            default:
+                fmpz_set_si(x, i % 5 == 0 ? rng_range(-100000, 100000) : rng_range(-1, 1));
+            }
+        }
+    if (d > 0 && rng_range(0, 4) == 0) { /* a huge entry: multiword coefficients */
+        fmpz_set_ui(fmpz_mat_entry(M, 0, d - 1), 1);
+        fmpz_mul_2exp(fmpz_mat_entry(M, 0, d - 1), fmpz_mat_entry(M, 0, d - 1), 200);
+    }
+}
+
+static void agrees_with_flint_on_random_matrices(void **state)
+{
+    (void)state;
+    fmpz_poly_t a, b;
+    nserr_t err;
+    fmpz_poly_init(a);
+    fmpz_poly_init(b);
+    nserr_init(err);
+    for (slong t = 0; t < iters(40); t++) {
+        slong d = rng_range(0, 40);
+        slong threads = rng_range(0, 3); /* 0: one per processor */
+        fmpz_mat_t M;
+        fmpz_mat_init(M, d, d);
+        random_matrix(M);
+        assert_int_equal(charpoly_compute(a, M, threads, NULL, err), NS_OK);
+        fmpz_poly_zero(b); /* FLINT 2.9 starts from b's old coefficients */
+        fmpz_mat_charpoly(b, M);
+        if (!fmpz_poly_equal(a, b))
+            fail_msg("matrix %ld (d = %ld, %ld threads): charpoly differs from "
+                     "fmpz_mat_charpoly", (long)t, (long)d, (long)threads);
+        /* the bound holds: every |c_k| < 2^bits */
+        slong bits = charpoly_bound_bits(M);
+        if (d > 0 && _fmpz_vec_max_bits(b->coeffs, b->length) > 0
+            && FLINT_ABS(_fmpz_vec_max_bits(b->coeffs, b->length)) > bits)
+            fail_msg("matrix %ld: coefficient of %ld bits above the bound %ld", (long)t,
+                     (long)FLINT_ABS(_fmpz_vec_max_bits(b->coeffs, b->length)), (long)bits);
+        fmpz_mat_clear(M);
+    }
+    fmpz_poly_clear(a);
+    fmpz_poly_clear(b);
+}
+
+/* The bound is attained up to a few bits where it must be: the identity's
+ * charpoly (x - 1)^d has C(d, d/2) as its largest coefficient, and
+ * Hadamard's bound gives 2^d. */
+static void bound_is_sound_and_near_tight_for_the_identity(void **state)
+{
+    (void)state;
+    fmpz_mat_t M;
+    fmpz_mat_init(M, 60, 60);
+    fmpz_mat_one(M);
+    slong bits = charpoly_bound_bits(M);
+    /* C(60, 30) ~ 1.18e17 has 57 bits; (1 + 1)^60 has 61 */
+    assert_true(bits >= 57);
+    assert_true(bits <= 62);
+    fmpz_mat_clear(M);
+}
+
+static int stop_at_once(void *ctx, const char *stage, double fraction)
+{
+    (void)stage;
+    (void)fraction;
+    ++*(int *)ctx;
+    return 1;
+}
+
+static void cancel_stops_with_cancelled(void **state)
+{
+    (void)state;
+    fmpz_mat_t M;
+    fmpz_poly_t a;
+    nserr_t err;
+    int calls = 0;
+    ns_progress_t p = {stop_at_once, &calls};
+    fmpz_mat_init(M, 30, 30);
+    fmpz_poly_init(a);
+    nserr_init(err);
+    random_matrix(M);
+    for (slong threads = 1; threads <= 2; threads++) {
+        calls = 0;
+        assert_int_equal(charpoly_compute(a, M, threads, &p, err), NS_ERR_CANCELLED);
+        assert_true(calls >= 1);
+        assert_true(fmpz_poly_is_zero(a));
+    }
+    fmpz_mat_clear(M);
+    fmpz_poly_clear(a);
+}
+
+static void non_square_is_an_input_error(void **state)
+{
+    (void)state;
+    fmpz_mat_t M;
+    fmpz_poly_t a;
+    nserr_t err;
+    fmpz_mat_init(M, 2, 3);
+    fmpz_poly_init(a);
+    nserr_init(err);
+    assert_int_equal(charpoly_compute(a, M, 1, NULL, err), NS_ERR_INPUT);
+    fmpz_mat_clear(M);
+    fmpz_poly_clear(a);
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(agrees_with_flint_on_random_matrices),
+        cmocka_unit_test(bound_is_sound_and_near_tight_for_the_identity),
+        cmocka_unit_test(cancel_stops_with_cancelled),
+        cmocka_unit_test(non_square_is_an_input_error),
+    };
+    return cmocka_run_group_tests(tests, setup, NULL);
+}
