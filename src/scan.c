@@ -512,7 +512,14 @@ static char *member_json(const scan_t S, const worker *w, ulong index, const sca
     }
     strbuf_printf(b, ", \"group\": %s, \"class\": %ld, \"map\": ", S->group_json,
                   (long)A->class_requested);
-    strbuf_put_json_str(b, A->map_str);
+    if (item) {
+        strbuf_put_json_str(b, A->map_str); /* the text read, printed back */
+    } else {
+        /* the template with this member's values, as the user wrote it */
+        char *t = pres_get_map_str(w->img, S->group->nq->pres);
+        strbuf_put_json_str(b, t);
+        flint_free(t);
+    }
     strbuf_printf(b, ", \"valid\": %s", json_bool(A->valid));
     if (!A->valid) {
         strbuf_puts(b, ", \"failing_relator\": ");
@@ -575,7 +582,14 @@ static void worker_eval(worker *w, const scan_t S, ulong index, const scan_item 
         scan_member_params(w->vals, S, index);
         for (slong h = 0; h < w->nholes; h++)
             fmpz_set_si(w->holes[h].node->exp, w->holes[h].sign * w->vals[w->holes[h].param]);
-        r->status = analysis_set_map(w->A, w->img, NULL, r->err);
+        /* the member as a map value: its images evaluated once in the
+         * shared quotient, then analysed without any text in between */
+        endo_t E;
+        endo_init(E);
+        r->status = endo_set(E, w->A->nq, w->img, NULL, r->err);
+        if (r->status == NS_OK)
+            r->status = analysis_set_map_endo(w->A, E, NULL, r->err);
+        endo_clear(E);
     }
     if (r->status != NS_OK)
         return;

@@ -4,9 +4,10 @@
  *
  * The group and its quotient are computed once (scan_set_group).  A member
  * of a family is made by writing its parameter values into the exponents of
- * the parsed template (no text is printed and parsed back) and analysed
- * with analysis_set_map on an analysis that borrows the shared quotient
- * (analysis_share_group), one analysis per thread.  Each member becomes one
+ * the parsed template (no text is printed and parsed back), evaluated once
+ * as a map value (endo_set) and analysed with analysis_set_map_endo on an
+ * analysis that borrows the shared quotient (analysis_share_group), one
+ * analysis per thread.  Each member becomes one
  * JSON object (a line of JSON Lines, keys in README "Scans"); scan_run
  * hands the lines to the caller in member order whatever the number of
  * threads, so the output does not depend on it.  The module prints nothing.
