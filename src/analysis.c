@@ -630,13 +630,13 @@ ns_status analysis_set_map_endo(analysis_t A, endo_t E, const ns_progress_t *pro
                                 nserr_t err)
 {
     if (E == A->endo)
-        return nserr_set(err, NS_ERR_INPUT, 0, 0, "internal error: the map is the analysed one");
+        return nserr_set(err, NS_ERR_INTERNAL, 0, 0, "the map to analyse is the analysed one");
     if (!A->has_group || E->n != A->nq->pcp->n || E->ngens != A->nq->pres->gens->n ||
         !E->gen_img) {
         endo_clear(E);
-        return nserr_set(err, NS_ERR_INPUT, 0, 0,
-                         A->has_group ? "internal error: the map is not one of this quotient"
-                                      : "no group to map");
+        return A->has_group
+                   ? nserr_set(err, NS_ERR_INTERNAL, 0, 0, "the map is not one of this quotient")
+                   : nserr_set(err, NS_ERR_INPUT, 0, 0, "no group to map");
     }
     endo_t M;
     memcpy(M, E, sizeof(endo_struct)); /* move first: clearing the map must not touch E */
@@ -717,6 +717,13 @@ ns_status analysis_set_inverse(analysis_t A, const ns_progress_t *progress, nser
         endo_t I;
         endo_init(I);
         ns_status st = endo_inverse(I, A->endo, A->nq, progress, err);
+        /* an automorphism of a quotient with torsion-free layers has an
+         * inverse: endo_inverse refusing it is a bug */
+        if (st == NS_ERR_INPUT) {
+            char why[sizeof err->msg];
+            memcpy(why, err->msg, sizeof why);
+            st = nserr_set(err, NS_ERR_INTERNAL, 0, 0, "inverse of an automorphism: %s", why);
+        }
         if (st != NS_OK) {
             endo_clear(I);
             return st;

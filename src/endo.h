@@ -41,7 +41,8 @@ ns_status endo_set_elts(endo_t E, const nq_t Q, const fmpz *gen_img,
                         const ns_progress_t *progress, nserr_t err);
 
 /* Computes the images of all pc generators if they are not there yet (a
- * cache: E is logically unchanged).  Returns 1 when W's budget ran out. */
+ * cache: E is logically unchanged).  Returns 1 when W was stopped
+ * (pcp.h). */
 int endo_ensure_pc_images(const endo_t E, const nq_t Q, pcp_work_t W);
 
 /* out := alpha(g) for a valid map (out may alias g). */

@@ -395,9 +395,10 @@ static ns_status step_tail_relations(step_struct *S, const nq_t Q, pcp_work_t W,
     _fmpz_vec_clear(cc.row, FLINT_MAX(T, 1));
     if (rc < 0)
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld", (long)(c + 1));
+    NS_ASSERT(!cc.bad);
     if (cc.bad)
-        return nserr_set(err, NS_ERR_INPUT, 0, 0,
-                         "internal error: the class-%ld presentation is not consistent", (long)c);
+        return nserr_set(err, NS_ERR_INTERNAL, 0, 0,
+                         "the class-%ld presentation is not consistent", (long)c);
     if (progress_stage(prog, c + 1, "relators", 0.7))
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     ns_status st = NS_OK;
@@ -407,10 +408,10 @@ static ns_status step_tail_relations(step_struct *S, const nq_t Q, pcp_work_t W,
             st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld", (long)(c + 1));
             break;
         }
+        NS_ASSERT(_fmpz_vec_is_zero(val, n));
         if (!_fmpz_vec_is_zero(val, n)) {
-            st = nserr_set(err, NS_ERR_INPUT, 0, 0,
-                           "internal error: relator %ld is not trivial in class %ld", (long)r + 1,
-                           (long)c);
+            st = nserr_set(err, NS_ERR_INTERNAL, 0, 0, "relator %ld is not trivial in class %ld",
+                           (long)r + 1, (long)c);
             break;
         }
         if (!_fmpz_vec_is_zero(val + n, T))
@@ -427,11 +428,12 @@ static ns_status step_quotient(step_struct *S, const ns_progress_t *prog, nserr_
     if (progress_stage(prog, S->c + 1, "elimination", 0.9))
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     elim_get_quotient(S->q, S->L);
-    for (slong s = 0; s < S->q->nsurv; s++)
+    for (slong s = 0; s < S->q->nsurv; s++) {
+        NS_ASSERT(S->q->surv[s] >= S->last);
         if (S->q->surv[s] < S->last)
-            return nserr_set(err, NS_ERR_INPUT, 0, 0,
-                             "internal error: a non-commutator tail survived in class %ld",
-                             (long)(S->c + 1));
+            return nserr_set(err, NS_ERR_INTERNAL, 0, 0,
+                             "a non-commutator tail survived in class %ld", (long)(S->c + 1));
+    }
     return NS_OK;
 }
 

@@ -60,7 +60,8 @@ ns_status nq_compute(nq_t Q, const pres_t G, slong c, const ns_progress_t *progr
                      nserr_t err);
 
 /* Evaluates a word in the input generators in the quotient; out has
- * Q->pcp->n entries.  Returns NS_OK or NS_ERR_LIMIT / NS_ERR_CANCELLED. */
+ * Q->pcp->n entries.  Returns NS_OK, or NS_ERR_CANCELLED when progress
+ * asked to stop. */
 ns_status nq_eval(const nq_t Q, fmpz *out, const expr_t w, const ns_progress_t *progress,
                   nserr_t err);
 

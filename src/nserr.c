@@ -1,6 +1,7 @@
 /* nserr.c — located errors and the progress hook. */
 #include <stdarg.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include "nserr.h"
@@ -44,6 +45,13 @@ void nserr_format(char *buf, size_t n, const nserr_t e, const char *file)
     else
         where[0] = '\0';
 
+    if (e->status == NS_ERR_INTERNAL) {
+        if (file != NULL)
+            snprintf(buf, n, "%s: internal error, please report: %s", file, e->msg);
+        else
+            snprintf(buf, n, "internal error, please report: %s", e->msg);
+        return;
+    }
     if (file != NULL && where[0] != '\0')
         snprintf(buf, n, "%s:%s: error: %s", file, where, e->msg);
     else if (file != NULL)
@@ -59,4 +67,11 @@ int ns_progress_report(const ns_progress_t *p, const char *stage, double fractio
     if (p == NULL || p->fn == NULL)
         return 0;
     return p->fn(p->ctx, stage, fraction) != 0;
+}
+
+void ns_assert_fail(const char *cond, const char *file, int line)
+{
+    /* the one place the engine prints: a broken invariant in a debug build */
+    fprintf(stderr, "%s:%d: nilstep invariant failed: %s\n", file, line, cond);
+    abort();
 }

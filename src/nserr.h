@@ -13,8 +13,19 @@ typedef enum {
     NS_ERR_INPUT,     /* parses, but is not meaningful (unknown key, bad class) */
     NS_ERR_LIMIT,     /* a resource limit stopped the computation */
     NS_ERR_CANCELLED, /* the progress callback asked to stop */
-    NS_ERR_IO         /* a file could not be read or written */
+    NS_ERR_IO,        /* a file could not be read or written */
+    NS_ERR_INTERNAL   /* a broken invariant: a bug in nilstep, not bad input */
 } ns_status;
+
+/* Conventions for computations that stop early, one for the whole engine:
+ *  - a resource limit (a size the engine refuses to go beyond) is
+ *    NS_ERR_LIMIT with a message naming the limit;
+ *  - the progress hook asking to stop is NS_ERR_CANCELLED;
+ *  - inside, a computation on a pcp_work_t stops when the hook asks (its
+ *    overflow flag); functions on it return nonzero for "stopped" and their
+ *    callers turn that into NS_ERR_CANCELLED.
+ * Internal errors are NS_ERR_INTERNAL; in debug builds NS_ASSERT checks the
+ * invariant where it should hold and aborts with its location. */
 
 /* A located error.  line and col are 1-based; 0 means "no location". */
 typedef struct {
@@ -35,8 +46,20 @@ ns_status nserr_set(nserr_t e, ns_status status, int line, int col,
     __attribute__((format(printf, 5, 6)));
 
 /* Writes "FILE:LINE:COL: error: MSG" (FILE and the location are left out
- * when NULL / 0) into buf of size n, always NUL-terminated. */
+ * when NULL / 0) into buf of size n, always NUL-terminated.  An internal
+ * error reads "FILE: internal error, please report: MSG". */
 void nserr_format(char *buf, size_t n, const nserr_t e, const char *file);
+
+/* NS_ASSERT(cond): an invariant checked in debug builds (without NDEBUG:
+ * the Debug and sanitizer builds), where a failure prints the condition
+ * and its place on stderr and aborts; nothing in release builds.  FLINT's
+ * own FLINT_ASSERT cannot serve: it is compiled out of Debian's FLINT. */
+#ifdef NDEBUG
+#define NS_ASSERT(cond) ((void)0)
+#else
+#define NS_ASSERT(cond) ((cond) ? (void)0 : ns_assert_fail(#cond, __FILE__, __LINE__))
+#endif
+void ns_assert_fail(const char *cond, const char *file, int line) __attribute__((noreturn));
 
 /* Progress hook for long computations.  stage is a short phrase
  * ("class 4: consistency"), fraction in [0,1] or negative when unknown.

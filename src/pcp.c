@@ -208,7 +208,6 @@ void pcp_work_init(pcp_work_t W, const pcp_t P)
     W->P = P;
     W->plain = 0;
     W->steps = 0;
-    W->limit = 0;
     W->overflow = 0;
     W->progress = NULL;
 }
@@ -223,8 +222,6 @@ void pcp_work_clear(pcp_work_t W)
 static int work_tick(pcp_work_t W)
 {
     W->steps++;
-    if (W->limit && W->steps > W->limit)
-        W->overflow = 1;
     if ((W->steps & 0xfff) == 0 && W->progress &&
         ns_progress_report(W->progress, NULL, -1.0))
         W->overflow = 1;

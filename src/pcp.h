@@ -97,14 +97,17 @@ void pcp_set_conj(pcp_t P, slong k, slong i, const pcw_t w);
 void pcp_set_power(pcp_t P, slong i, const fmpz_t m, const pcw_t w);
 static inline slong pcp_slot(slong k, slong i) { return k * (k - 1) / 2 + i; }
 
-/* Work area for collection: the presentation it reads, a step budget and
- * a cancel hook.  One per thread of computation; the presentation is only
- * read. */
+/* Work area for collection: the presentation it reads and a cancel hook.
+ * One per thread of computation; the presentation is only read.  When the
+ * hook asks to stop, overflow is set, every operation on W returns at once
+ * (leaving garbage in its output) and the functions below that report it
+ * return nonzero ("stopped"); callers turn that into NS_ERR_CANCELLED
+ * (nserr.h states the convention).  There is no step limit: sizes are
+ * limited before the work, by the callers (nq.c). */
 typedef struct {
     const pcp_struct *P;
-    ulong steps;          /* collection steps done */
-    ulong limit;          /* stop (overflow = 1) after this many; 0 = none */
-    int overflow;         /* set when the limit or the hook stopped us */
+    ulong steps;          /* collection steps done (the hook is polled by them) */
+    int overflow;         /* the hook asked to stop */
     const ns_progress_t *progress; /* may be NULL; polled every 2^12 steps */
     int plain;            /* 1: never the polynomial route (tests compare the
                              two routes); 0 after pcp_work_init */
@@ -116,7 +119,7 @@ void pcp_work_clear(pcp_work_t W);
 
 /* Derives the inverse power words and the inverse conjugates from pow and
  * conj (descending over i: everything for a_i uses only generators > i).
- * Returns 0, or 1 when W ran out of budget. */
+ * Returns 0, or 1 when stopped. */
 int pcp_complete(pcp_t P, pcp_work_t W);
 
 /* The same tables for a presentation P that extends prev by central
@@ -142,7 +145,7 @@ void pcp_elt_comm(pcp_work_t W, fmpz *out, const fmpz *u, const fmpz *v);
 void pcp_elt_conj(pcp_work_t W, fmpz *out, const fmpz *u, const fmpz *v);
 
 /* Evaluates the word e with generator g mapped to images + g * n.  Returns
- * 0, or 1 when the budget ran out. */
+ * 0, or 1 when stopped. */
 int pcp_eval_expr(pcp_work_t W, fmpz *out, const expr_node *e, const fmpz *images);
 
 /* Writes the element as a word in pc generator names "name[k]", e.g.
@@ -160,7 +163,7 @@ char *pcp_elt_get_str(const pcp_t P, const fmpz *u, char *const *names);
  * skipping those whose weights add up to more than maxweight (they hold
  * because such generators commute).  fn gets both collected sides of each
  * test and returns nonzero to stop.  Returns 0 when all tests ran, 1 when
- * fn stopped the run, -1 when W ran out of budget. */
+ * fn stopped the run, -1 when the hook stopped it (W->overflow). */
 typedef int (*pcp_consistency_fn)(void *ctx, const fmpz *lhs, const fmpz *rhs);
 int pcp_consistency_run(const pcp_t P, pcp_work_t W, pcp_consistency_fn fn, void *ctx);
 

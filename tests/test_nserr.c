@@ -3,7 +3,11 @@
 #include <stddef.h>
 #include <stdint.h>
 #include <setjmp.h>
+#include <signal.h>
+#include <stdio.h>
 #include <string.h>
+#include <sys/wait.h>
+#include <unistd.h>
 #include <cmocka.h>
 
 #include "nserr.h"
@@ -95,6 +99,54 @@ static void progress_should_pass_the_callers_answer(void **state)
     assert_int_equal(ns_progress_report(NULL, "x", 0.9), 0);
 }
 
+/* Internal errors say that they are bugs, whatever the file. */
+static void internal_errors_ask_to_be_reported(void **state)
+{
+    nserr_t e;
+    char buf[600];
+    (void)state;
+
+    nserr_init(e);
+    assert_int_equal(nserr_set(e, NS_ERR_INTERNAL, 2, 3, "relator %d is not trivial", 1),
+                     NS_ERR_INTERNAL);
+    nserr_format(buf, sizeof buf, e, "--group");
+    assert_string_equal(buf, "--group: internal error, please report: relator 1 is not trivial");
+    nserr_format(buf, sizeof buf, e, NULL);
+    assert_string_equal(buf, "internal error, please report: relator 1 is not trivial");
+}
+
+/* NS_ASSERT aborts on a false invariant in debug builds (run in a child
+ * process) and costs nothing in release builds. */
+static int ns_assert_false(void)
+{
+    int evaluated = 0;
+    NS_ASSERT((evaluated = 1) == 0);
+    return evaluated;
+}
+
+static void ns_assert_aborts_only_in_debug_builds(void **state)
+{
+    (void)state;
+    NS_ASSERT(1 + 1 == 2); /* a true invariant never stops */
+    fflush(NULL);
+    pid_t pid = fork();
+    assert_true(pid >= 0);
+    if (pid == 0) {
+        if (!freopen("/dev/null", "w", stderr))
+            _exit(1);
+        ns_assert_false();
+        _exit(0);
+    }
+    int st = 0;
+    assert_int_equal(waitpid(pid, &st, 0), pid);
+#ifdef NDEBUG
+    assert_true(WIFEXITED(st) && WEXITSTATUS(st) == 0);
+    assert_int_equal(ns_assert_false(), 0); /* not even evaluated */
+#else
+    assert_true(WIFSIGNALED(st) && WTERMSIG(st) == SIGABRT);
+#endif
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -103,6 +155,8 @@ int main(void)
         cmocka_unit_test(format_should_truncate_safely),
         cmocka_unit_test(clear_should_reset_to_ok),
         cmocka_unit_test(progress_should_pass_the_callers_answer),
+        cmocka_unit_test(internal_errors_ask_to_be_reported),
+        cmocka_unit_test(ns_assert_aborts_only_in_debug_builds),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -53,7 +53,8 @@ void cli_print_help(FILE *out)
           "vectors (column k holds the image of basis element k).\n"
           "\n"
           "Exit status of report: 0 done, 1 the map is not well defined on the\n"
-          "class-c quotient, 2 bad input or usage, 3 a resource limit was hit.\n",
+          "class-c quotient, 2 bad input or usage, 3 a resource limit was hit,\n"
+          "4 an internal error (a bug: please report it).\n",
           out);
 }
 
@@ -72,6 +73,8 @@ static int report_error(const nserr_t err, const char *where)
     char buf[700];
     nserr_format(buf, sizeof buf, err, where);
     fprintf(stderr, "%s\n", buf);
+    if (err->status == NS_ERR_INTERNAL)
+        return 4;
     if (err->status == NS_ERR_LIMIT || err->status == NS_ERR_CANCELLED)
         return 3;
     return 2;

@@ -63,7 +63,8 @@ void cli_print_scan_help(FILE *out)
           "line with \"id\" and \"map\".  Output: JSON Lines, one object per member kept,\n"
           "in member order.  Exit status: 0 done, 1 some input lines or members\n"
           "failed (messages on stderr), 2 bad input or usage, 3 a limit was hit or\n"
-          "SIGINT/SIGTERM stopped the run (lines stay whole; --resume goes on).\n",
+          "SIGINT/SIGTERM stopped the run (lines stay whole; --resume goes on),\n"
+          "4 an internal error (a bug: please report it).\n",
           out);
 }
 
@@ -72,6 +73,8 @@ static int scan_error(const nserr_t err, const char *where)
     char buf[700];
     nserr_format(buf, sizeof buf, err, where);
     fprintf(stderr, "%s\n", buf);
+    if (err->status == NS_ERR_INTERNAL)
+        return 4;
     return err->status == NS_ERR_LIMIT || err->status == NS_ERR_CANCELLED ? 3 : 2;
 }
 
