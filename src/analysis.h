@@ -39,7 +39,7 @@ typedef struct {
     fmpz_mat_t matrix;     /* free_rank x free_rank; column k = image of basis k */
     fmpz_mat_t action;     /* count x count: images of the layer's pc generators,
                               modulo the layer's power relations */
-    char *charpoly_str;    /* "x^2 - 3*x + 1" */
+    char *charpoly_str;    /* "x^2 - 3x + 1" */
     char *charpoly_factored_str; /* "(x - 1)^2*(x^2 - 3*x + 1)" */
     char *charpoly_latex;  /* the factored form in LaTeX */
     fmpz *charpoly;        /* free_rank + 1 coefficients, constant term first */

@@ -2,7 +2,7 @@
  *
  * The relation lattices of the nilpotent quotient algorithm are sparse,
  * have many more rows than columns and mostly unit pivots; FLINT 2.9's
- * dense Hermite forms are slow on them (see ALGORITHMS.md §4).  Rows are
+ * dense Hermite forms are slow on them (doc/design.md §9.3).  Rows are
  * inserted one at a time and reduced against the stored pivot rows; a
  * non-divisible pivot is combined by the extended gcd, as in the
  * classical Hermite algorithm (C. Hermite 1851; see H. Cohen, A Course in

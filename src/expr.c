@@ -1,9 +1,11 @@
 /* expr.c — words of the input language: trees, scanner, parser, printer.
  *
- * Every walk over a tree (free, copy, print, exponent sums) uses an explicit
- * stack, so trees built by other modules (iterated substitutions can be
- * thousands of levels deep) never overflow the C stack.  The parser recurses,
- * but only once per bracket level, and brackets nest at most EXPR_MAX_DEPTH. */
+ * The walks in this file (free, copy, print, exponent sums) use an explicit
+ * stack, so a deep tree never overflows the C stack here.  Not every walk
+ * does: the evaluation in pcp.c (pcp_eval_expr) recurses once per level of
+ * the tree.  That is safe because trees stay shallow: the parser recurses
+ * once per bracket level and brackets nest at most EXPR_MAX_DEPTH, and the
+ * trees pres.c builds for the built-in families are a few levels deep. */
 #include <limits.h>
 #include <stdio.h>
 #include <string.h>

@@ -1,4 +1,4 @@
-/* report.h — the analysis as text, JSON (DESIGN §6 keys) or LaTeX. */
+/* report.h — the analysis as text, JSON (doc/design.md §6.1 keys) or LaTeX. */
 #ifndef NILSTEP_REPORT_H
 #define NILSTEP_REPORT_H
 

@@ -1,4 +1,4 @@
-/* session.h — session files, format 1 (DESIGN §5).
+/* session.h — session files, format 1 (doc/design.md §5).
  *
  *     nilstep session 1
  *     title   Doubling on a 2-step group

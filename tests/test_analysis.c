@@ -12,7 +12,7 @@
  *  - the growth rate in its four cases, and validity of maps.
  *
  * Matrices act on column vectors: column k of M_j holds the coordinates of
- * the image of basis element k (DESIGN §2).  A map is built from a matrix
+ * the image of basis element k (doc/design.md §2.1).  A map is built from a matrix
  * M as "x_k -> prod_i x_i^M[i][k]", so that M1 = M.
  *
  * Random tests print their seed; NILSTEP_SEED replays one, NILSTEP_ITER

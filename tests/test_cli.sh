@@ -1,5 +1,5 @@
 #!/usr/bin/env bash
-# test_cli.sh — the command line of `nilstep report` (DESIGN §6): located
+# test_cli.sh — the command line of `nilstep report` (doc/design.md §6.1, §8): located
 # syntax errors and exit statuses, the JSON keys, Witt's formula for the
 # free ranks of free(2) at class 10, the LaTeX table.
 #
@@ -207,11 +207,11 @@ EOF
 ok
 
 # ---------------------------------------------------------------------------
-# The JSON keys of DESIGN §6
+# The JSON keys of doc/design.md §6.1
 
 expect_status 0 "JSON report with a map" \
     report --group '<a, b | [a,b,a], [a,b,b]>' --class 2 --map 'a -> a^2 b, b -> a b' --format json
-$PY - "$tmp/out" <<'EOF' || fail "JSON report lacks keys of DESIGN §6 or has wrong types"
+$PY - "$tmp/out" <<'EOF' || fail "JSON report lacks keys of doc/design.md §6.1 or has wrong types"
 import json, sys
 r = json.load(open(sys.argv[1]))
 def need(obj, keys, where):

@@ -4,10 +4,10 @@
  * Meaning is checked outside the parser: words are evaluated in SL(2,Z) with
  * a -> [[1,2],[0,1]], b -> [[1,0],[2,1]], which generate a free group of
  * rank 2 (I. N. Sanov, 1947), so two words in a, b are equal exactly when
- * their matrices are.  The conventions checked are those of DESIGN §2:
+ * their matrices are.  The conventions checked are those of doc/design.md §2.1:
  * [x,y] = x^-1 y^-1 x y, [x,y,z] = [[x,y],z], x^y = y^-1 x y.
  *
- * Random tests print their seed; NILSTEP_SEED replays one, NILSTEP_SCALE
+ * Random tests print their seed; NILSTEP_SEED replays one, NILSTEP_ITER
  * multiplies the number of cases. */
 #include <stdarg.h>
 #include <stddef.h>
@@ -538,7 +538,7 @@ static void print_then_parse_should_be_stable_on_random_words(void **state)
 {
     names_t g;
     nserr_t err;
-    long cases = count_scaled_by("NILSTEP_SCALE", 400);
+    long cases = count_scaled_by("NILSTEP_ITER", 400);
     (void)state;
 
     rng_seed_test("round trip", 20240601ULL, "set NILSTEP_SEED to replay");
@@ -636,7 +636,7 @@ static void exponent_sums_should_follow_the_definitions(void **state)
  * image by plain group arithmetic, independently of expr_exponent_sums. */
 static void exponent_sums_should_match_the_abelianisation(void **state)
 {
-    long cases = count_scaled_by("NILSTEP_SCALE", 300);
+    long cases = count_scaled_by("NILSTEP_ITER", 300);
     (void)state;
 
     rng_seed_test("exponent sums", 20240601ULL, "set NILSTEP_SEED to replay");

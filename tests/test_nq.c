@@ -26,7 +26,7 @@
  *           of Groups (1979), §16-17: UT(n, Z) is nilpotent of class n-1 and
  *           gamma_j / gamma_(j+1) is free abelian of rank n-j (from memory).
  *
- * Conventions (DESIGN.md §2): [x,y] = x^-1 y^-1 x y, [x,y,z] = [[x,y],z];
+ * Conventions (doc/design.md §2.1): [x,y] = x^-1 y^-1 x y, [x,y,z] = [[x,y],z];
  * layer j = gamma_j / gamma_(j+1). */
 #include <stdarg.h>
 #include <stddef.h>
@@ -460,7 +460,7 @@ static void abelian_torsion_invariant_factors(void **state)
 /* <a, b | a^2 b^-1, b^2> is Z/4 [SNF]: the exponent-sum matrix
  * [[2, -1], [0, 2]] has entry gcd 1 and determinant 4.  Its echelon form
  * keeps both columns (pivots 2 and 2), so the layer's invariant must come
- * from the whole power-relation block (ALGORITHMS.md §1), not the pivots. */
+ * from the whole power-relation block (doc/design.md §9.4), not the pivots. */
 static void layer_torsion_from_whole_block(void **state)
 {
     (void)state;
@@ -579,7 +579,7 @@ static void unitriangular4(void **state)
     nq_clear(Q);
 }
 
-/* ALGORITHMS.md §3 names <a, b | c = [b,a] central, a^2 = c> as a group
+/* doc/design.md §9.4 names <a, b | c = [b,a] central, a^2 = c> as a group
  * whose layer torsion does not lift.  Derived by hand: the group is
  * nilpotent of class 2, and since c = [b,a] is central, [b, a^k] = c^k; as
  * a^2 = c is central too, c^2 = [b,a^2] = 1.  The exponent sums give layer 1

@@ -13,7 +13,7 @@
  *   - the consistency test of pcp.h on every computed presentation, and on
  *     two small presentations written by hand, one consistent and one not.
  *
- * Convention (DESIGN.md §2): [x,y] = x^-1 y^-1 x y, x^y = y^-1 x y. */
+ * Convention (doc/design.md §2.1): [x,y] = x^-1 y^-1 x y, x^y = y^-1 x y. */
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>

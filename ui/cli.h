@@ -6,7 +6,7 @@
 #include <stdio.h>
 
 /* Runs `nilstep report ...`; argv[0] is "report".  Returns the exit status
- * of DESIGN §6: 0 done, 1 map not well defined, 2 bad input or usage,
+ * of doc/design.md §8: 0 done, 1 map not well defined, 2 bad input or usage,
  * 3 a resource limit stopped the computation. */
 int cli_report(int argc, char **argv);
 
