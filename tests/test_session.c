@@ -1,7 +1,7 @@
 /* test_session.c — session files, format 1: reading, writing, atomic
  * saving, located errors.
  *
- * Random tests print their seed; NILSTEP_SEED replays one, NILSTEP_SCALE
+ * Random tests print their seed; NILSTEP_SEED replays one, NILSTEP_ITER
  * multiplies the number of cases. */
 #include <stdarg.h>
 #include <stddef.h>
@@ -491,7 +491,7 @@ static char *random_text(int allow_lines)
 
 static void get_str_then_parse_should_give_an_equal_session(void **state)
 {
-    long cases = count_scaled_by("NILSTEP_SCALE", 300);
+    long cases = count_scaled_by("NILSTEP_ITER", 300);
     (void)state;
 
     rng_seed_test("session round trip", 20240602ULL, "set NILSTEP_SEED to replay");
@@ -902,7 +902,7 @@ static void leftovers_should_be_recognised(void **state)
 static void kill_while_saving_should_leave_a_whole_file(void **state)
 {
     char *dir = make_temp_dir(), real[4200], link[4200], sub[4200];
-    int root = geteuid() == 0, trials = (int)count_scaled_by("NILSTEP_SCALE", 40), changed = 0;
+    int root = geteuid() == 0, trials = (int)count_scaled_by("NILSTEP_ITER", 40), changed = 0;
     slong leftovers = 0;
     session_t a, b, t, last;
     nserr_t err;

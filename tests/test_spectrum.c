@@ -13,8 +13,8 @@
  *              which fails if the file is not reproduced;
  *   [flint]    an independent FLINT routine (fmpz_mat_det of M and of
  *              I - M, fmpz_mat_trace), not the charpoly the module uses.
- * Random property tests print their seed: NILSTEP_SEED and NILSTEP_ITER
- * (default 1 and 150) reproduce or lengthen a run. */
+ * Random property tests print their seed: NILSTEP_SEED (default 1) replays
+ * a run, NILSTEP_ITER scales its 150 matrices (testutil.h). */
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
@@ -29,6 +29,7 @@
 #include <arb_fmpz_poly.h>
 
 #include "spectrum.h"
+#include "testutil.h"
 
 /* ------------------------------------------------------------------------
  * helpers
@@ -1150,13 +1151,15 @@ static void random_matrix(fmpz_mat_t M, flint_rand_t st)
 static void random_properties(void **state)
 {
     ulong seed = env_ulong("NILSTEP_SEED", 1);
-    slong iters = (slong) env_ulong("NILSTEP_ITER", 150), iter;
+    /* NILSTEP_ITER scales the 150 matrices (testutil.h: at least one) */
+    slong iters = (slong) count_scaled_by("NILSTEP_ITER", 150), iter;
     flint_rand_t st;
     spectrum_t S;
     nserr_t err;
     (void) state;
 
-    printf("random_properties: NILSTEP_SEED=%lu NILSTEP_ITER=%ld\n", seed, (long) iters);
+    printf("random_properties: NILSTEP_SEED=%lu, %ld matrices (NILSTEP_ITER scales them)\n",
+           seed, (long) iters);
     flint_randinit(st);
     flint_randseed(st, seed, seed * 2654435761UL + 1);
     spectrum_init(S);

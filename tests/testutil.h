@@ -59,13 +59,17 @@ static inline void rng_seed_test(const char *test, uint64_t fallback, const char
     printf("# %s: seed %llu (%s)\n", test, (unsigned long long)*rng_state(), note);
 }
 
-/* n times the whole number in the environment variable var, or n when it
- * is unset or not positive. */
+/* NILSTEP_ITER has one meaning in every test: a scale factor for the
+ * iteration counts.  The scale is the positive number in var (fractions
+ * allowed); unset, 0, negative or not a number count as 1.  The result is
+ * n times the scale, rounded down, and never less than 1: a test always runs
+ * at least one iteration. */
 static inline long count_scaled_by(const char *var, long n)
 {
     const char *e = getenv(var);
-    long k = e ? atol(e) : 1;
-    return n * (k > 0 ? k : 1);
+    double k = e && *e ? atof(e) : 1.0;
+    double v = (double)n * (k > 0 ? k : 1.0);
+    return v < 1 ? 1 : (long)v;
 }
 
 /* The scale of iters(): a positive number from NILSTEP_ITER, read once by
@@ -94,7 +98,8 @@ static inline int rng_setup_program(const char *program)
     return 0;
 }
 
-/* base iterations scaled as rng_setup_program read it; at least 1. */
+/* base iterations scaled as rng_setup_program read NILSTEP_ITER (the
+ * meaning of count_scaled_by); at least 1. */
 static inline slong iters(slong base)
 {
     double v = base * *iter_scale();
