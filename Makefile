@@ -9,6 +9,8 @@
 #   make bench      build, then build and run the benchmarks
 #   make asan       test suite under AddressSanitizer/UBSan in $(ASAN_BUILD),
 #                   built with clang when installed (ASAN_CC=...)
+#   make fuzz       the libFuzzer targets in $(FUZZ_BUILD)/fuzz (clang,
+#                   libclang-rt-14-dev; installed here only when missing)
 #   make install    install from $(BUILD) (PREFIX=..., DESTDIR=... honoured)
 #   make clean      remove both build directories
 #
@@ -18,6 +20,7 @@
 
 BUILD ?= build
 ASAN_BUILD ?= build-asan
+FUZZ_BUILD ?= build-fuzz
 JOBS ?= 2
 CMAKE ?= cmake
 CTEST ?= ctest
@@ -31,7 +34,7 @@ PREFIX ?=
 # Keep make's "Entering directory" chatter out of CMake's build output.
 MAKEFLAGS += --no-print-directory
 
-.PHONY: all deps build demo test bench asan install clean
+.PHONY: all deps build demo test bench asan fuzz install clean
 
 all: build
 
@@ -62,8 +65,17 @@ asan: deps
 	    UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1 \
 	    $(CTEST) --output-on-failure -j $(JOBS)
 
+fuzz: deps
+	@bash .ci/install-deps --fuzz
+	@test -f $(FUZZ_BUILD)/CMakeCache.txt || \
+	    CC=clang $(CMAKE) -S . -B $(FUZZ_BUILD) -DNILSTEP_FUZZ=ON \
+	        -DCMAKE_BUILD_TYPE=RelWithDebInfo $(CMAKE_FLAGS)
+	$(CMAKE) --build $(FUZZ_BUILD) -j $(JOBS) --target fuzz_parse fuzz_engine
+	@echo "run e.g.: $(FUZZ_BUILD)/fuzz/fuzz_engine -max_total_time=600 -jobs=1 \\"
+	@echo "          -max_len=512 tests/fuzz/corpus/engine  (see DEVELOPERS.md)"
+
 install: build
 	$(CMAKE) --install $(BUILD) $(if $(PREFIX),--prefix $(PREFIX))
 
 clean:
-	rm -rf $(BUILD) $(ASAN_BUILD)
+	rm -rf $(BUILD) $(ASAN_BUILD) $(FUZZ_BUILD)

@@ -4,14 +4,11 @@
  * Besides "no crash, no leak, no undefined behaviour" it checks round trips:
  * whatever parses must print to text that parses back and prints the same.
  *
- * Not part of the default build.  With clang and libFuzzer:
- *   clang -std=c17 -D_XOPEN_SOURCE=700 -g -O1 -fsanitize=fuzzer,address,undefined \
- *       -Isrc src/nserr.c src/expr.c src/pres.c src/session.c src/strbuf.c \
- *       src/utf8.c tests/fuzz/fuzz_parse.c -lflint -lgmp -o fuzz_parse
- *   ./fuzz_parse -max_len=4096 corpus/
- * Without libFuzzer, add -DFUZZ_STANDALONE_MAIN (and drop "fuzzer," from
- * -fsanitize): the program then runs the target once on each file named on
- * its command line. */
+ * Built with clang and libFuzzer by -DNILSTEP_FUZZ=ON (`make fuzz`, see
+ * DEVELOPERS.md, "Fuzzing").  With -DFUZZ_STANDALONE_MAIN the program runs
+ * the target once on each file named on its command line: every build makes
+ * that driver (fuzz_parse_replay) and ctest replays tests/fuzz/corpus/parse
+ * through it. */
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
