@@ -3,6 +3,7 @@
 
 #include <gmp.h>
 #include <malloc.h>
+#include <stdatomic.h>
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -12,7 +13,8 @@
 
 #include <flint/flint.h>
 
-static size_t memlimit_used;
+/* Atomic: `nilstep scan --jobs N` allocates from several threads at once. */
+static _Atomic size_t memlimit_used;
 static size_t memlimit_max = SIZE_MAX;
 static const char *memlimit_name = "the default memory limit";
 static void (*memlimit_emergency)(void);
@@ -108,11 +110,19 @@ static void *memlimit_calloc(size_t k, size_t n)
     return p;
 }
 
+/* Takes u bytes off the count, never below 0: blocks from before the hooks
+ * were installed were never counted. */
+static void memlimit_sub(size_t u)
+{
+    size_t cur = atomic_load_explicit(&memlimit_used, memory_order_relaxed);
+    while (!atomic_compare_exchange_weak_explicit(&memlimit_used, &cur, u > cur ? 0 : cur - u,
+                                                  memory_order_relaxed, memory_order_relaxed))
+        ;
+}
+
 static void memlimit_uncount(void *p)
 {
-    size_t u = malloc_usable_size(p);
-    /* blocks from before the hooks were installed were never counted */
-    memlimit_used = u > memlimit_used ? 0 : memlimit_used - u;
+    memlimit_sub(malloc_usable_size(p));
 }
 
 static void *memlimit_realloc(void *p, size_t n)
@@ -125,8 +135,8 @@ static void *memlimit_realloc(void *p, size_t n)
     void *q = realloc(p, n ? n : 1);
     if (q == NULL)
         memlimit_die(n, 0);
-    memlimit_used = old > memlimit_used ? 0 : memlimit_used - old;
-    memlimit_used += malloc_usable_size(q);
+    memlimit_sub(old);
+    memlimit_used += malloc_usable_size(q); /* an atomic read-modify-write */
     return q;
 }
 
