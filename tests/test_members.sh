@@ -3,9 +3,10 @@
 # driven in tmux at 100x30: `nilstep FILE.jsonl` lists the members, f
 # filters, s sorts, Enter makes a member the current map, L comes back, the
 # open prompt takes a .jsonl file too, and a file without scan results is a
-# clear error.  The expected counts and the largest growth rate come from a
-# brute force over the same 2x2 matrices in Python (the classification by
-# trace and determinant), not from the program.
+# clear error; and `nilstep scan` shows its progress line on a terminal.
+# The expected counts and the largest growth rate come from a brute force
+# over the same 2x2 matrices in Python (the classification by trace and
+# determinant), not from the program.
 #
 # Skipped (exit 77) without NILSTEP_BINARY or tmux.
 set -u
@@ -99,6 +100,20 @@ keys q
 wait_for "Quit without saving"
 keys y
 wait_for "EXIT=0"
+
+# the progress line of `nilstep scan` when stderr is a terminal: done/total,
+# rate, time left; it is erased before the closing summary
+tmux -L "$sock" kill-server >/dev/null 2>&1
+tmux -L "$sock" new-session -d -s m -x 100 -y 10 \
+    "'$NS' scan --group 'free(2)' --class 4 --family 'a -> a^p b^q, b -> a^r b^s' \
+     --range p=-4..4 --range q=-4..4 --range r=-4..4 --range s=-4..4 --jobs 1 \
+     --output '$tmp/prog.jsonl'; echo EXIT=\$?; sleep 30"
+wait_for "/6561  "
+screen | grep -qE 'nilstep scan: [0-9]+/6561  [0-9]+/s  [0-9]+ s left' ||
+    fail "progress line: done/total, rate and time left expected"
+wait_for "EXIT=0"
+screen | grep -q 'nilstep scan: 6561 tried, 6561 valid, 6561 kept' || fail "closing summary line"
+screen | grep -q '/6561  ' && fail "the progress line was not erased"
 
 # a file with no scan result in it: a message and exit status 2
 printf 'not json\n{"x": 1}\n' >"$tmp/bad.jsonl"
