@@ -196,6 +196,8 @@ ns_status analysis_set_group(analysis_t A, const pres_t G, slong c, const ns_pro
     ns_status st = nq_compute(A->nq, G, c, progress, err);
     if (st != NS_OK)
         return st;
+    if (ns_progress_report(progress, "layers", -1.0))
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     A->has_group = 1;
     A->class_requested = c;
     A->nlayers = c;
@@ -372,7 +374,9 @@ static ns_status analyse_layers(analysis_t A, const ns_progress_t *progress, nse
             }
             _fmpz_vec_clear(v, FLINT_MAX(cnt, 1));
         }
-        if (progress && ns_progress_report(progress, "spectra", (double)j / (double)A->nlayers)) {
+        char stage[64];
+        snprintf(stage, sizeof stage, "spectra: layer %ld of %ld", (long)j, (long)A->nlayers);
+        if (progress && ns_progress_report(progress, stage, (double)(j - 1) / (double)A->nlayers)) {
             st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
             break;
         }
@@ -604,7 +608,9 @@ ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_pro
     const nq_struct *Q = A->nq;
     A->has_map = 1;
     A->map_str = (pres_get_map_str(images, Q->pres));
-    ns_status st = endo_set(A->endo, Q, images, progress, err);
+    ns_status st = ns_progress_report(progress, "images of the generators", -1.0)
+                       ? nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled")
+                       : endo_set(A->endo, Q, images, progress, err);
     if (st != NS_OK) {
         analysis_clear_map(A);
         return st;

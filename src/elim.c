@@ -284,6 +284,22 @@ void elim_quotient_clear(elim_quotient_t Q)
 
 void elim_get_quotient(elim_quotient_t Q, const elim_t E)
 {
+    elim_get_quotient_progress(Q, E, NULL);
+}
+
+/* Counts work and polls progress once ELIM_POLL_WORK has accumulated. */
+static int elim_poll(slong *work, slong add, const ns_progress_t *progress)
+{
+    *work += add;
+    if (*work < ELIM_POLL_WORK)
+        return 0;
+    *work = 0;
+    return ns_progress_report(progress, NULL, -1.0);
+}
+
+int elim_get_quotient_progress(elim_quotient_t Q, const elim_t E, const ns_progress_t *progress)
+{
+    slong work = 0;
     elim_quotient_clear(Q);
     slong n = E->ncols, ns = 0;
     slong *sidx = flint_malloc(FLINT_MAX(n, 1) * sizeof(slong));
@@ -302,7 +318,7 @@ void elim_get_quotient(elim_quotient_t Q, const elim_t E)
     if (ns == 0) {
         /* Z^n/L is trivial: nothing to express (and no arrays to index) */
         flint_free(sidx);
-        return;
+        return 0;
     }
     /* Back substitution from the last column: a unit-pivot column is minus
      * the rest of its row. */
@@ -316,6 +332,11 @@ void elim_get_quotient(elim_quotient_t Q, const elim_t E)
         }
         for (slong k = 1; k < P->len; k++)
             _fmpz_vec_scalar_submul_fmpz(ec, Q->expr + P->col[k] * ns, ns, P->val + k);
+        if (elim_poll(&work, P->len * ns, progress)) {
+            flint_free(sidx);
+            elim_quotient_clear(Q);
+            return 1;
+        }
     }
     for (slong c = 0; c < n; c++) {
         const elim_row_struct *P = E->piv + c;
@@ -334,6 +355,12 @@ void elim_get_quotient(elim_quotient_t Q, const elim_t E)
         fmpz *row = Q->rel + s * ns;
         for (slong k = 0; k < P->len; k++)
             _fmpz_vec_scalar_addmul_fmpz(row, Q->expr + P->col[k] * ns, ns, P->val + k);
+        if (elim_poll(&work, P->len * ns, progress)) {
+            flint_free(sidx);
+            elim_quotient_clear(Q);
+            return 1;
+        }
     }
     flint_free(sidx);
+    return 0;
 }

@@ -18,6 +18,8 @@
 #include <flint/fmpz.h>
 #include <flint/fmpz_vec.h>
 
+#include "nserr.h"
+
 typedef struct {
     slong len, alloc;
     slong *col; /* increasing */
@@ -68,5 +70,10 @@ typedef elim_quotient_struct elim_quotient_t[1];
 void elim_quotient_init(elim_quotient_t Q);
 void elim_quotient_clear(elim_quotient_t Q);
 void elim_get_quotient(elim_quotient_t Q, const elim_t E);
+/* The same, calling progress (stage NULL) every ELIM_POLL_WORK coefficient
+ * operations or so, so that a cancel is seen within milliseconds on large
+ * lattices.  Returns 1 (Q left empty) when progress asked to stop, else 0. */
+int elim_get_quotient_progress(elim_quotient_t Q, const elim_t E, const ns_progress_t *progress);
+#define ELIM_POLL_WORK (1L << 18)
 
 #endif

@@ -427,7 +427,10 @@ static ns_status step_quotient(step_struct *S, const ns_progress_t *prog, nserr_
 {
     if (progress_stage(prog, S->c + 1, "elimination", 0.9))
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
-    elim_get_quotient(S->q, S->L);
+    if (elim_get_quotient_progress(S->q, S->L, prog))
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+    if (progress_stage(prog, S->c + 1, "new presentation", 0.95))
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     for (slong s = 0; s < S->q->nsurv; s++) {
         NS_ASSERT(S->q->surv[s] >= S->last);
         if (S->q->surv[s] < S->last)
@@ -463,7 +466,14 @@ static ns_status step_extend(step_struct *S, nq_t Q, pcp_work_t W, nserr_t err)
         push_central(w, v, ns, n);
         pcp_set_power(R, i, P->relorder + i, w);
     }
-    for (slong k = 0; k < n; k++)
+    for (slong k = 0; k < n; k++) {
+        if (W->progress && ns_progress_report(W->progress, NULL, -1.0)) {
+            pcw_clear(w);
+            _fmpz_vec_clear(v, ns);
+            pcp_clear(R);
+            return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld",
+                             (long)(c + 1));
+        }
         for (slong i = 0; i < k; i++) {
             slong s = pcp_slot(k, i);
             if (P->weight[i] + P->weight[k] > c + 1)
@@ -475,6 +485,7 @@ static ns_status step_extend(step_struct *S, nq_t Q, pcp_work_t W, nserr_t err)
             }
             pcp_set_conj(R, k, i, w);
         }
+    }
     pcw_clear(w);
     memcpy(R->def, P->def, n * sizeof(pcp_def_struct));
     for (slong s = 0; s < ns; s++) {

@@ -746,6 +746,10 @@ int pcp_complete(pcp_t P, pcp_work_t W)
     fmpz *z = _fmpz_vec_init(n);
     fmpz *ak = _fmpz_vec_init(n);
     for (slong i = n - 1; i >= 0 && !W->overflow; i--) {
+        /* one poll per generator besides the step count: a single step can
+         * be long in a large presentation, and cancel must stay quick */
+        if (W->progress && ns_progress_report(W->progress, NULL, -1.0))
+            W->overflow = 1;
         if (!fmpz_is_zero(P->relorder + i)) {
             pcw_get_vec(y, n, P->pow + i);
             pcp_elt_inv(W, y, y);
@@ -764,10 +768,12 @@ int pcp_complete(pcp_t P, pcp_work_t W)
         /* a_k^(a_i^-1): the y with y^(a_i) = a_k; conjugation by a_i is the
          * identity modulo higher weight, so y <- y (y^(a_i))^-1 a_k gains a
          * weight each round. */
-        for (slong k = i + 1; k < P->ncore; k++) {
+        for (slong k = i + 1; k < P->ncore && !W->overflow; k++) {
             slong s = pcp_slot(k, i);
             if (P->trivial[s])
                 continue;
+            if (W->progress && ns_progress_report(W->progress, NULL, -1.0))
+                W->overflow = 1;
             _fmpz_vec_zero(ak, n);
             fmpz_one(ak + k);
             _fmpz_vec_set(y, ak, n);

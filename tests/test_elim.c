@@ -495,6 +495,63 @@ static void row_order_does_not_matter(void **state)
     }
 }
 
+
+static int stop_now(void *ctx, const char *stage, double fraction)
+{
+    (void)stage;
+    (void)fraction;
+    (*(int *)ctx)++;
+    return 1;
+}
+
+static int go_on(void *ctx, const char *stage, double fraction)
+{
+    (void)stage;
+    (void)fraction;
+    (*(int *)ctx)++;
+    return 0;
+}
+
+/* Issue 8: reading the quotient off a large lattice polls progress (Esc
+ * waited 0.79 s in the explorer), stops when asked and leaves Q empty; a
+ * hook that goes on gives the same quotient as none.  The lattice: 600
+ * columns, row i = e_i + e_(i+1) + ... + e_(i+5) for i < 400, so the last
+ * 200 columns survive and every other column is a sum of them. */
+static void quotient_polls_and_cancels(void **state)
+{
+    (void)state;
+    slong n = 600;
+    elim_t E;
+    elim_quotient_t Q, R;
+    elim_init(E, n);
+    elim_quotient_init(Q);
+    elim_quotient_init(R);
+    fmpz *row = _fmpz_vec_init(n);
+    for (slong i = 0; i < 400; i++) {
+        _fmpz_vec_zero(row, n);
+        for (slong k = i; k < i + 6 && k < n; k++)
+            fmpz_one(row + k);
+        elim_add_dense(E, row);
+    }
+    int calls = 0;
+    ns_progress_t stop = {stop_now, &calls};
+    assert_int_equal(elim_get_quotient_progress(Q, E, &stop), 1);
+    assert_int_equal(calls, 1);
+    assert_int_equal(Q->nsurv, 0);
+    calls = 0;
+    ns_progress_t on = {go_on, &calls};
+    assert_int_equal(elim_get_quotient_progress(Q, E, &on), 0);
+    assert_true(calls > 0);
+    elim_get_quotient(R, E);
+    assert_int_equal(Q->nsurv, 200);
+    assert_int_equal(R->nsurv, Q->nsurv);
+    assert_true(_fmpz_vec_equal(Q->expr, R->expr, n * Q->nsurv));
+    _fmpz_vec_clear(row, n);
+    elim_quotient_clear(Q);
+    elim_quotient_clear(R);
+    elim_clear(E);
+}
+
 /* Small cases worked by hand. */
 static void worked_examples(void **state)
 {
@@ -577,6 +634,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(worked_examples),
+        cmocka_unit_test(quotient_polls_and_cancels),
         cmocka_unit_test(quotient_matches_snf),
         cmocka_unit_test(pivots_match_hnf),
         cmocka_unit_test(expressions_kill_exactly_the_lattice),

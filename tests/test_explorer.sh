@@ -514,6 +514,39 @@ grep -q "^title *$long\$" "$tmp/slow.nilstep" || fail "the title lost letters: $
 keys q
 wait_for "EXIT=0"
 
+# ---------------------------------------------------------------------------
+# Issue 8: limits that always answer.
+
+# two Dehn twists per handle (b -> a b, then a -> b a): each keeps [a,b]
+twists="a1 -> b1 a1, b1 -> b1 a1 b1, a2 -> b2 a2, b2 -> b2 a2 b2, a3 -> b3 a3, b3 -> b3 a3 b3"
+current="a resize during a map analysis paints no half-built numbers"
+cat >"$tmp/twists.nilstep" <<END
+nilstep session 1
+title   Two Dehn twists per handle
+group   surface(3)
+class   5
+map     $twists
+END
+start 100 30 twists.nilstep
+if wait_for "analysing the map" 120; then
+    tmux -L "$sock" resize-window -t nilstep -x 110 -y 32
+    sleep 0.5
+    if screen | grep -q "j=0"; then
+        fail "half-built bounds painted after a resize"
+    fi
+    screen | grep -qE "Computing|analysing the map" || fail "the resized frame does not say what runs"
+fi
+keys Escape                        # the spectra of layer 5 take minutes
+wait_for "not analysed" 60
+screen | grep -q "j=0" && fail "half-built bounds painted after the cancel"
+keys q
+wait_for "EXIT=0"
+
+current="report shows its progress on a terminal during the spectra"
+start 100 30 report --time-limit 60 --group "surface(3)" --class 5 --map "$twists"
+wait_for "spectra: layer" 120
+wait_for "EXIT=3" 120
+
 if ((failures > 0)); then
     echo "$failures check(s) failed"
     exit 1

@@ -271,6 +271,25 @@ static double explorer_seconds_since(const struct timespec *t)
     return (double)(now.tv_sec - t->tv_sec) + 1e-9 * (double)(now.tv_nsec - t->tv_nsec);
 }
 
+/* A resize during a computation: the analysis being computed may be
+ * half-built (an in-place map analysis), so the frame shows only the
+ * header and what is running; the progress line follows. */
+static void explorer_draw_busy(explorer_progress *p)
+{
+    explorer_app *app = p->app;
+    erase();
+    if (explorer_too_small()) {
+        explorer_draw_too_small(app);
+    } else {
+        app_draw_header(app, "computing");
+        paint_textf(LINES / 2 - 1, 2, COLS - 4, ROLE_HEADING, "Computing: %s.", p->what);
+        paint_text(LINES / 2, 2, COLS - 4, ROLE_DIM,
+                   "The results appear when it is done; Esc cancels and keeps the previous "
+                   "ones.");
+    }
+    refresh();
+}
+
 /* Queues a key typed during a computation; the queue grows as needed. */
 static void explorer_typeahead_push(explorer_app *app, int key)
 {
@@ -307,7 +326,7 @@ static int explorer_progress_cb(void *ctx, const char *stage, double fraction)
         if (r == OK && ch == UIKEY_ESC)
             p->cancelled = 1;
         else if (r == KEY_CODE_YES && ch == KEY_RESIZE)
-            explorer_draw(app);
+            explorer_draw_busy(p); /* the analysis is half-built: do not paint it */
         else
             explorer_typeahead_push(app, r == KEY_CODE_YES ? UIKEY_FN((int)ch) : (int)ch);
     }
