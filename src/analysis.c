@@ -6,18 +6,6 @@
 #include "elim.h"
 #include "strbuf.h"
 
-/* Strings from spectrum.h still come from malloc: this is the one place
- * they enter the analysis, as flint_malloc copies (the engine's scheme,
- * strbuf.h).  NULL stays NULL. */
-static char *from_spectrum(char *s)
-{
-    if (!s)
-        return NULL;
-    char *t = strbuf_dup_str(s);
-    free(s);
-    return t;
-}
-
 static void free_strs(char **v, slong n)
 {
     if (!v)
@@ -347,7 +335,7 @@ static int layer_map_onto(const analysis_layer_struct *L)
 
 static char *arb_str(const arb_t x)
 {
-    char *s = from_spectrum(spectrum_ball_get_str(x, ANALYSIS_DIGITS));
+    char *s = spectrum_ball_get_str(x, ANALYSIS_DIGITS);
     return s ? s : strbuf_dup_str("(not certified)");
 }
 
@@ -390,21 +378,21 @@ static ns_status analyse_layers(analysis_t A, const ns_progress_t *progress, nse
         L->charpoly = _fmpz_vec_init(d + 1);
         for (slong k = 0; k <= d; k++)
             fmpz_poly_get_coeff_fmpz(L->charpoly + k, spectrum_charpoly(S), k);
-        L->charpoly_str = from_spectrum(spectrum_charpoly_get_str(S, SPECTRUM_STR_PLAIN));
-        L->charpoly_factored_str = from_spectrum(spectrum_factored_get_str(S, SPECTRUM_STR_PLAIN));
-        L->charpoly_latex = from_spectrum(spectrum_factored_get_str(S, SPECTRUM_STR_LATEX));
-        L->rho_str = from_spectrum(spectrum_radius_get_str(S, ANALYSIS_DIGITS));
-        L->rho_minpoly_str = from_spectrum(spectrum_radius_minpoly_get_str(S, SPECTRUM_STR_PLAIN));
-        L->root_bound_str = from_spectrum(spectrum_root_bound_get_str(S, (ulong)j, ANALYSIS_DIGITS));
-        L->entropy_str = from_spectrum(spectrum_entropy_get_str(S, ANALYSIS_DIGITS));
+        L->charpoly_str = spectrum_charpoly_get_str(S, SPECTRUM_STR_PLAIN);
+        L->charpoly_factored_str = spectrum_factored_get_str(S, SPECTRUM_STR_PLAIN);
+        L->charpoly_latex = spectrum_factored_get_str(S, SPECTRUM_STR_LATEX);
+        L->rho_str = spectrum_radius_get_str(S, ANALYSIS_DIGITS);
+        L->rho_minpoly_str = spectrum_radius_minpoly_get_str(S, SPECTRUM_STR_PLAIN);
+        L->root_bound_str = spectrum_root_bound_get_str(S, (ulong)j, ANALYSIS_DIGITS);
+        L->entropy_str = spectrum_entropy_get_str(S, ANALYSIS_DIGITS);
         fmpz_set(L->det, spectrum_det(S));
         fmpz_set(L->det_i_minus, spectrum_det_one_minus(S));
         L->nev = d;
         L->ev_str = flint_malloc(FLINT_MAX(d, 1) * sizeof(char *));
         L->ev_abs_str = flint_malloc(FLINT_MAX(d, 1) * sizeof(char *));
         for (slong k = 0; k < d; k++) {
-            L->ev_str[k] = from_spectrum(spectrum_eigenvalue_get_str(S, k, 16));
-            L->ev_abs_str[k] = from_spectrum(spectrum_eigenvalue_abs_get_str(S, k, 16));
+            L->ev_str[k] = spectrum_eigenvalue_get_str(S, k, 16);
+            L->ev_abs_str[k] = spectrum_eigenvalue_abs_get_str(S, k, 16);
         }
         L->n_unimodular = spectrum_count_on_one(S);
         L->n_above_one = spectrum_count_above_one(S);
