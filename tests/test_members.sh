@@ -36,13 +36,24 @@ fail() {
     echo "----------------"
     failures=$((failures + 1))
 }
+# wait_for TEXT: until the screen shows TEXT (30 s at most: the machine
+# may be loaded); wait_re does the same for an extended regular expression
 wait_for() {
     local i
-    for ((i = 0; i < 100; i++)); do
+    for ((i = 0; i < 300; i++)); do
         screen | grep -qF -- "$1" && return 0
         sleep 0.1
     done
     fail "timed out waiting for '$1'"
+    return 1
+}
+wait_re() {
+    local i
+    for ((i = 0; i < 300; i++)); do
+        screen | grep -qE -- "$1" && return 0
+        sleep 0.1
+    done
+    fail "timed out waiting for /$1/"
     return 1
 }
 keys() { tmux -L "$sock" send-keys -t m "$@"; }
@@ -67,7 +78,7 @@ first = min(l for r, l in rows if abs(r - best) < 1e-9)
 print(len(rows), "%.12f" % best, first)')
 
 tmux -L "$sock" new-session -d -s m -x 100 -y 30 \
-    "cd '$tmp' && XDG_STATE_HOME='$tmp/state' LANG=$lang NO_COLOR=1 '$NS' gl.jsonl; echo EXIT=\$?; sleep 30"
+    "cd '$tmp' && XDG_STATE_HOME='$tmp/state' LANG=$lang NO_COLOR=1 '$NS' gl.jsonl; echo EXIT=\$?; sleep 60"
 wait_for "gl.jsonl: 625 members, 625 shown (all), sorted by file order"
 wait_for "p=-2 q=-2 r=-2 s=-2"
 keys f f f f
@@ -107,10 +118,8 @@ tmux -L "$sock" kill-server >/dev/null 2>&1
 tmux -L "$sock" new-session -d -s m -x 100 -y 10 \
     "'$NS' scan --group 'free(2)' --class 4 --family 'a -> a^p b^q, b -> a^r b^s' \
      --range p=-4..4 --range q=-4..4 --range r=-4..4 --range s=-4..4 --jobs 1 \
-     --output '$tmp/prog.jsonl'; echo EXIT=\$?; sleep 30"
-wait_for "/6561  "
-screen | grep -qE 'nilstep scan: [0-9]+/6561  [0-9]+/s  [0-9]+ s left' ||
-    fail "progress line: done/total, rate and time left expected"
+     --output '$tmp/prog.jsonl'; echo EXIT=\$?; sleep 60"
+wait_re 'nilstep scan: [0-9]+/6561  [0-9]+/s  [0-9]+ s left'
 wait_for "EXIT=0"
 screen | grep -q 'nilstep scan: 6561 tried, 6561 valid, 6561 kept' || fail "closing summary line"
 screen | grep -q '/6561  ' && fail "the progress line was not erased"

@@ -162,7 +162,7 @@ BIG=(--group "$F2" --class 4 --family "$F2FAM" --range p=-3..3 --range q=-3..3
 "$NS" scan "${BIG[@]}" --jobs 1 --output "$tmp/whole.jsonl" 2>/dev/null
 "$NS" scan "${BIG[@]}" --jobs 2 --output "$tmp/killed.jsonl" 2>/dev/null &
 bg=$!
-for _ in $(seq 1 400); do
+for _ in $(seq 1 1000); do
     [[ -f $tmp/killed.jsonl ]] && (( $(wc -l <"$tmp/killed.jsonl") >= 300 )) && break
     sleep 0.01
 done
@@ -182,10 +182,11 @@ grep -q ' 0 tried' "$tmp/err" && ok || fail "resuming a finished scan redid memb
 
 # SIGTERM (what a batch system sends first) stops cleanly: exit 3, whole
 # lines, and resuming gives the unkilled output
-"$NS" scan "${BIG[@]}" --jobs 2 --output "$tmp/term.jsonl" 2>"$tmp/term.err" &
+# (one thread: slow enough that the signal comes before the end)
+"$NS" scan "${BIG[@]}" --jobs 1 --output "$tmp/term.jsonl" 2>"$tmp/term.err" &
 bg=$!
-for _ in $(seq 1 400); do
-    [[ -f $tmp/term.jsonl ]] && (( $(wc -l <"$tmp/term.jsonl") >= 200 )) && break
+for _ in $(seq 1 1000); do
+    [[ -f $tmp/term.jsonl ]] && (( $(wc -l <"$tmp/term.jsonl") >= 100 )) && break
     sleep 0.01
 done
 kill -TERM $bg
