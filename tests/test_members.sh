@@ -22,8 +22,9 @@ fi
 NS=$NILSTEP_BINARY
 PY=/usr/bin/python3
 sock="nilstep-members-$$"
+base_sock=$sock
 tmp=$(mktemp -d "${TMPDIR:-/tmp}/nilstep-members.XXXXXX")
-trap 'tmux -L "$sock" kill-server >/dev/null 2>&1; sleep 0.3; rm -rf "$tmp"' EXIT
+trap 'tmux -L "$base_sock" kill-server >/dev/null 2>&1; tmux -L "$base_sock-progress" kill-server >/dev/null 2>&1; sleep 0.3; rm -rf "$tmp"' EXIT
 lang=C
 locale -a 2>/dev/null | grep -qiE '^c\.utf-?8$' && lang=C.UTF-8
 
@@ -114,7 +115,10 @@ wait_for "EXIT=0"
 
 # the progress line of `nilstep scan` when stderr is a terminal: done/total,
 # rate, time left; it is erased before the closing summary
+# A fresh server: a new session right after kill-server can race the old
+# server's exit ("server exited unexpectedly").
 tmux -L "$sock" kill-server >/dev/null 2>&1
+sock="$base_sock-progress"
 tmux -L "$sock" new-session -d -s m -x 100 -y 10 \
     "'$NS' scan --group 'free(2)' --class 4 --family 'a -> a^p b^q, b -> a^r b^s' \
      --range p=-4..4 --range q=-4..4 --range r=-4..4 --range s=-4..4 --jobs 1 \
