@@ -88,6 +88,8 @@ static void push_central(pcw_t w, const fmpz *v, slong ns, slong base)
 /* The reduced expression of tail column t in the survivors. */
 static void tail_value(fmpz *v, const elim_quotient_t q, slong t)
 {
+    if (q->nsurv == 0)
+        return; /* nothing survives (q->expr may be NULL) */
     _fmpz_vec_set(v, q->expr + t * q->nsurv, q->nsurv);
     reduce_central(v, q);
 }
