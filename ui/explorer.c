@@ -19,6 +19,7 @@
 #include "app.h"
 #include "defaults.h"
 #include "paint.h"
+#include "memlimit.h"
 #include "recovery.h"
 
 #define EXPLORER_MIN_COLS  80
@@ -1005,6 +1006,17 @@ static void explorer_app_clear(explorer_app *app)
     free(app->retry_group);
 }
 
+/* The running explorer, for the out-of-memory path only (memlimit.h): it
+ * keeps the unsaved work and gives the terminal back before exit 3. */
+static explorer_app *explorer_oom_app;
+
+static void explorer_on_out_of_memory(void)
+{
+    if (explorer_oom_app)
+        explorer_write_recovery(explorer_oom_app);
+    explorer_term_stop();
+}
+
 int explorer_run(const char *path)
 {
     setlocale(LC_ALL, "");
@@ -1067,7 +1079,11 @@ int explorer_run(const char *path)
         app_status(&app, 0, "scan results: Enter makes a member the current map");
     }
     explorer_check_leftovers(&app);
+    explorer_oom_app = &app;
+    memlimit_set_emergency(explorer_on_out_of_memory);
     explorer_loop(&app);
+    memlimit_set_emergency(NULL);
+    explorer_oom_app = NULL;
     int sig = explorer_term_signal;
     if (sig) {
         /* killed or hung up: keep the unsaved work, then die of the signal */

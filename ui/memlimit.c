@@ -61,7 +61,7 @@ static void memlimit_die(size_t request, int ours)
     if (ours) {
         snprintf(msg, sizeof msg,
                  "nilstep: out of memory: %zu more bytes would exceed %s of %zu MiB "
-                 "(%zu MiB in use; --max-memory SIZE sets it)\n",
+                 "(%zu MiB in use)\n",
                  request, memlimit_name, lim >> 20, memlimit_used >> 20);
     } else {
         struct rlimit rl;
@@ -73,11 +73,13 @@ static void memlimit_die(size_t request, int ours)
                  "(%zu MiB in use; address-space limit, ulimit -v: %s)\n",
                  request, memlimit_used >> 20, as);
     }
+    /* the emergency first: the explorer gives the terminal back, so that
+     * the message stays readable */
+    if (memlimit_emergency)
+        memlimit_emergency();
     if (write(STDERR_FILENO, msg, strlen(msg)) < 0) {
         /* nothing more to do */
     }
-    if (memlimit_emergency)
-        memlimit_emergency();
     _exit(3);
 }
 
