@@ -177,15 +177,41 @@ static char *group_string(slong r, const fmpz *tors, slong nt)
     return strbuf_take(b);
 }
 
+static ns_status finish_group(analysis_t A, slong c, ns_status st, const ns_progress_t *progress,
+                              nserr_t err);
+
 ns_status analysis_set_group(analysis_t A, const pres_t G, slong c, const ns_progress_t *progress,
                              nserr_t err)
 {
     clear_group(A);
-    ns_status st = nq_compute(A->nq, G, c, progress, err);
-    if (st != NS_OK)
+    ns_status st = nq_compute_max(A->nq, G, c, A->max_pc ? A->max_pc : NQ_DEFAULT_MAX_PC,
+                                  progress, err);
+    return finish_group(A, c, st, progress, err);
+}
+
+ns_status analysis_set_group_from(analysis_t A, const analysis_t from, slong c,
+                                  const ns_progress_t *progress, nserr_t err)
+{
+    clear_group(A);
+    ns_status st = nq_set_class(A->nq, from->nq, c, A->max_pc ? A->max_pc : NQ_DEFAULT_MAX_PC,
+                                progress, err);
+    return finish_group(A, c, st, progress, err);
+}
+
+/* The group stage after the quotient: the layers as shown, and the torsion.
+ * A quotient cut short by the pc-generator limit is analysed at the class
+ * it reached, and the limit error is returned after that. */
+static ns_status finish_group(analysis_t A, slong c, ns_status st, const ns_progress_t *progress,
+                              nserr_t err)
+{
+    if (st != NS_OK && !(st == NS_ERR_LIMIT && A->nq->class_reached > 0 &&
+                         A->nq->class_reached < c))
         return st;
     if (ns_progress_report(progress, "layers", -1.0))
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+    ns_status limit = st;
+    if (st == NS_ERR_LIMIT)
+        c = A->nq->class_reached;
     A->has_group = 1;
     A->class_requested = c;
     A->nlayers = c;
@@ -226,7 +252,7 @@ ns_status analysis_set_group(analysis_t A, const pres_t G, slong c, const ns_pro
             return st;
         }
     }
-    return NS_OK;
+    return limit;
 }
 
 void analysis_share_group(analysis_t A, const analysis_t src)

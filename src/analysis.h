@@ -132,6 +132,9 @@ typedef struct {
     int limit_hit;               /* a named counting limit stopped R or the
                                     fixed points; limit->msg names it */
     nserr_t limit;
+    slong max_pc;                /* the pc-generator limit of analysis_set_group
+                                    (0: NQ_DEFAULT_MAX_PC); kept by the clears
+                                    of the group and the map */
 } analysis_struct;
 typedef analysis_struct analysis_t[1];
 
@@ -139,9 +142,19 @@ void analysis_init(analysis_t A);
 void analysis_clear(analysis_t A);
 
 /* Runs the nilpotent quotient of G to class c and reads the layers; drops
- * any map.  On error (limit, cancel) A is left without a group. */
+ * any map.  On error (cancel, bad input) A is left without a group.  The
+ * pc-generator limit is A->max_pc (0: NQ_DEFAULT_MAX_PC; set it before):
+ * a class that would exceed it is not started (nq.h), and A then holds the
+ * quotient of the class reached (A->nlayers < c) and NS_ERR_LIMIT is
+ * returned with err saying which class was refused. */
 ns_status analysis_set_group(analysis_t A, const pres_t G, slong c, const ns_progress_t *progress,
                              nserr_t err);
+
+/* The same for the group of from at class c, without starting again: a
+ * lower class is a prefix of from's quotient (instant), a higher one
+ * extends it (nq_set_class).  from is only read. */
+ns_status analysis_set_group_from(analysis_t A, const analysis_t from, slong c,
+                                  const ns_progress_t *progress, nserr_t err);
 
 /* Makes A use the group stage of src without copying or recomputing it:
  * the quotient and the layers' groups and coordinates are borrowed

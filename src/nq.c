@@ -6,11 +6,8 @@
 #include "nq.h"
 #include "strbuf.h"
 
-/* Limits that keep a run inside time and memory.  Measured on the free
- * group of rank 2: the step to class 12 (from 412 pc generators) takes about
- * 30 s and 55 MB, the step to class 13 (from 747) over 5 minutes and 3 GB,
- * so a step from more than 700 generators is refused with NS_ERR_LIMIT. */
-#define NQ_MAX_PCGENS 700
+/* The number of tails is the other resource limit (the pc generators are
+ * limited by the caller, NQ_DEFAULT_MAX_PC in nq.h). */
 #define NQ_MAX_TAILS 60000
 
 typedef enum { TAIL_POW, TAIL_IMG, TAIL_CONJ } tail_kind;
@@ -524,13 +521,7 @@ static ns_status step_extend(step_struct *S, nq_t Q, pcp_work_t W, nserr_t err)
 static ns_status step(nq_t Q, slong c, pcp_work_t W, const ns_progress_t *prog, slong *grew,
                       nserr_t err)
 {
-    slong n = Q->pcp->n;
     *grew = 0;
-    if (n > NQ_MAX_PCGENS)
-        return nserr_set(err, NS_ERR_LIMIT, 0, 0,
-                         "class %ld would extend a presentation on %ld pc generators "
-                         "(limit %d)",
-                         (long)(c + 1), (long)n, NQ_MAX_PCGENS);
     if (progress_stage(prog, c + 1, "tails", 0.0))
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     step_struct S;
@@ -594,27 +585,38 @@ static void compute_layers(nq_t Q)
     }
 }
 
-ns_status nq_compute(nq_t Q, const pres_t G, slong c, const ns_progress_t *progress,
-                     nserr_t err)
+/* At most how many pc generators the class-(c+1) quotient can have: the
+ * new layer is spanned by the commutator tails [a_k, a_i] with a_k in layer
+ * c and a_i in layer 1 (nq.h), so it has at most (pc generators of layer c)
+ * x (pc generators of layer 1) of them. */
+static slong predicted_pcgens(const pcp_struct *P, slong c)
 {
-    nq_clear(Q);
-    if (c < 1 || c > NQ_MAX_CLASS)
-        return nserr_set(err, NS_ERR_INPUT, 0, 0, "the class must be between 1 and %d",
-                         NQ_MAX_CLASS);
-    pres_set(Q->pres, G);
-    Q->class_requested = c;
+    slong n1 = 0, nc = 0;
+    for (slong k = 0; k < P->n; k++) {
+        n1 += P->weight[k] == 1;
+        nc += P->weight[k] == c;
+    }
+    return P->n + n1 * nc;
+}
+
+/* Steps from Q's class to class c, refusing before a step whose predicted
+ * size exceeds max_pc.  Q stays a complete quotient of the class reached. */
+static ns_status run_steps(nq_t Q, slong c, slong max_pc, const ns_progress_t *progress,
+                           nserr_t err)
+{
     pcp_work_t W;
     pcp_work_init(W, Q->pcp);
     W->progress = progress;
     ns_status st = NS_OK;
-    if (progress_stage(progress, 1, "abelianisation", 0.0))
-        st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
-    else {
-        class_one(Q, W, err);
-        Q->class_reached = Q->pcp->n ? 1 : 0;
-        Q->stabilised = Q->pcp->n == 0;
-    }
-    for (slong k = 1; st == NS_OK && k < c && !Q->stabilised; k++) {
+    for (slong k = Q->class_reached; k < c && !Q->stabilised; k++) {
+        slong want = predicted_pcgens(Q->pcp, k);
+        if (max_pc > 0 && want > max_pc) {
+            st = nserr_set(err, NS_ERR_LIMIT, 0, 0,
+                           "class %ld may need up to %ld pc generators (limit %ld); "
+                           "reached class %ld",
+                           (long)(k + 1), (long)want, (long)max_pc, (long)k);
+            break;
+        }
         slong grew;
         st = step(Q, k, W, progress, &grew, err);
         if (st != NS_OK)
@@ -625,12 +627,68 @@ ns_status nq_compute(nq_t Q, const pres_t G, slong c, const ns_progress_t *progr
             Q->class_reached = k + 1;
     }
     pcp_work_clear(W);
-    if (st != NS_OK) {
+    return st;
+}
+
+ns_status nq_compute_max(nq_t Q, const pres_t G, slong c, slong max_pc,
+                         const ns_progress_t *progress, nserr_t err)
+{
+    nq_clear(Q);
+    if (c < 1 || c > NQ_MAX_CLASS)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "the class must be between 1 and %d",
+                         NQ_MAX_CLASS);
+    pres_set(Q->pres, G);
+    Q->class_requested = c;
+    if (progress_stage(progress, 1, "abelianisation", 0.0)) {
+        nq_clear(Q);
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+    }
+    pcp_work_t W;
+    pcp_work_init(W, Q->pcp);
+    class_one(Q, W, err);
+    pcp_work_clear(W);
+    Q->class_reached = Q->pcp->n ? 1 : 0;
+    Q->stabilised = Q->pcp->n == 0;
+    ns_status st = run_steps(Q, c, max_pc, progress, err);
+    if (st != NS_OK && !(st == NS_ERR_LIMIT && Q->class_reached > 0)) {
         nq_clear(Q);
         return st;
     }
     compute_layers(Q);
-    return NS_OK;
+    return st;
+}
+
+ns_status nq_compute(nq_t Q, const pres_t G, slong c, const ns_progress_t *progress,
+                     nserr_t err)
+{
+    return nq_compute_max(Q, G, c, NQ_DEFAULT_MAX_PC, progress, err);
+}
+
+ns_status nq_set_class(nq_t Q, const nq_t from, slong c, slong max_pc,
+                       const ns_progress_t *progress, nserr_t err)
+{
+    nq_clear(Q);
+    if (c < 1 || c > NQ_MAX_CLASS)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "the class must be between 1 and %d",
+                         NQ_MAX_CLASS);
+    pres_set(Q->pres, from->pres);
+    Q->class_requested = c;
+    slong keep = FLINT_MIN(c, from->class_reached);
+    pcp_set_prefix(Q->pcp, from->pcp, from->pcp->n ? keep : from->pcp->maxweight);
+    slong X = Q->pres->gens->n, m = Q->pcp->n, n0 = from->pcp->n;
+    Q->images = _fmpz_vec_init(FLINT_MAX(X * m, 1));
+    for (slong x = 0; x < X; x++)
+        _fmpz_vec_set(Q->images + x * m, from->images + x * n0, m);
+    Q->class_reached = keep;
+    /* as nq_compute: known stabilised when a step up to class c gave nothing */
+    Q->stabilised = from->stabilised && from->class_reached < c;
+    ns_status st = run_steps(Q, c, max_pc, progress, err);
+    if (st != NS_OK && !(st == NS_ERR_LIMIT && Q->class_reached > 0)) {
+        nq_clear(Q);
+        return st;
+    }
+    compute_layers(Q);
+    return st;
 }
 
 ns_status nq_eval(const nq_t Q, fmpz *out, const expr_t w, const ns_progress_t *progress,

@@ -54,10 +54,31 @@ void nq_clear(nq_t Q);
 /* Computes the class-c quotient of G (1 <= c <= NQ_MAX_CLASS).  progress may
  * be NULL; it is told each stage and polled during collection, and a
  * nonzero answer stops with NS_ERR_CANCELLED.  On error Q is left empty
- * (as after nq_init) and err says why. */
+ * (as after nq_init) and err says why.
+ *
+ * The pc-generator limit is decided before the work: a step whose new
+ * layer can have more generators than max_pc allows (at most (layer c) x
+ * (layer 1) of them, nq.c) is not started; then the result is
+ * NS_ERR_LIMIT with Q the complete quotient of the class reached
+ * (Q->class_reached < c, layers computed), unless that is class 0.
+ * max_pc <= 0 means no limit.  nq_compute uses NQ_DEFAULT_MAX_PC: the free
+ * group of rank 2 reaches class 13 (1377 generators), rank 3 class 8,
+ * rank 4 class 6, the genus-2 surface group class 7. */
 #define NQ_MAX_CLASS 64
+#define NQ_DEFAULT_MAX_PC 2000
 ns_status nq_compute(nq_t Q, const pres_t G, slong c, const ns_progress_t *progress,
                      nserr_t err);
+ns_status nq_compute_max(nq_t Q, const pres_t G, slong c, slong max_pc,
+                         const ns_progress_t *progress, nserr_t err);
+
+/* Q := the class-c quotient of the group of from, without starting again:
+ * for c <= from->class_reached it is a prefix of from (the relations cut to
+ * the generators of weight <= c; no collection, instant), otherwise from is
+ * copied and extended one class at a time.  The result is the one
+ * nq_compute_max gives (test_nq checks it), with the same errors and the
+ * same partial result on NS_ERR_LIMIT.  from is only read; Q != from. */
+ns_status nq_set_class(nq_t Q, const nq_t from, slong c, slong max_pc,
+                       const ns_progress_t *progress, nserr_t err);
 
 /* Evaluates a word in the input generators in the quotient; out has
  * Q->pcp->n entries.  Returns NS_OK, or NS_ERR_CANCELLED when progress

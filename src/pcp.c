@@ -187,6 +187,49 @@ void pcp_reset(pcp_t P, slong n, const slong *weight, slong maxweight)
     }
 }
 
+/* dst := the part of w on generators below m. */
+static void pcw_set_prefix(pcw_t dst, const pcw_struct *w, slong m)
+{
+    pcw_zero(dst);
+    for (slong t = 0; t < w->len && w->gen[t] < m; t++)
+        pcw_push(dst, w->gen[t], w->exp + t);
+}
+
+void pcp_set_prefix(pcp_t P, const pcp_t src, slong maxweight)
+{
+    slong m = 0;
+    while (m < src->n && src->weight[m] <= maxweight)
+        m++;
+    pcp_reset(P, m, src->weight, maxweight);
+    P->torsion_free = 1;
+    for (slong i = 0; i < m; i++) {
+        fmpz_set(P->relorder + i, src->relorder + i);
+        P->def[i] = src->def[i];
+        if (fmpz_is_zero(src->relorder + i))
+            continue;
+        P->torsion_free = 0;
+        pcw_set_prefix(P->pow + i, src->pow + i, m);
+        pcw_set_prefix(P->powinv + i, src->powinv + i, m);
+    }
+    /* pairs that commute in src commute here; a pair whose words reduce to
+     * a_k commutes modulo the dropped generators */
+    for (slong k = 1; k < P->ncore; k++)
+        for (slong i = 0; i < k; i++) {
+            slong s = pcp_slot(k, i);
+            if (k >= src->ncore || src->trivial[s])
+                continue;
+            pcw_set_prefix(P->conj + s, src->conj + s, m);
+            if (pcw_is_gen(P->conj + s, k)) {
+                pcw_zero(P->conj + s);
+                continue;
+            }
+            P->trivial[s] = 0;
+            pcw_set_prefix(P->conjinv + s, src->conjinv + s, m);
+            pcw_set_prefix(P->conjm + s, src->conjm + s, m);
+            pcw_set_prefix(P->conjminv + s, src->conjminv + s, m);
+        }
+}
+
 void pcp_set_conj(pcp_t P, slong k, slong i, const pcw_t w)
 {
     if (pcw_is_gen(w, k))

@@ -91,6 +91,12 @@ void pcp_swap(pcp_t a, pcp_t b);
  * definitions NONE.  Callers then set relorder, pow and conj through the
  * setters below and finish with pcp_complete. */
 void pcp_reset(pcp_t P, slong n, const slong *weight, slong maxweight);
+/* P := the quotient of the complete presentation src by the generators of
+ * weight > maxweight (<= src->maxweight): its first generators, every
+ * relation and every derived table cut to them.  Cutting is a homomorphism,
+ * so no collection is needed; with maxweight = src->maxweight it copies. */
+void pcp_set_prefix(pcp_t P, const pcp_t src, slong maxweight);
+
 /* Sets a_k^(a_i) = w (i < k).  Only pairs with k < ncore may be nontrivial. */
 void pcp_set_conj(pcp_t P, slong k, slong i, const pcw_t w);
 /* Sets m_i = m (> 0) and a_i^m = w. */

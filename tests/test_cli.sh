@@ -492,6 +492,23 @@ expect_usage "not a regular file" "a directory as FILE" report "$tmp"
 # quotient whose new layer is trivial; under `make asan` a report halts.
 expect_status 0 "<a | a^2> at class 2" report --group '<a | a^2>' --class 2
 
+# The pc-generator limit is decided before the work: free(2) has 23 pc
+# generators up to class 6 (Witt 1937: ranks 2, 1, 2, 3, 6, 9) and class 7
+# can add at most 9 x 2, so --max-pc 30 refuses class 7 at once and reports
+# classes 1 to 6 with exit status 3.
+run report --max-pc 30 --group '<a, b>' --class 9
+if [[ $rc != 3 ]]; then
+    fail "--max-pc 30: exit status $rc, expected 3 (stderr: ${err:0:300})"
+elif [[ $err != *"class 7 may need up to 41 pc generators (limit 30)"* ]]; then
+    fail "--max-pc 30: stderr '${err:0:300}' does not name the refused class"
+elif [[ $out != *"class         6"* || $out != *"pc generators 23"* ]]; then
+    fail "--max-pc 30: the report does not cover classes 1 to 6: ${out:0:300}"
+else
+    ok
+fi
+expect_usage "--max-pc takes" "bad --max-pc" report --max-pc 0 --group '<a>' --class 1
+expect_status 0 "a class under --max-pc" report --max-pc 23 --group '<a, b>' --class 5
+
 # Memory: over --max-memory is exit 3 with a message on stderr naming the
 # limit, never an abort; bad sizes are usage errors.
 big="$tmp/big.nilstep"

@@ -876,9 +876,148 @@ static void recompute_replaces_result(void **state)
     nq_clear(Q); /* clearing twice is harmless */
 }
 
+/* ------------------------------------------- prefixes and extensions */
+
+static void expect_same_word(const pcw_struct *a, const pcw_struct *b, const char *what, slong k,
+                             slong i)
+{
+    int same = a->len == b->len;
+    for (slong t = 0; same && t < a->len; t++)
+        same = a->gen[t] == b->gen[t] && fmpz_equal(a->exp + t, b->exp + t);
+    if (!same)
+        fail_msg("%s (%ld, %ld) differs", what, (long)k, (long)i);
+}
+
+/* Two quotients are the same presentation: generators, weights, relative
+ * orders, every relation and derived table, definitions, labels, images
+ * and layers. */
+static void expect_same_quotient(const nq_t A, const nq_t B)
+{
+    const pcp_struct *P = A->pcp, *R = B->pcp;
+    assert_int_equal(A->class_reached, B->class_reached);
+    assert_int_equal(A->stabilised, B->stabilised);
+    assert_int_equal(P->n, R->n);
+    if (P->maxweight != R->maxweight)
+        fail_msg("maxweight %ld != %ld (n %ld, reached %ld)", (long)P->maxweight, (long)R->maxweight, (long)P->n, (long)A->class_reached);
+    assert_int_equal(P->ncore, R->ncore);
+    assert_int_equal(P->torsion_free, R->torsion_free);
+    for (slong k = 0; k < P->n; k++) {
+        assert_int_equal(P->weight[k], R->weight[k]);
+        assert_true(fmpz_equal(P->relorder + k, R->relorder + k));
+        assert_int_equal(P->def[k].kind, R->def[k].kind);
+        assert_int_equal(P->def[k].a, R->def[k].a);
+        assert_int_equal(P->def[k].b, R->def[k].b);
+        assert_int_equal(P->commute_from[k], R->commute_from[k]);
+        assert_string_equal(A->labels[k], B->labels[k]);
+        expect_same_word(P->pow + k, R->pow + k, "power", k, k);
+        expect_same_word(P->powinv + k, R->powinv + k, "inverse power", k, k);
+    }
+    for (slong k = 1; k < P->ncore; k++)
+        for (slong i = 0; i < k; i++) {
+            slong s = pcp_slot(k, i);
+            assert_int_equal(P->trivial[s], R->trivial[s]);
+            if (P->trivial[s])
+                continue;
+            expect_same_word(P->conj + s, R->conj + s, "conjugate", k, i);
+            expect_same_word(P->conjinv + s, R->conjinv + s, "inverse conjugate", k, i);
+            expect_same_word(P->conjm + s, R->conjm + s, "conjugate by inverse", k, i);
+            expect_same_word(P->conjminv + s, R->conjminv + s, "its inverse", k, i);
+        }
+    assert_true(_fmpz_vec_equal(A->images, B->images, A->pres->gens->n * P->n));
+    assert_int_equal(A->hirsch_length, B->hirsch_length);
+    assert_int_equal(A->nlayers, B->nlayers);
+    for (slong j = 0; j < A->nlayers; j++) {
+        assert_int_equal(A->layers[j].free_rank, B->layers[j].free_rank);
+        assert_int_equal(A->layers[j].ntors, B->layers[j].ntors);
+    }
+}
+
+/* nq.h: nq_set_class gives what nq_compute gives, lowering (a prefix, no
+ * collection) and raising (extending the quotient it has); checked on free,
+ * one-relator, torsion and stabilising groups. */
+static void set_class_is_compute(void **state)
+{
+    (void)state;
+    static const struct {
+        const char *text;
+        slong lo, hi;
+    } cases[] = {
+        {"<a, b>", 3, 6},
+        {"<a1, b1, a2, b2 | [a1,b1] [a2,b2]>", 2, 4},
+        {"<a, b | a^4, b^4>", 3, 6},
+        {"<a, b | a^2 b^4>", 2, 5},
+        {"<a, b | a^8, a^4 = b^2, b^-1 a b = a^-1>", 2, 6}, /* Q16: stabilises at 4 */
+        {"<a, b | [a,b]>", 1, 3},                            /* abelian: stabilises at 1 */
+        {"<a | a>", 1, 2},                                   /* trivial */
+    };
+    for (size_t t = 0; t < sizeof cases / sizeof cases[0]; t++) {
+        nq_t lo, hi, got;
+        nq_init(lo);
+        nq_init(hi);
+        nq_init(got);
+        compute_quotient(lo, cases[t].text, cases[t].lo);
+        compute_quotient(hi, cases[t].text, cases[t].hi);
+        nserr_t err;
+        nserr_init(err);
+        /* raising: lo extended to hi's class */
+        assert_int_equal(nq_set_class(got, lo, cases[t].hi, 0, NULL, err), NS_OK);
+        expect_same_quotient(got, hi);
+        /* lowering: the prefix of hi at lo's class and at every class */
+        for (slong c = 1; c <= cases[t].hi; c++) {
+            nq_t want;
+            nq_init(want);
+            compute_quotient(want, cases[t].text, c);
+            assert_int_equal(nq_set_class(got, hi, c, 0, NULL, err), NS_OK);
+            expect_same_quotient(got, want);
+            nq_clear(want);
+        }
+        nserr_clear(err);
+        nq_clear(lo);
+        nq_clear(hi);
+        nq_clear(got);
+    }
+}
+
+/* nq.h: a step that may exceed the limit is not started; the classes
+ * below it come back complete with NS_ERR_LIMIT.  free(2) has 2, 3, 5, 8,
+ * 14, 23 pc generators up to classes 1..6 (Witt 1937: 2, 1, 2, 3, 6, 9),
+ * and the bound before class 6 is 14 + 2 * 6 = 26. */
+static void limit_refuses_before_the_work(void **state)
+{
+    (void)state;
+    pres_t p;
+    pres_init(p);
+    parse_pres_or_fail(p, "<a, b>");
+    nserr_t err;
+    nserr_init(err);
+    nq_t Q;
+    nq_init(Q);
+    assert_int_equal(nq_compute_max(Q, p, 8, 25, NULL, err), NS_ERR_LIMIT);
+    assert_int_equal(Q->class_reached, 5);
+    assert_int_equal(Q->pcp->n, 14);
+    assert_int_equal(Q->nlayers, 5);
+    assert_non_null(strstr(err->msg, "class 6"));
+    assert_int_equal(nq_compute_max(Q, p, 8, 26, NULL, err), NS_ERR_LIMIT);
+    assert_int_equal(Q->class_reached, 6);
+    assert_int_equal(Q->pcp->n, 23);
+    assert_int_equal(nq_compute_max(Q, p, 6, 26, NULL, err), NS_OK);
+    assert_int_equal(Q->class_reached, 6);
+    /* extending runs into the same limit */
+    nq_t R;
+    nq_init(R);
+    assert_int_equal(nq_set_class(R, Q, 8, 30, NULL, err), NS_ERR_LIMIT);
+    assert_int_equal(R->class_reached, 6);
+    nq_clear(R);
+    nq_clear(Q);
+    nserr_clear(err);
+    pres_clear(p);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
+        cmocka_unit_test(set_class_is_compute),
+        cmocka_unit_test(limit_refuses_before_the_work),
         cmocka_unit_test(formulas_match_known_values),
         cmocka_unit_test(witt_free_rank2_class10),
         cmocka_unit_test(witt_free_rank3_class6),

@@ -43,6 +43,9 @@ void cli_print_help(FILE *out)
           "    --time-limit S    stop after S seconds (exit 3, naming the stage)\n"
           "    --max-memory SIZE stop when FLINT and GMP would hold more than SIZE\n"
           "                      (e.g. 512M, 4G; default: half the physical memory)\n"
+          "    --max-pc N        refuse a class whose quotient may need more than N\n"
+          "                      pc generators (default 2000): the lower classes are\n"
+          "                      reported, with exit status 3\n"
           "  scan                many maps of one group: a family with integer\n"
           "                      parameters, or JSON Lines on standard input, written\n"
           "                      as JSON Lines (nilstep scan --help)\n"
@@ -201,7 +204,7 @@ static int derived_map(analysis_t A, const char *power, const char *then,
 /* What `nilstep report` was asked, as given (values unparsed). */
 typedef struct {
     const char *format, *file, *group, *cls, *map, *power, *then;
-    const char *time_limit, *max_memory;
+    const char *time_limit, *max_memory, *max_pc;
     int inverse;
 } cli_options;
 
@@ -223,6 +226,7 @@ static int cli_parse_args(cli_options *o, int argc, char **argv)
         {"--then", offsetof(cli_options, then)},
         {"--time-limit", offsetof(cli_options, time_limit)},
         {"--max-memory", offsetof(cli_options, max_memory)},
+        {"--max-pc", offsetof(cli_options, max_pc)},
     };
     char msg[300];
     memset(o, 0, sizeof *o);
@@ -273,6 +277,12 @@ static int cli_parse_args(cli_options *o, int argc, char **argv)
         double t = strtod(o->time_limit, &end);
         if (*o->time_limit == '\0' || *end != '\0' || !(t > 0) || t > 1e9)
             return usage("--time-limit takes a positive number of seconds");
+    }
+    if (o->max_pc) {
+        char *end;
+        long m = strtol(o->max_pc, &end, 10);
+        if (*o->max_pc == '\0' || *end != '\0' || m < 1 || m > 1000000)
+            return usage("--max-pc takes a whole number of pc generators from 1 to 1000000");
     }
     if (o->max_memory) {
         size_t m;
@@ -348,8 +358,15 @@ static int cli_run(const cli_options *o)
     }
     char doing[64];
     snprintf(doing, sizeof doing, "computing the class-%ld quotient", c);
+    if (o->max_pc)
+        A->max_pc = strtol(o->max_pc, NULL, 10);
     ns_status st = analysis_set_group(A, G, (slong)c, pp, err);
-    if (st != NS_OK) {
+    int cut_short = 0; /* the pc-generator limit stopped below class c */
+    if (st == NS_ERR_LIMIT && A->has_group) {
+        progress_erase(&ps);
+        fprintf(stderr, "nilstep report: %s (--max-pc raises the limit)\n", err->msg);
+        cut_short = 1;
+    } else if (st != NS_OK) {
         status = stage_error(&ps, err, where_group, doing);
         goto done;
     }
@@ -389,6 +406,8 @@ static int cli_run(const cli_options *o)
     flint_free(out);
     if (A->has_map && !A->valid)
         status = 1;
+    else if (cut_short)
+        status = 3;
     else if (A->has_map && A->limit_hit) {
         /* the report is written, but a named counting limit left a number out */
         fprintf(stderr, "nilstep report: %s\n", A->limit->msg);

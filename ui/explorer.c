@@ -475,8 +475,21 @@ static void explorer_analysis_free(analysis_struct *A)
 
 /* Computes the class-cls quotient of G into a new analysis; NULL (and err
  * set) on failure or cancel, so the caller can keep what it had. */
+static analysis_struct *explorer_compute_group_from(explorer_app *app, const pres_t G,
+                                                    slong cls, const analysis_struct *from,
+                                                    nserr_t err);
+
 static analysis_struct *explorer_compute_group(explorer_app *app, const pres_t G, slong cls,
                                                nserr_t err)
+{
+    return explorer_compute_group_from(app, G, cls, NULL, err);
+}
+
+/* The same; with from (an analysis of the same presentation) a lower class
+ * is its prefix and a higher one extends it instead of starting again. */
+static analysis_struct *explorer_compute_group_from(explorer_app *app, const pres_t G,
+                                                    slong cls, const analysis_struct *from,
+                                                    nserr_t err)
 {
     char what[64];
     snprintf(what, sizeof what, "class-%ld quotient", (long)cls);
@@ -484,7 +497,8 @@ static analysis_struct *explorer_compute_group(explorer_app *app, const pres_t G
     ns_progress_t hook;
     explorer_progress_begin(&pr, &hook, app, what);
     analysis_struct *B = explorer_analysis_new();
-    ns_status st = analysis_set_group(B, G, cls, &hook, err);
+    ns_status st = from ? analysis_set_group_from(B, from, cls, &hook, err)
+                        : analysis_set_group(B, G, cls, &hook, err);
     explorer_progress_end();
     if (st != NS_OK) {
         explorer_analysis_free(B);
@@ -571,7 +585,11 @@ static void explorer_do_group(explorer_app *app)
         app_status(app, 1, "presentation: %d:%d: %s", err->line, err->col, err->msg);
         goto done;
     }
-    analysis_struct *B = explorer_compute_group(app, G, cls, err);
+    /* the same presentation at another class: extend or cut what we have */
+    int derive = app->A->has_group && !app->A->group_borrowed && cls != app->cls &&
+                 strcmp(text, app->group_text) == 0;
+    slong old_cls = app->cls;
+    analysis_struct *B = explorer_compute_group_from(app, G, cls, derive ? app->A : NULL, err);
     if (B == NULL) {
         /* a cancel is the user's choice, not an error; c asks again */
         app_status(app, err->status != NS_ERR_CANCELLED,
@@ -597,7 +615,12 @@ static void explorer_do_group(explorer_app *app)
         app_status(app, 0, "new generators: every image reset to the identity");
         app->map_edited = 1;
     } else {
-        app_status(app, 0, "class %ld: Hirsch length %ld", (long)cls, (long)B->nq->hirsch_length);
+        char how[64] = "";
+        if (derive)
+            snprintf(how, sizeof how, " (%s class %ld)",
+                     cls > old_cls ? "extended from" : "prefix of", (long)old_cls);
+        app_status(app, 0, "class %ld: Hirsch length %ld%s", (long)cls,
+                   (long)B->nq->hirsch_length, how);
     }
     free(names);
     pres_set(app->pres, G);
