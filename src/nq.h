@@ -62,10 +62,11 @@ void nq_clear(nq_t Q);
  * NS_ERR_LIMIT with Q the complete quotient of the class reached
  * (Q->class_reached < c, layers computed), unless that is class 0.
  * max_pc <= 0 means no limit.  nq_compute uses NQ_DEFAULT_MAX_PC: the free
- * group of rank 2 reaches class 13 (1377 generators), rank 3 class 8,
- * rank 4 class 6, the genus-2 surface group class 7. */
+ * group of rank 2 reaches class 14 (2538 generators; class 15 may need
+ * 4860), rank 3 class 9, the genus-3 surface group class 5 (the bound,
+ * 2044, is loose for one-relator groups). */
 #define NQ_MAX_CLASS 64
-#define NQ_DEFAULT_MAX_PC 2000
+#define NQ_DEFAULT_MAX_PC 4000
 ns_status nq_compute(nq_t Q, const pres_t G, slong c, const ns_progress_t *progress,
                      nserr_t err);
 ns_status nq_compute_max(nq_t Q, const pres_t G, slong c, slong max_pc,

@@ -44,7 +44,7 @@ void cli_print_help(FILE *out)
           "    --max-memory SIZE stop when FLINT and GMP would hold more than SIZE\n"
           "                      (e.g. 512M, 4G; default: half the physical memory)\n"
           "    --max-pc N        refuse a class whose quotient may need more than N\n"
-          "                      pc generators (default 2000): the lower classes are\n"
+          "                      pc generators (default 4000): the lower classes are\n"
           "                      reported, with exit status 3\n"
           "  scan                many maps of one group: a family with integer\n"
           "                      parameters, or JSON Lines on standard input, written\n"
