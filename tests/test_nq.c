@@ -876,6 +876,56 @@ static void recompute_replaces_result(void **state)
     nq_clear(Q); /* clearing twice is harmless */
 }
 
+/* ------------------------------------------------ deeper references */
+
+/* Witt (1937) at the depth the faster collection reaches in the normal
+ * suite: free(3) to class 8 (1318 pc generators). */
+static void witt_free_rank3_class8(void **state)
+{
+    (void)state;
+    nq_t Q;
+    nq_init(Q);
+    compute_quotient(Q, "<a, b, c>", 8);
+    check_free_layers(Q, 8, witt_rank, 3, "free group of rank 3 [Witt]");
+    nq_clear(Q);
+}
+
+/* Layer invariants as counts of 2, 4 and 8 (all layers are finite 2-groups
+ * here): {n2, n4, n8} per layer. */
+static void check_two_group_layers(const char *text, slong c, const slong (*want)[3])
+{
+    nq_t Q;
+    nq_init(Q);
+    compute_quotient(Q, text, c);
+    assert_int_equal(Q->class_reached, c);
+    for (slong j = 1; j <= c; j++) {
+        slong tors[64], nt = 0;
+        for (int e = 0; e < 3; e++)
+            for (slong k = 0; k < want[j - 1][e]; k++)
+                tors[nt++] = 2 << e;
+        check_layer(Q, j, 0, nt, tors);
+    }
+    nq_clear(Q);
+}
+
+/* <a, b | a^4, b^4> to class 9 and <a, b | a^8, b^8> to class 8.  The values
+ * are from a run of the engine as it was before the modular elimination
+ * (commit 7260913): a^4, b^4 up to class 9 (27 s then) and a^8, b^8 up to
+ * class 7; a^8, b^8 class 8 never finished with it (killed at 300 s), so its
+ * last layer is from the current engine only.  Layer 1 is Z/4 + Z/4 (resp.
+ * Z/8 + Z/8) and layer 2 Z/4 (Z/8) by hand: the abelianisation, and
+ * [a,b] of order dividing 4 since [a,b]^4 = [a^4,b] modulo gamma_3. */
+static void two_generator_exponent_4_and_8(void **state)
+{
+    (void)state;
+    static const slong four[9][3] = {{0, 2, 0}, {0, 1, 0}, {1, 1, 0}, {2, 1, 0}, {5, 1, 0},
+                                     {7, 1, 0}, {15, 1, 0}, {22, 1, 0}, {41, 1, 0}};
+    static const slong eight[8][3] = {{0, 0, 2}, {0, 0, 1}, {0, 1, 1},  {0, 2, 1},
+                                      {0, 5, 1}, {1, 7, 1}, {2, 15, 1}, {7, 22, 1}};
+    check_two_group_layers("<a, b | a^4, b^4>", 9, four);
+    check_two_group_layers("<a, b | a^8, b^8>", 8, eight);
+}
+
 /* ------------------------------------------- prefixes and extensions */
 
 static void expect_same_word(const pcw_struct *a, const pcw_struct *b, const char *what, slong k,
@@ -1017,6 +1067,8 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(set_class_is_compute),
+        cmocka_unit_test(witt_free_rank3_class8),
+        cmocka_unit_test(two_generator_exponent_4_and_8),
         cmocka_unit_test(limit_refuses_before_the_work),
         cmocka_unit_test(formulas_match_known_values),
         cmocka_unit_test(witt_free_rank2_class10),
