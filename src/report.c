@@ -111,7 +111,8 @@ static void text_torsion(strbuf_t b, const analysis_t A)
     for (slong i = 0; i < T->sub->len; i++)
         strbuf_printf(b, "%s%s", i ? ", " : "", T->gen_str[i]);
     strbuf_puts(b, T->sub->len ? "\n" : "1\n");
-    strbuf_puts(b, "torsion-free quotient Gc/T (same free parts and bases)\n");
+    strbuf_puts(b, "torsion-free quotient Gc/T (same free parts and bases; the induced map has "
+                   "the matrices M_j of Gc)\n");
     strbuf_puts(b, "layer  group                order of T in the layer\n");
     for (slong j = 0; j < A->nlayers; j++) {
         const analysis_layer_struct *L = A->layers + j;
@@ -127,6 +128,8 @@ static void text_torsion(strbuf_t b, const analysis_t A)
         strbuf_puts(b, "\n");
     }
 }
+
+static void json_matrix(strbuf_t b, const fmpz_mat_t M);
 
 static void json_torsion(strbuf_t b, const analysis_t A)
 {
@@ -187,7 +190,21 @@ static void json_torsion(strbuf_t b, const analysis_t A)
         }
         strbuf_puts(b, "]}");
     }
-    strbuf_puts(b, "]}");
+    /* the induced map: on the free parts it is M_j, as on Gc */
+    strbuf_puts(b, "],\n   \"induced_map\": ");
+    if (!A->has_map || !A->valid)
+        strbuf_puts(b, "null");
+    else {
+        strbuf_puts(b, "{\"layers\": [");
+        for (slong j = 0; j < A->nlayers; j++) {
+            strbuf_printf(b, "%s{\"weight\": %ld, \"matrix\": ", j ? ", " : "",
+                          (long)A->layers[j].layer->weight);
+            json_matrix(b, A->layers[j].matrix);
+            strbuf_puts(b, "}");
+        }
+        strbuf_puts(b, "]}");
+    }
+    strbuf_puts(b, "}");
 }
 
 static void latex_torsion(strbuf_t b, const analysis_t A)
