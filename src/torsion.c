@@ -62,7 +62,7 @@ static slong tsub_sift(const tsub_t S, pcp_work_t W, fmpz *x, slong keep, fmpz *
     slong res;
     for (;;) {
         slong p = first_nonzero(x, keep);
-        if (p < 0) {
+        if (p < 0 || W->overflow) { /* a cancelled collection changes nothing */
             res = -1;
             break;
         }
@@ -199,7 +199,7 @@ void tsub_add(tsub_t S, pcp_work_t W, const fmpz *gens, slong ngens, const fmpz 
         cut(x, keep, n);
         vq_push(&Q, x);
     }
-    while (Q.len > 0) {
+    while (Q.len > 0 && !W->overflow) {
         Q.len--;
         _fmpz_vec_swap(x, Q.v + Q.len * n, n);
         slong p = tsub_sift(S, W, x, keep, NULL);
@@ -557,6 +557,13 @@ ns_status torsion_compute(torsion_t T, const nq_t Q, const layer_struct *const *
                 return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
             }
             torsion_step(T->sub, W, layers[k - 1], conj_by, nconj);
+            if (W->overflow) {
+                _fmpz_vec_clear(conj_by, FLINT_MAX(nconj, 1) * n);
+                pcp_work_clear(W);
+                torsion_clear(T);
+                torsion_init(T);
+                return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+            }
             if (k < c)
                 tsub_set(T->steps + k, T->sub);
         }
@@ -742,6 +749,12 @@ static int ftab_init(ftab *F, pcp_work_t W, const ns_progress_t *progress)
                 r /= F->m[p];
             }
             pcp_collect_gen(W, x, k, one);
+            if (W->overflow) {
+                cancelled = 1;
+                for (slong kk = k - 1; kk >= 0; kk--)
+                    F->nb[kk] = 0;
+                break;
+            }
             slong idx = 0;
             for (slong p = k; p < n; p++)
                 idx = idx * F->m[p] + fmpz_get_si(x + p);
@@ -940,8 +953,8 @@ static slong count_on_t(const torsion_t T, const nq_t Q, const endo_t E, pcp_wor
             pcp_elt_mul(W, y, T->sub->elt + k * n, tv + i * n);
             pcp_elt_mul(W, y, y, w + k * n);
             slong j = tsub_index(T->sub, W, y, c);
-            FLINT_ASSERT(j >= 0);
-            classes -= uf_union(uf, i, j);
+            if (j >= 0) /* -1 only after a cancel, which the caller reports */
+                classes -= uf_union(uf, i, j);
         }
     _fmpz_vec_clear(ginv, n);
     _fmpz_vec_clear(w, FLINT_MAX(s, 1) * n);
@@ -1131,6 +1144,10 @@ static ns_status count_extension(torsion_map_t M, const torsion_t T, const nq_t 
                 pcp_elt_mul(W, g, x, g);
             }
             fmpz_add_si(sum, sum, count_on_t(T, Q, E, W, g, tv, NT, uf));
+            if (W->overflow) {
+                st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+                break;
+            }
         }
         if (st == NS_OK) {
             fmpz_set(M->reidemeister, sum);
@@ -1182,6 +1199,12 @@ ns_status torsion_map_compute(torsion_map_t M, const torsion_t T, const nq_t Q,
     for (slong i = 0; i < s; i++)
         endo_apply(E, Q, im + i * n, T->sub->elt + i * n, W);
     tsub_add(I, W, im, s, NULL, 0, n);
+    if (W->overflow) {
+        tsub_clear(I);
+        _fmpz_vec_clear(im, FLINT_MAX(s, 1) * n);
+        pcp_work_clear(W);
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+    }
     fmpz_t o;
     fmpz_init(o);
     tsub_order(o, I);

@@ -291,6 +291,51 @@ static void too_large_to_count(void **state)
     analysis_clear(A);
 }
 
+/* Cancelling while T is computed stops cleanly (no hang on a collection
+ * that a cancel left unfinished) and leaves no group.  The hook lets the
+ * quotient finish and cancels at the first poll after the torsion stage
+ * has begun, which comes from inside collection. */
+typedef struct {
+    int torsion_started, polls_after;
+} cancel_state;
+
+static int cancel_in_torsion(void *ctx, const char *stage, double fraction)
+{
+    cancel_state *c = ctx;
+    (void)fraction;
+    if (stage && !strcmp(stage, "torsion subgroup") && !c->torsion_started) {
+        c->torsion_started = 1;
+        return 0;
+    }
+    if (c->torsion_started && !stage) { /* a poll from inside collection */
+        c->polls_after++;
+        return 1;
+    }
+    return 0;
+}
+
+static void cancel_during_torsion(void **state)
+{
+    (void)state;
+    analysis_t A;
+    analysis_init(A);
+    pres_t G;
+    nserr_t err;
+    pres_init(G);
+    nserr_init(err);
+    parse_pres_or_fail(G, "<a, b, c | [a,b]^6, [a,c]^10, [b,c]^4>");
+    cancel_state cs = {0, 0};
+    ns_progress_t prog = {cancel_in_torsion, &cs};
+    ns_status st = analysis_set_group(A, G, 4, &prog, err);
+    assert_true(cs.torsion_started);
+    assert_true(cs.polls_after > 0);
+    assert_int_equal(st, NS_ERR_CANCELLED);
+    assert_false(A->has_group);
+    pres_clear(G);
+    nserr_clear(err);
+    analysis_clear(A);
+}
+
 /* Torsion-free layers: no torsion part is computed and the invariants are
  * the classical ones (the golden reports check every number). */
 static void torsion_free_untouched(void **state)
@@ -319,6 +364,7 @@ int main(void)
         cmocka_unit_test(quotient_layers_with_torsion),
         cmocka_unit_test(surface_times_z2),
         cmocka_unit_test(too_large_to_count),
+        cmocka_unit_test(cancel_during_torsion),
         cmocka_unit_test(torsion_free_untouched),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
