@@ -83,7 +83,7 @@ start() {
     local i
     for ((i = 0; i < 50; i++)); do
         if tmux -L "$sock" -f /dev/null new-session -d -s nilstep -x "$cols" -y "$lines" \
-            "cd '$tmp' && env NO_COLOR=1 TERM=screen LANG=$lang LC_ALL=$lang '$NILSTEP_BINARY'$args; echo \"EXIT=\$?\"; sleep 600" \
+            "cd '$tmp' && env NO_COLOR=1 TERM=screen LANG=$lang LC_ALL=$lang XDG_STATE_HOME='$tmp/state' '$NILSTEP_BINARY'$args; echo \"EXIT=\$?\"; sleep 600" \
             2>/dev/null; then
             break
         fi
