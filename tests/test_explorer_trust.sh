@@ -136,7 +136,6 @@ keys Enter
 wait_for "Hirsch length" 30
 keys + + + +
 wait_for "class 7   Hirsch length" 120
-wait_for "Invariants" 120
 ref=$("$NILSTEP_BINARY" report --group '<a,b,c | [a,b,c]>' --class 7 --format json |
     /usr/bin/python3 -c 'import json,sys; g=json.load(sys.stdin)["group"]; print(g["hirsch_length"], g["pc_generators"])')
 hl=${ref% *}
@@ -279,6 +278,79 @@ if screen | grep -q "Title of the session"; then
 fi
 keys Escape
 keys q y
+wait_for "EXIT=0"
+
+# ---------------------------------------------------------------------------
+current="Esc keeps the images and numbers; progress names the stage (items 6, 7)"
+cat >"$tmp/free3.nilstep" <<'END'
+nilstep session 1
+title   Free nilpotent, rank 3, class 7
+group   <a, b, c>
+class   7
+map     a -> b, b -> a, c -> c
+END
+start 100 30 free3.nilstep
+wait_for "Invariants" 180
+before=$(screen | grep -E "Lefschetz|automorphism")
+keys Tab Tab e C-u
+type_text "a b c"
+keys Enter
+wait_for "spectrum of layer" 60
+screen | grep -qE "analysing the map: spectrum of layer [0-9]+ of 7 .*[0-9]+\.[0-9] s" ||
+    fail "the progress line lacks the stage, the layer or the elapsed time"
+keys Escape
+wait_for "cancelled: the images and numbers are as before" 60
+screen | grep -qE '^> c +(↦|->) c *$' || fail "the image of c is not back to c"
+if screen | grep -q "No map analysed"; then
+    fail "Esc dropped the numbers"
+fi
+after=$(screen | grep -E "Lefschetz|automorphism")
+[[ "$before" == "$after" ]] || fail "the numbers changed after Esc: '$before' / '$after'"
+keys +
+wait_for "layer 8 of 8:" 60
+keys Escape
+wait_for "class 8 not computed" 60
+wait_for "class 7   Hirsch length 508"
+keys q
+wait_for "EXIT=0"
+
+# ---------------------------------------------------------------------------
+current="presentation, class and title changes are undoable, images kept (item 10)"
+start 100 30
+wait_for "2.618033988 U"
+keys p C-u
+type_text "<a, b, c | >"
+keys Enter
+wait_for "<a, b, c | >" 30
+screen | grep -qE '^. a +(↦|->) a\^2 b' || fail "the image of a was not kept"
+screen | grep -qE '^. b +(↦|->) a b' || fail "the image of b was not kept"
+screen | grep -qE '^. c +(↦|->) c' || fail "the new generator c does not map to itself"
+keys t C-u
+type_text "Renamed"
+keys Enter
+wait_for "Renamed"
+keys u
+wait_for "Golden automorphism"
+wait_for "<a, b, c | >"             # undoing the title leaves the presentation
+keys u
+wait_for "class 3   Hirsch length 5" 30
+wait_gone "<a, b, c | >"
+keys r
+wait_for "<a, b, c | >" 30
+keys q y
+wait_for "EXIT=0"
+
+current="[modified] goes when undo comes back to the saved state (item 5)"
+start 100 30
+wait_for "2.618033988 U"
+keys e C-u
+type_text "a^3"
+keys Enter
+wait_for "[modified]"
+keys u
+wait_for "2.618033988 U"
+wait_gone "[modified]"
+keys q
 wait_for "EXIT=0"
 
 finish

@@ -240,6 +240,46 @@ static void the_cursor_should_round_trip_through_numbers(void **state)
     viewmodel_clear(vm);
 }
 
+/* Document edits (presentation, class, title) share the history with
+ * image edits; undoing back to the saved state clears the dirty flag, and
+ * a cancelled edit is dropped without leaving a redo. */
+static void document_edits_should_undo_and_track_the_saved_state(void **state)
+{
+    (void)state;
+    viewmodel_t vm;
+    setup3(vm);
+    viewmodel_mark_saved(vm);
+    viewmodel_doc before, after;
+    viewmodel_doc_get(&before, vm, "old", "<a, b, c>", 2);
+    viewmodel_doc_get(&after, vm, "new", "<a, b>", 3);
+    /* the new document drops c */
+    free(after.names[2]);
+    free(after.images[2]);
+    after.ngens = 2;
+    viewmodel_push_doc(vm, &before, &after);
+    assert_int_equal(vm->ngens, 2);
+    assert_int_equal(vm->dirty, 1);
+    assert_int_equal(viewmodel_set_image(vm, 1, "b^2"), 1);
+    assert_int_equal(viewmodel_undo(vm), 1);
+    assert_int_equal(viewmodel_undo(vm), 2);
+    assert_string_equal(vm->current_doc->title, "old");
+    assert_string_equal(vm->current_doc->group, "<a, b, c>");
+    assert_int_equal(vm->current_doc->cls, 2);
+    assert_int_equal(vm->ngens, 3);
+    assert_string_equal(viewmodel_get_image(vm, 2), "[a,b]");
+    assert_int_equal(vm->dirty, 0); /* back where it was saved */
+    assert_int_equal(viewmodel_redo(vm), 2);
+    assert_string_equal(vm->current_doc->title, "new");
+    assert_int_equal(vm->dirty, 1);
+    /* a cancelled image edit leaves nothing behind */
+    assert_int_equal(viewmodel_set_image(vm, 0, "a^5"), 1);
+    assert_int_equal(viewmodel_drop_last(vm), 1);
+    assert_string_equal(viewmodel_get_image(vm, 0), "a^2");
+    assert_int_equal(viewmodel_redo(vm), 0); /* the new edit had cleared it */
+    assert_int_equal(viewmodel_undo(vm), 2); /* the document edit is next */
+    viewmodel_clear(vm);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -247,6 +287,7 @@ int main(void)
         cmocka_unit_test(selection_moves_should_clamp_at_the_ends),
         cmocka_unit_test(editing_should_record_undo_and_mark_dirty),
         cmocka_unit_test(the_undo_history_should_be_bounded),
+        cmocka_unit_test(document_edits_should_undo_and_track_the_saved_state),
         cmocka_unit_test(new_generators_should_drop_the_history),
         cmocka_unit_test(the_map_text_should_list_every_image),
         cmocka_unit_test(error_columns_should_map_back_to_the_image),

@@ -89,7 +89,14 @@ struct explorer_app_struct {
     int group_edited; /* presentation or class changed since loading */
     int map_edited;   /* an image changed since loading */
     int title_edited;
-    analysis_struct *A;      /* the current analysis, owned; may lack a group */
+    analysis_struct *Q;      /* the quotient (group stage only), owned; NULL
+                                when there is none */
+    analysis_struct *A;      /* the current analysis, owned; borrows Q's group
+                                (analysis_share_group); may lack a group */
+    int map_action;          /* what ACT_MAP follows: 'S' an image set, 'U' an
+                                undo, 'R' a redo (taken back on Esc) */
+    int from_history;        /* ACT_GROUP follows an undo ('U') / redo ('R')
+                                of a document edit */
     char group_problem[600]; /* why A has no group or no map, or "" */
     viewmodel_t vm;
 

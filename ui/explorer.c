@@ -260,10 +260,38 @@ static void explorer_draw(explorer_app *app)
 typedef struct {
     explorer_app *app;
     const char *what;
-    struct timespec last;
+    struct timespec start, last;
     int drawn;
     int cancelled;
+    slong cls;       /* quotients: the class asked for */
+    slong nlayers;   /* maps: the layers whose spectra are computed */
+    char stage[128]; /* the last stage the engine named, in words */
+    double fraction; /* of the whole computation, or -1 */
 } explorer_progress;
+
+/* The engine's stage in the words of the progress line: "class 5: tails"
+ * is layer 5 of the quotient being built, "spectra" at fraction j/n the
+ * spectrum of layer j.  Stage NULL or fraction < 0 (a poll) keep the last
+ * one. */
+static void explorer_progress_note(explorer_progress *p, const char *stage, double f)
+{
+    long j;
+    int n = 0;
+    if (stage && p->cls > 0 && sscanf(stage, "class %ld: %n", &j, &n) == 1 && n > 0) {
+        snprintf(p->stage, sizeof p->stage, "layer %ld of %ld: %s", j, (long)p->cls, stage + n);
+        if (f >= 0)
+            p->fraction = ((double)(j - 1) + f) / (double)p->cls;
+    } else if (stage && strcmp(stage, "spectra") == 0 && p->nlayers > 0 && f >= 0) {
+        long k = (long)(f * (double)p->nlayers + 0.5);
+        snprintf(p->stage, sizeof p->stage, "spectrum of layer %ld of %ld",
+                 k < p->nlayers ? k + 1 : (long)p->nlayers, (long)p->nlayers);
+        p->fraction = f;
+    } else if (stage) {
+        snprintf(p->stage, sizeof p->stage, "%s", stage);
+        if (f >= 0)
+            p->fraction = f;
+    }
+}
 
 static double explorer_seconds_since(const struct timespec *t)
 {
@@ -316,6 +344,7 @@ static void explorer_typeahead_push(explorer_app *app, int key)
 static int explorer_progress_cb(void *ctx, const char *stage, double fraction)
 {
     explorer_progress *p = ctx;
+    explorer_progress_note(p, stage, fraction);
     if (p->drawn && explorer_seconds_since(&p->last) < 0.05)
         return p->cancelled;
     clock_gettime(CLOCK_MONOTONIC, &p->last);
@@ -337,14 +366,14 @@ static int explorer_progress_cb(void *ctx, const char *stage, double fraction)
         int y = LINES - 2;
         paint_fill(y, 0, COLS, ROLE_NORMAL);
         char bar[24] = "";
-        if (fraction >= 0 && fraction <= 1) {
-            int k = (int)(fraction * 20 + 0.5);
+        if (p->fraction >= 0 && p->fraction <= 1) {
+            int k = (int)(p->fraction * 20 + 0.5);
             for (int i = 0; i < 20; i++)
                 bar[i] = i < k ? '#' : '.';
             bar[20] = '\0';
         }
-        paint_textf(y, 0, COLS, ROLE_MARKER, "%s: %s %s%s%s  %s", p->what, stage ? stage : "",
-                    bar[0] ? "[" : "", bar, bar[0] ? "]" : "",
+        paint_textf(y, 0, COLS, ROLE_MARKER, "%s: %s %s%s%s %.1f s  %s", p->what, p->stage,
+                    bar[0] ? "[" : "", bar, bar[0] ? "]" : "", explorer_seconds_since(&p->start),
                     p->cancelled ? "cancelling..." : "(Esc cancels)");
         refresh();
     }
@@ -357,6 +386,8 @@ static void explorer_progress_begin(explorer_progress *p, ns_progress_t *hook, e
     memset(p, 0, sizeof *p);
     p->app = app;
     p->what = what;
+    p->fraction = -1;
+    clock_gettime(CLOCK_MONOTONIC, &p->start);
     hook->fn = explorer_progress_cb;
     hook->ctx = p;
     if (explorer_curses_on) {
@@ -496,6 +527,7 @@ static analysis_struct *explorer_compute_group_from(explorer_app *app, const pre
     explorer_progress pr;
     ns_progress_t hook;
     explorer_progress_begin(&pr, &hook, app, what);
+    pr.cls = cls;
     analysis_struct *B = explorer_analysis_new();
     ns_status st = from ? analysis_set_group_from(B, from, cls, &hook, err)
                         : analysis_set_group(B, G, cls, &hook, err);
@@ -509,39 +541,90 @@ static analysis_struct *explorer_compute_group_from(explorer_app *app, const pre
     return B;
 }
 
-/* Analyses the current images; a failure leaves the analysis without a
- * map and says why in place of the numbers. */
-static void explorer_apply_map(explorer_app *app)
+/* Analyses map text on the group of Q, in a new analysis that borrows Q's
+ * group, so that the one shown stays whole until the new one is done.
+ * Returns NS_ERR_CANCELLED (and *out NULL) on Esc; otherwise *out is the
+ * new analysis, without a map when the map failed (err says why). */
+static ns_status explorer_map_on(explorer_app *app, const analysis_struct *Q, const char *text,
+                                 analysis_struct **out, nserr_t err)
 {
-    if (!app->A->has_group)
-        return;
-    char *text = viewmodel_map_text(app->vm, 0, NULL);
-    nserr_t err;
-    nserr_init(err);
+    *out = NULL;
     explorer_progress pr;
     ns_progress_t hook;
     explorer_progress_begin(&pr, &hook, app, "analysing the map");
-    ns_status st = analysis_set_map_text(app->A, text, 1, 1, &hook, err);
+    pr.nlayers = Q->nlayers;
+    analysis_struct *M = explorer_analysis_new();
+    analysis_share_group(M, Q);
+    ns_status st = analysis_set_map_text(M, text, 1, 1, &hook, err);
     explorer_progress_end();
+    if (st == NS_ERR_CANCELLED || pr.cancelled) {
+        explorer_analysis_free(M);
+        app->ntypeahead = app->typeahead_head = 0;
+        return NS_ERR_CANCELLED;
+    }
+    if (st != NS_OK)
+        analysis_clear_map(M);
+    *out = M;
+    return st;
+}
+
+/* Analyses the current images.  A failure leaves the analysis without a
+ * map and says why in place of the numbers; a cancel leaves everything as
+ * it was and returns 1. */
+static int explorer_apply_map(explorer_app *app)
+{
+    if (app->Q == NULL || !app->A->has_group)
+        return 0;
+    char *text = viewmodel_map_text(app->vm, 0, NULL);
+    nserr_t err;
+    nserr_init(err);
+    analysis_struct *M;
+    ns_status st = explorer_map_on(app, app->Q, text, &M, err);
+    free(text);
+    if (st == NS_ERR_CANCELLED) {
+        nserr_clear(err);
+        if (!app->A->has_map) /* nothing to keep: say why there are no numbers */
+            snprintf(app->group_problem, sizeof app->group_problem,
+                     "the map analysis was cancelled (e edits an image, c computes again)");
+        return 1;
+    }
+    explorer_analysis_free(app->A);
+    app->A = M;
     if (st != NS_OK) {
-        analysis_clear_map(app->A);
         snprintf(app->group_problem, sizeof app->group_problem, "map not analysed: %s", err->msg);
-        app_status(app, err->status != NS_ERR_CANCELLED, "map not analysed: %s", err->msg);
+        app_status(app, 1, "map not analysed: %s", err->msg);
     } else {
         app->group_problem[0] = '\0';
     }
-    free(text);
     nserr_clear(err);
+    return 0;
 }
 
-/* Puts the new analysis A (may be NULL: no group) in place. */
-static void explorer_adopt_analysis(explorer_app *app, analysis_struct *A)
+/* Puts the new quotient Q (may be NULL: no group) in place, with an
+ * analysis that borrows it and has no map yet. */
+static void explorer_adopt_analysis(explorer_app *app, analysis_struct *Q)
 {
-    explorer_analysis_free(app->A);
-    app->A = A ? A : explorer_analysis_new();
+    explorer_analysis_free(app->A); /* it borrows app->Q: first */
+    explorer_analysis_free(app->Q);
+    app->Q = Q;
+    app->A = explorer_analysis_new();
+    if (Q)
+        analysis_share_group(app->A, Q);
     viewmodel_set_nlayers(app->vm, app->A->has_group ? (size_t)app->A->nlayers : 0);
     app->table_top = 0;
     app->detail_scroll = 0;
+}
+
+/* As explorer_adopt_analysis, with the map already analysed in M. */
+static void explorer_adopt_both(explorer_app *app, analysis_struct *Q, analysis_struct *M)
+{
+    explorer_analysis_free(app->A);
+    explorer_analysis_free(app->Q);
+    app->Q = Q;
+    app->A = M;
+    viewmodel_set_nlayers(app->vm, (size_t)M->nlayers);
+    if (app->vm->sel_layer >= (size_t)M->nlayers)
+        app->vm->sel_layer = M->nlayers ? (size_t)M->nlayers - 1 : 0;
 }
 
 /* Makes parts the open document (taking over its contents); A may be
@@ -569,73 +652,185 @@ static void explorer_adopt_parts(explorer_app *app, explorer_parts *p, analysis_
     app->screen = SCREEN_MAIN;
 }
 
-/* Recomputes the quotient for app->pending_group / pending_cls.  On
- * failure or cancel the old group, class and numbers stay. */
+/* The document for presentation G (text) and class cls: every generator
+ * whose name survives keeps its image when that image still parses in G;
+ * the others map to themselves.  *nreset counts the images reset. */
+static void explorer_doc_for(explorer_app *app, viewmodel_doc *d, const pres_t G,
+                             const char *text, slong cls, int *nreset)
+{
+    viewmodel_doc_get(d, app->vm, app->title, text, (long)cls);
+    *nreset = 0;
+    size_t n = (size_t)G->gens->n;
+    char **names = calloc(n ? n : 1, sizeof *names);
+    char **images = calloc(n ? n : 1, sizeof *images);
+    if (names == NULL || images == NULL)
+        abort();
+    for (size_t x = 0; x < n; x++) {
+        const char *name = G->gens->name[x];
+        names[x] = explorer_strdup(name);
+        const char *keep = NULL;
+        for (size_t i = 0; i < app->vm->ngens; i++)
+            if (strcmp(app->vm->names[i], name) == 0)
+                keep = app->vm->images[i];
+        if (keep) {
+            expr_t e;
+            expr_init(e);
+            nserr_t err;
+            nserr_init(err);
+            if (expr_parse(e, keep, 1, 1, G->gens, err) != NS_OK) {
+                keep = NULL;
+                (*nreset)++;
+            }
+            expr_clear(e);
+            nserr_clear(err);
+        }
+        images[x] = explorer_strdup(keep ? keep : name);
+    }
+    for (size_t i = 0; i < d->ngens; i++) {
+        free(d->names[i]);
+        free(d->images[i]);
+    }
+    free(d->names);
+    free(d->images);
+    d->names = names;
+    d->images = images;
+    d->ngens = n;
+}
+
+/* "a -> x, b -> y" of a document's images. */
+static char *explorer_doc_map_text(const viewmodel_doc *d)
+{
+    viewmodel_t tmp;
+    viewmodel_init(tmp);
+    viewmodel_set_generators(tmp, d->ngens, (const char *const *)d->names,
+                             (const char *const *)d->images);
+    char *m = viewmodel_map_text(tmp, 0, NULL);
+    viewmodel_clear(tmp);
+    return m;
+}
+
+/* Takes back an undo or redo of a document edit whose quotient was not
+ * computed: the history and the title go back to where they were. */
+static void explorer_revert_history(explorer_app *app)
+{
+    if (app->from_history == 'U')
+        viewmodel_redo(app->vm);
+    else if (app->from_history == 'R')
+        viewmodel_undo(app->vm);
+    if (app->vm->current_doc) {
+        free(app->title);
+        app->title = explorer_strdup(app->vm->current_doc->title);
+    }
+}
+
+/* Recomputes the quotient for app->pending_group / pending_cls, then the
+ * map on it.  Only when both are done does anything change: on failure
+ * or cancel the old presentation, class, images and numbers stay.  A
+ * change made here is one undoable step (unless it is itself an undo or
+ * redo: app->from_history). */
 static void explorer_do_group(explorer_app *app)
 {
     char *text = app->pending_group ? app->pending_group : explorer_strdup(app->group_text);
     app->pending_group = NULL;
     slong cls = app->pending_cls > 0 ? app->pending_cls : app->cls;
     app->pending_cls = 0;
+    int hist = app->from_history;
+    app->from_history = 0;
     nserr_t err;
     nserr_init(err);
     pres_t G;
     pres_init(G);
+    viewmodel_doc after;
+    memset(&after, 0, sizeof after);
     if (pres_parse(G, text, 1, 1, err) != NS_OK) {
         app_status(app, 1, "presentation: %d:%d: %s", err->line, err->col, err->msg);
+        app->from_history = hist;
+        explorer_revert_history(app);
         goto done;
     }
     /* the same presentation at another class: extend or cut what we have */
-    int derive = app->A->has_group && !app->A->group_borrowed && cls != app->cls &&
+    int derive = app->Q && app->Q->has_group && cls != app->cls &&
                  strcmp(text, app->group_text) == 0;
     slong old_cls = app->cls;
-    analysis_struct *B = explorer_compute_group_from(app, G, cls, derive ? app->A : NULL, err);
+    analysis_struct *B = explorer_compute_group_from(app, G, cls, derive ? app->Q : NULL, err);
     if (B == NULL) {
         /* a cancel is the user's choice, not an error; c asks again */
         app_status(app, err->status != NS_ERR_CANCELLED,
                    "class %ld not computed (%s); kept class %ld (c tries again)", (long)cls,
                    err->msg, (long)app->cls);
-        free(app->retry_group);
-        app->retry_group = text;
-        app->retry_cls = cls;
-        text = NULL;
+        if (!hist) {
+            free(app->retry_group);
+            app->retry_group = text;
+            app->retry_cls = cls;
+            text = NULL;
+        }
+        app->from_history = hist;
+        explorer_revert_history(app);
+        goto done;
+    }
+    int nreset = 0;
+    if (hist)
+        viewmodel_doc_get(&after, app->vm, app->title, text, (long)cls);
+    else
+        explorer_doc_for(app, &after, G, text, cls, &nreset);
+    char *map = explorer_doc_map_text(&after);
+    analysis_struct *M;
+    ns_status st = explorer_map_on(app, B, map, &M, err);
+    free(map);
+    if (st == NS_ERR_CANCELLED) {
+        explorer_analysis_free(B);
+        app_status(app, 0, "cancelled: kept class %ld and the numbers before it",
+                   (long)app->cls);
+        if (!hist) {
+            free(app->retry_group);
+            app->retry_group = text;
+            app->retry_cls = cls;
+            text = NULL;
+        }
+        app->from_history = hist;
+        explorer_revert_history(app);
         goto done;
     }
     free(app->retry_group);
     app->retry_group = NULL;
     app->retry_cls = 0;
     int changed = strcmp(text, app->group_text) != 0 || cls != app->cls;
-    const char **names = malloc((size_t)FLINT_MAX(G->gens->n, 1) * sizeof(char *));
-    if (names == NULL)
-        abort();
-    for (slong x = 0; x < G->gens->n; x++)
-        names[x] = G->gens->name[x];
-    if (!viewmodel_same_generators(app->vm, (size_t)G->gens->n, names)) {
-        viewmodel_set_generators(app->vm, (size_t)G->gens->n, names, NULL);
-        app_status(app, 0, "new generators: every image reset to the identity");
-        app->map_edited = 1;
-    } else {
-        char how[64] = "";
-        if (derive)
-            snprintf(how, sizeof how, " (%s class %ld)",
-                     cls > old_cls ? "extended from" : "prefix of", (long)old_cls);
-        app_status(app, 0, "class %ld: Hirsch length %ld%s", (long)cls,
-                   (long)B->nq->hirsch_length, how);
+    if (!hist && changed) {
+        viewmodel_doc before;
+        viewmodel_doc_get(&before, app->vm, app->title, app->group_text, (long)app->cls);
+        viewmodel_push_doc(app->vm, &before, &after);
     }
-    free(names);
+    if (st != NS_OK) {
+        snprintf(app->group_problem, sizeof app->group_problem, "map not analysed: %s", err->msg);
+        app_status(app, 1, "map not analysed: %s", err->msg);
+    } else {
+        app->group_problem[0] = '\0';
+        if (nreset)
+            app_status(app, 0, "class %ld: Hirsch length %ld; %d image%s no longer parse%s: "
+                               "reset to the identity (u undoes)",
+                       (long)cls, (long)B->nq->hirsch_length, nreset, nreset == 1 ? "" : "s",
+                       nreset == 1 ? "s" : "");
+        else {
+            char how[64] = "";
+            if (derive)
+                snprintf(how, sizeof how, " (%s class %ld)",
+                         cls > old_cls ? "extended from" : "prefix of", (long)old_cls);
+            app_status(app, 0, "class %ld: Hirsch length %ld%s%s", (long)cls,
+                       (long)B->nq->hirsch_length, how, changed && !hist ? " (u undoes)" : "");
+        }
+    }
     pres_set(app->pres, G);
     free(app->group_text);
     app->group_text = text;
     text = NULL;
     app->cls = cls;
-    explorer_adopt_analysis(app, B);
-    app->group_problem[0] = '\0';
+    explorer_adopt_both(app, B, M);
     if (changed) {
         app->group_edited = 1;
-        viewmodel_mark_dirty(app->vm);
+        app->map_edited = 1;
     }
-    explorer_apply_map(app);
 done:
+    viewmodel_doc_clear(&after);
     free(text);
     pres_clear(G);
     nserr_clear(err);
@@ -980,7 +1175,17 @@ static void explorer_loop(explorer_app *app)
         if (flags & ACT_GROUP)
             explorer_do_group(app);
         else if (flags & ACT_MAP) {
-            explorer_apply_map(app);
+            if (explorer_apply_map(app)) {
+                /* Esc: the change is taken back, the numbers stay */
+                if (app->map_action == 'U')
+                    viewmodel_redo(app->vm);
+                else if (app->map_action == 'R')
+                    viewmodel_undo(app->vm);
+                else
+                    viewmodel_drop_last(app->vm);
+                app_status(app, 0, "cancelled: the images and numbers are as before");
+            }
+            app->map_action = 0;
         }
         if (flags & ACT_SAVE)
             explorer_do_save(app);

@@ -318,6 +318,7 @@ static int act_apply(explorer_app *app)
             return ACT_REDRAW;
         }
         app->map_edited = 1;
+        app->map_action = 'S';
         app_status(app, 0, "image of %s applied (u undoes)", app->vm->names[app->edit_index]);
         return ACT_MAP | ACT_REDRAW;
     case PROMPT_GROUP:
@@ -329,12 +330,21 @@ static int act_apply(explorer_app *app)
         app->pending_group = prompt_strdup(text);
         app->pending_cls = app->cls;
         return ACT_GROUP | ACT_REDRAW;
-    case PROMPT_TITLE:
+    case PROMPT_TITLE: {
+        const char *t = text[0] ? text : "untitled";
+        if (strcmp(t, app->title) == 0)
+            return ACT_REDRAW;
+        /* one undoable step, like an image edit */
+        viewmodel_doc before, after;
+        viewmodel_doc_get(&before, app->vm, app->title, app->group_text, (long)app->cls);
+        viewmodel_doc_get(&after, app->vm, t, app->group_text, (long)app->cls);
+        viewmodel_push_doc(app->vm, &before, &after);
         free(app->title);
-        app->title = prompt_strdup(text[0] ? text : "untitled");
+        app->title = prompt_strdup(t);
         app->title_edited = 1;
-        viewmodel_mark_dirty(app->vm);
+        app_status(app, 0, "title set (u undoes)");
         return ACT_REDRAW;
+    }
     case PROMPT_SAVE_AS:
         free(app->pending_path);
         app->pending_path = prompt_strdup(text);

@@ -537,30 +537,60 @@ static int act_identity_image(explorer_app *app)
     if (i >= app->vm->ngens || !viewmodel_set_image(app->vm, i, app->vm->names[i]))
         return ACT_NONE;
     app->map_edited = 1;
+    app->map_action = 'S';
     app_status(app, 0, "%s now maps to itself", app->vm->names[i]);
+    return ACT_MAP | ACT_REDRAW;
+}
+
+/* After an undo or redo: image edits analyse the map again; document
+ * edits (presentation, class, title) take the document's title and, when
+ * the presentation or class differ, compute that quotient. */
+static int after_history(explorer_app *app, int kind, int how)
+{
+    if (kind == 1) {
+        app->map_edited = 1;
+        app->map_action = how;
+        app_status(app, 0, "%s: image of %s", how == 'U' ? "undone" : "redone",
+                   app->vm->names[app->vm->sel_image]);
+        return ACT_MAP | ACT_REDRAW;
+    }
+    const viewmodel_doc *d = app->vm->current_doc;
+    free(app->title);
+    app->title = strdup(d->title);
+    if (app->title == NULL)
+        abort();
+    app->title_edited = 1;
+    if (strcmp(d->group, app->group_text) != 0 || d->cls != app->cls) {
+        free(app->pending_group);
+        app->pending_group = strdup(d->group);
+        if (app->pending_group == NULL)
+            abort();
+        app->pending_cls = d->cls;
+        app->from_history = how;
+        return ACT_GROUP | ACT_REDRAW;
+    }
+    app_status(app, 0, "%s: title", how == 'U' ? "undone" : "redone");
     return ACT_MAP | ACT_REDRAW;
 }
 
 static int act_undo(explorer_app *app)
 {
-    if (!viewmodel_undo(app->vm)) {
+    int kind = viewmodel_undo(app->vm);
+    if (!kind) {
         app_status(app, 0, "nothing to undo");
         return ACT_REDRAW;
     }
-    app->map_edited = 1;
-    app_status(app, 0, "undone: image of %s", app->vm->names[app->vm->sel_image]);
-    return ACT_MAP | ACT_REDRAW;
+    return after_history(app, kind, 'U');
 }
 
 static int act_redo(explorer_app *app)
 {
-    if (!viewmodel_redo(app->vm)) {
+    int kind = viewmodel_redo(app->vm);
+    if (!kind) {
         app_status(app, 0, "nothing to redo");
         return ACT_REDRAW;
     }
-    app->map_edited = 1;
-    app_status(app, 0, "redone: image of %s", app->vm->names[app->vm->sel_image]);
-    return ACT_MAP | ACT_REDRAW;
+    return after_history(app, kind, 'R');
 }
 
 static int change_class(explorer_app *app, slong to)
@@ -664,7 +694,8 @@ static const ui_binding main_bindings[] = {
     {'\n', act_detail, NULL, NULL, NULL},
     {UIKEY_FN(KEY_ENTER), act_detail, NULL, NULL, NULL},
     {'e', act_edit_image, "e", "edit the image of the selected generator", "e edit"},
-    {'u', act_undo, "u", "undo the last change of an image", "u/r undo/redo"},
+    {'u', act_undo, "u", "undo the last change of an image, the presentation, the class or the title",
+     "u/r undo/redo"},
     {'r', act_redo, "r", "redo what u undid", NULL},
     {'-', act_class_down, "-", "lower the class by one (recomputes the quotient)", "-/+ class"},
     {'+', act_class_up, "+ / =", "raise the class by one (recomputes the quotient; Esc cancels)",

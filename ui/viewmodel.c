@@ -32,11 +32,29 @@ void viewmodel_init(viewmodel_t vm)
     vm->redo = viewmodel_xcalloc(VIEWMODEL_MAX_UNDO, sizeof *vm->redo);
 }
 
+void viewmodel_doc_clear(viewmodel_doc *d)
+{
+    for (size_t i = 0; i < d->ngens; i++) {
+        free(d->names[i]);
+        free(d->images[i]);
+    }
+    free(d->names);
+    free(d->images);
+    free(d->title);
+    free(d->group);
+    memset(d, 0, sizeof *d);
+}
+
 static void viewmodel_edit_clear(viewmodel_edit *e)
 {
     free(e->before);
     free(e->after);
     e->before = e->after = NULL;
+    if (e->doc) {
+        viewmodel_doc_clear(&e->dbefore);
+        viewmodel_doc_clear(&e->dafter);
+        e->doc = 0;
+    }
 }
 
 static void viewmodel_drop_history(viewmodel_t vm)
@@ -160,19 +178,96 @@ static void viewmodel_push(viewmodel_edit *stack, size_t *n, viewmodel_edit e)
     stack[(*n)++] = e;
 }
 
+/* Pushes e as the newest edit, into a new state; clears the redo list. */
+static void viewmodel_record(viewmodel_t vm, viewmodel_edit *e)
+{
+    e->state_before = vm->state;
+    e->state_after = ++vm->next_state;
+    vm->state = e->state_after;
+    viewmodel_push(vm->undo, &vm->nundo, *e);
+    for (size_t k = 0; k < vm->nredo; k++)
+        viewmodel_edit_clear(&vm->redo[k]);
+    vm->nredo = 0;
+    vm->dirty = vm->state != vm->saved_state;
+}
+
+/* The generators and images of d become current (copies; history kept). */
+static void viewmodel_take_doc(viewmodel_t vm, const viewmodel_doc *d)
+{
+    char **nn = viewmodel_xcalloc(d->ngens, sizeof *nn);
+    char **ii = viewmodel_xcalloc(d->ngens, sizeof *ii);
+    for (size_t i = 0; i < d->ngens; i++) {
+        nn[i] = viewmodel_strdup(d->names[i]);
+        ii[i] = viewmodel_strdup(d->images[i]);
+    }
+    viewmodel_drop_generators(vm);
+    vm->names = nn;
+    vm->images = ii;
+    vm->ngens = d->ngens;
+    if (vm->sel_image >= vm->ngens)
+        vm->sel_image = vm->ngens ? vm->ngens - 1 : 0;
+}
+
+void viewmodel_doc_get(viewmodel_doc *d, const viewmodel_t vm, const char *title,
+                       const char *group, long cls)
+{
+    memset(d, 0, sizeof *d);
+    d->title = viewmodel_strdup(title);
+    d->group = viewmodel_strdup(group);
+    d->cls = cls;
+    d->ngens = vm->ngens;
+    d->names = viewmodel_xcalloc(vm->ngens, sizeof *d->names);
+    d->images = viewmodel_xcalloc(vm->ngens, sizeof *d->images);
+    for (size_t i = 0; i < vm->ngens; i++) {
+        d->names[i] = viewmodel_strdup(vm->names[i]);
+        d->images[i] = viewmodel_strdup(vm->images[i]);
+    }
+}
+
+void viewmodel_push_doc(viewmodel_t vm, viewmodel_doc *before, viewmodel_doc *after)
+{
+    viewmodel_edit e;
+    memset(&e, 0, sizeof e);
+    e.doc = 1;
+    e.dbefore = *before;
+    e.dafter = *after;
+    memset(before, 0, sizeof *before);
+    memset(after, 0, sizeof *after);
+    viewmodel_take_doc(vm, &e.dafter);
+    viewmodel_record(vm, &e);
+}
+
 int viewmodel_set_image(viewmodel_t vm, size_t i, const char *text)
 {
     if (i >= vm->ngens || strcmp(vm->images[i], text) == 0)
         return 0;
-    viewmodel_edit e = {i, vm->images[i], viewmodel_strdup(text)};
+    viewmodel_edit e;
+    memset(&e, 0, sizeof e);
+    e.index = i;
+    e.before = vm->images[i];
+    e.after = viewmodel_strdup(text);
     vm->images[i] = viewmodel_strdup(text);
-    viewmodel_push(vm->undo, &vm->nundo, e);
-    for (size_t k = 0; k < vm->nredo; k++)
-        viewmodel_edit_clear(&vm->redo[k]);
-    vm->nredo = 0;
+    viewmodel_record(vm, &e);
     vm->sel_image = i;
-    vm->dirty = 1;
     return 1;
+}
+
+/* Makes the state on one side of e current: the before side when undoing. */
+static int viewmodel_apply(viewmodel_t vm, const viewmodel_edit *e, int undoing)
+{
+    vm->current_doc = NULL;
+    if (e->doc) {
+        const viewmodel_doc *d = undoing ? &e->dbefore : &e->dafter;
+        viewmodel_take_doc(vm, d);
+        vm->current_doc = d;
+    } else {
+        free(vm->images[e->index]);
+        vm->images[e->index] = viewmodel_strdup(undoing ? e->before : e->after);
+        vm->sel_image = e->index;
+    }
+    vm->state = undoing ? e->state_before : e->state_after;
+    vm->dirty = vm->state != vm->saved_state;
+    return e->doc ? 2 : 1;
 }
 
 int viewmodel_undo(viewmodel_t vm)
@@ -180,12 +275,8 @@ int viewmodel_undo(viewmodel_t vm)
     if (vm->nundo == 0)
         return 0;
     viewmodel_edit e = vm->undo[--vm->nundo];
-    free(vm->images[e.index]);
-    vm->images[e.index] = viewmodel_strdup(e.before);
-    vm->sel_image = e.index;
     viewmodel_push(vm->redo, &vm->nredo, e);
-    vm->dirty = 1;
-    return 1;
+    return viewmodel_apply(vm, &vm->redo[vm->nredo - 1], 1);
 }
 
 int viewmodel_redo(viewmodel_t vm)
@@ -193,21 +284,31 @@ int viewmodel_redo(viewmodel_t vm)
     if (vm->nredo == 0)
         return 0;
     viewmodel_edit e = vm->redo[--vm->nredo];
-    free(vm->images[e.index]);
-    vm->images[e.index] = viewmodel_strdup(e.after);
-    vm->sel_image = e.index;
     viewmodel_push(vm->undo, &vm->nundo, e);
-    vm->dirty = 1;
+    return viewmodel_apply(vm, &vm->undo[vm->nundo - 1], 0);
+}
+
+int viewmodel_drop_last(viewmodel_t vm)
+{
+    if (vm->nundo == 0)
+        return 0;
+    viewmodel_edit e = vm->undo[--vm->nundo];
+    viewmodel_apply(vm, &e, 1);
+    vm->current_doc = NULL;
+    viewmodel_edit_clear(&e);
     return 1;
 }
 
 void viewmodel_mark_dirty(viewmodel_t vm)
 {
+    /* a change outside the history: a state no undo comes back to */
+    vm->state = ++vm->next_state;
     vm->dirty = 1;
 }
 
 void viewmodel_mark_saved(viewmodel_t vm)
 {
+    vm->saved_state = vm->state;
     vm->dirty = 0;
 }
 

@@ -16,10 +16,27 @@
 
 #include <stddef.h>
 
-/* One undoable edit: image `index` went from `before` to `after`. */
+/* The whole document as an undo step sees it: the title, the presentation
+ * and class, the generators and their images.  Owned strings. */
+typedef struct {
+    char *title;
+    char *group;
+    long cls;
+    size_t ngens;
+    char **names;
+    char **images;
+} viewmodel_doc;
+
+/* One undoable edit: image `index` went from `before` to `after`, or (doc
+ * set) the whole document went from dbefore to dafter.  state_before /
+ * state_after identify the states, so that undoing back to the saved
+ * state clears the dirty flag. */
 typedef struct {
     size_t index;
-    char *before, *after; /* owned */
+    char *before, *after; /* owned; NULL for a document edit */
+    int doc;
+    viewmodel_doc dbefore, dafter;
+    unsigned long state_before, state_after;
 } viewmodel_edit;
 
 #define VIEWMODEL_MAX_UNDO 256
@@ -31,7 +48,10 @@ typedef struct {
     size_t sel_image;
     size_t nlayers;
     size_t sel_layer; /* 0-based; meaningless when nlayers == 0 */
-    int dirty;        /* there are changes not saved */
+    int dirty;        /* there are changes not saved (state != saved_state) */
+    unsigned long state, saved_state, next_state;
+    const viewmodel_doc *current_doc; /* after an undo / redo of a document
+                                         edit: the document now current */
     viewmodel_edit *undo;
     size_t nundo;
     viewmodel_edit *redo;
@@ -69,9 +89,27 @@ const char *viewmodel_get_image(const viewmodel_t vm, size_t i);
 int viewmodel_set_image(viewmodel_t vm, size_t i, const char *text);
 
 /* Undoes / redoes the last edit and selects the image it touched; returns
- * 1 if there was one.  Either marks the model dirty. */
+ * 0 if there was none, 1 for an image edit, 2 for a document edit (then
+ * vm->current_doc is the document now current: the caller applies its
+ * title, presentation and class).  The model is dirty unless this comes
+ * back to the saved state. */
 int viewmodel_undo(viewmodel_t vm);
 int viewmodel_redo(viewmodel_t vm);
+
+/* Takes back the last edit (after its computation was cancelled) as if it
+ * had not happened: no redo entry is left.  Returns 1 if there was one. */
+int viewmodel_drop_last(viewmodel_t vm);
+
+/* The current document with this title, presentation and class (copied
+ * into d; free with viewmodel_doc_clear). */
+void viewmodel_doc_get(viewmodel_doc *d, const viewmodel_t vm, const char *title,
+                       const char *group, long cls);
+void viewmodel_doc_clear(viewmodel_doc *d);
+
+/* Records a document edit from before to after (both taken over) as one
+ * undoable step, and makes after's generators and images current; the
+ * redo list is cleared and the model dirty. */
+void viewmodel_push_doc(viewmodel_t vm, viewmodel_doc *before, viewmodel_doc *after);
 
 void viewmodel_mark_dirty(viewmodel_t vm);
 void viewmodel_mark_saved(viewmodel_t vm);
