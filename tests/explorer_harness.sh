@@ -75,6 +75,7 @@ start() {
     local cols=$1 lines=$2
     shift 2
     tmux -L "$sock" kill-server >/dev/null 2>&1
+    rm -rf "$tmp/state" # each start without recovery copies of the last one
     local args=""
     for a in "$@"; do
         args+=" '$a'"

@@ -293,10 +293,10 @@ start 100 30 free3.nilstep
 wait_for "Invariants" 180
 before=$(screen | grep -E "Lefschetz|automorphism")
 keys Tab Tab e C-u
-type_text "a b c"
+type_text "a^2 b^3 c"
 keys Enter
-wait_for "spectrum of layer" 60
-screen | grep -qE "analysing the map: spectrum of layer [0-9]+ of 7 .*[0-9]+\.[0-9] s" ||
+wait_for "spectra: layer" 60
+screen | grep -qE "analysing the map: spectra: layer [0-9]+ of 7 .*[0-9]+\.[0-9] s" ||
     fail "the progress line lacks the stage, the layer or the elapsed time"
 keys Escape
 wait_for "cancelled: the images and numbers are as before" 60

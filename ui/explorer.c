@@ -270,8 +270,8 @@ typedef struct {
 } explorer_progress;
 
 /* The engine's stage in the words of the progress line: "class 5: tails"
- * is layer 5 of the quotient being built, "spectra" at fraction j/n the
- * spectrum of layer j.  Stage NULL or fraction < 0 (a poll) keep the last
+ * is layer 5 of the quotient being built; other stages ("spectra: layer 3
+ * of 7") are shown as they come.  Stage NULL or fraction < 0 (a poll) keep the last
  * one. */
 static void explorer_progress_note(explorer_progress *p, const char *stage, double f)
 {
@@ -281,11 +281,6 @@ static void explorer_progress_note(explorer_progress *p, const char *stage, doub
         snprintf(p->stage, sizeof p->stage, "layer %ld of %ld: %s", j, (long)p->cls, stage + n);
         if (f >= 0)
             p->fraction = ((double)(j - 1) + f) / (double)p->cls;
-    } else if (stage && strcmp(stage, "spectra") == 0 && p->nlayers > 0 && f >= 0) {
-        long k = (long)(f * (double)p->nlayers + 0.5);
-        snprintf(p->stage, sizeof p->stage, "spectrum of layer %ld of %ld",
-                 k < p->nlayers ? k + 1 : (long)p->nlayers, (long)p->nlayers);
-        p->fraction = f;
     } else if (stage) {
         snprintf(p->stage, sizeof p->stage, "%s", stage);
         if (f >= 0)
@@ -585,7 +580,7 @@ static int explorer_apply_map(explorer_app *app)
         nserr_clear(err);
         if (!app->A->has_map) /* nothing to keep: say why there are no numbers */
             snprintf(app->group_problem, sizeof app->group_problem,
-                     "the map analysis was cancelled (e edits an image, c computes again)");
+                     "map not analysed: cancelled (e edits an image, c computes again)");
         return 1;
     }
     explorer_analysis_free(app->A);
