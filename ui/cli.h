@@ -10,6 +10,11 @@
  * 3 a resource limit stopped the computation. */
 int cli_report(int argc, char **argv);
 
+/* Runs `nilstep iterate ...` (ui/cli_iterate.c); argv[0] is "iterate".
+ * Exit status as for report: 0, 1 map not well defined (the failing
+ * relators on stderr, no iterates), 2 bad input, 3 stopped. */
+int cli_iterate(int argc, char **argv);
+
 /* Writes the --help text. */
 void cli_print_help(FILE *out);
 

@@ -21,6 +21,8 @@ int main(int argc, char **argv)
         return cli_report(argc - 1, argv + 1);
     if (argc >= 2 && !strcmp(argv[1], "scan"))
         return cli_scan(argc - 1, argv + 1);
+    if (argc >= 2 && !strcmp(argv[1], "iterate"))
+        return cli_iterate(argc - 1, argv + 1);
     if (argc >= 2 && (!strcmp(argv[1], "--help") || !strcmp(argv[1], "-h"))) {
         cli_print_help(stdout);
         return 0;

@@ -1,0 +1,369 @@
+/* iterate.c — see iterate.h. */
+#include <stdlib.h>
+#include <string.h>
+#include "iterate.h"
+#include "spectrum.h"
+#include "strbuf.h"
+
+void iterate_map_init(iterate_map_t M)
+{
+    memset(M, 0, sizeof(iterate_map_struct));
+}
+
+static void table_clear(iterate_table_struct *t, slong n, slong deg)
+{
+    if (t->img)
+        _fmpz_vec_clear(t->img, FLINT_MAX(n * n, 1));
+    if (t->diff)
+        _fmpz_vec_clear(t->diff, FLINT_MAX(n * (deg + 1) * n, 1));
+    t->img = t->diff = NULL;
+}
+
+void iterate_map_clear(iterate_map_t M)
+{
+    for (slong b = 0; b < M->ntab; b++)
+        table_clear(M->tab + b, M->n, M->deg);
+    flint_free(M->tab);
+    for (slong j = 0; j < M->nlayers; j++)
+        layer_clear(M->layers + j);
+    flint_free(M->layers);
+    iterate_map_init(M);
+}
+
+/* The Hall polynomial data of table t: for each pc generator k the forward
+ * differences at 0 of e -> img_k^e from the values at e = 0..deg. */
+static void table_make_diff(iterate_map_t M, iterate_table_struct *t, pcp_work_t W)
+{
+    slong n = M->n, D = M->deg;
+    t->diff = _fmpz_vec_init(FLINT_MAX(n * (D + 1) * n, 1));
+    for (slong k = 0; k < n && !W->overflow; k++) {
+        fmpz *s = t->diff + k * (D + 1) * n;
+        for (slong e = 1; e <= D; e++)
+            pcp_elt_mul(W, s + e * n, s + (e - 1) * n, t->img + k * n);
+        for (slong d = 1; d <= D; d++)
+            for (slong e = D; e >= d; e--)
+                _fmpz_vec_sub(s + e * n, s + e * n, s + (e - 1) * n, n);
+    }
+}
+
+/* out := img_k^e under table t. */
+static void table_pow(iterate_map_t M, const iterate_table_struct *t, fmpz *out, slong k,
+                      const fmpz_t e, pcp_work_t W)
+{
+    slong n = M->n, D = M->deg;
+    if (t->diff == NULL) {
+        pcp_elt_pow(W, out, t->img + k * n, e);
+        return;
+    }
+    /* f(e) = sum_d (Delta^d f)(0) binom(e, d), binom(e, d) built as
+     * e (e-1) ... (e-d+1) / d!, exact at every step */
+    const fmpz *s = t->diff + k * (D + 1) * n;
+    fmpz_t b, f;
+    fmpz_init_set_ui(b, 1);
+    fmpz_init(f);
+    _fmpz_vec_zero(out, n);
+    for (slong d = 0; d <= D; d++) {
+        if (d > 0) {
+            fmpz_sub_ui(f, e, (ulong)(d - 1));
+            fmpz_mul(b, b, f);
+            fmpz_divexact_ui(b, b, (ulong)d);
+            if (fmpz_is_zero(b))
+                break; /* 0 <= e < d: every later binomial vanishes too */
+        }
+        _fmpz_vec_scalar_addmul_fmpz(out, s + d * n, n, b);
+    }
+    fmpz_clear(b);
+    fmpz_clear(f);
+}
+
+/* out := t applied to g (out may alias g). */
+static void table_apply(iterate_map_t M, const iterate_table_struct *t, fmpz *out,
+                        const fmpz *g, pcp_work_t W)
+{
+    slong n = M->n;
+    fmpz *acc = _fmpz_vec_init(FLINT_MAX(n, 1));
+    fmpz *p = _fmpz_vec_init(FLINT_MAX(n, 1));
+    int first = 1;
+    for (slong k = 0; k < n && !W->overflow; k++) {
+        if (fmpz_is_zero(g + k))
+            continue;
+        table_pow(M, t, p, k, g + k, W);
+        if (first)
+            _fmpz_vec_swap(acc, p, n);
+        else
+            pcp_elt_mul(W, acc, acc, p);
+        first = 0;
+    }
+    _fmpz_vec_set(out, acc, n);
+    _fmpz_vec_clear(acc, FLINT_MAX(n, 1));
+    _fmpz_vec_clear(p, FLINT_MAX(n, 1));
+}
+
+static ns_status cancelled(nserr_t err)
+{
+    return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "the iteration was stopped");
+}
+
+ns_status iterate_map_set(iterate_map_t M, const nq_t Q, const endo_t E,
+                          const ns_progress_t *progress, nserr_t err)
+{
+    pcp_work_t W;
+    pcp_work_init(W, Q->pcp);
+    W->progress = progress;
+    iterate_map_clear(M);
+    if (!E->valid)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0,
+                         "the map is not well defined on the quotient: nothing to iterate");
+    slong n = Q->pcp->n;
+    M->Q = Q;
+    M->n = n;
+    M->deg = Q->pcp->maxweight;
+    M->hall = Q->pcp->torsion_free;
+    if (endo_ensure_pc_images(E, Q, W)) {
+        pcp_work_clear(W);
+        return cancelled(err);
+    }
+    M->tab = flint_calloc(1, sizeof(iterate_table_struct));
+    M->ntab = 1;
+    M->tab->img = _fmpz_vec_init(FLINT_MAX(n * n, 1));
+    _fmpz_vec_set(M->tab->img, E->pc_img, n * n);
+    if (M->hall)
+        table_make_diff(M, M->tab, W);
+    int stopped = W->overflow;
+    pcp_work_clear(W);
+    if (stopped) {
+        iterate_map_clear(M);
+        return cancelled(err);
+    }
+    M->nlayers = Q->class_reached;
+    M->layers = flint_malloc(FLINT_MAX(M->nlayers, 1) * sizeof(layer_struct));
+    for (slong j = 0; j < M->nlayers; j++) {
+        layer_init(M->layers + j);
+        layer_compute(M->layers + j, Q, j + 1);
+    }
+    return NS_OK;
+}
+
+/* Makes tables 0..b exist: table b+1 is table b applied to its own
+ * images (alpha^(2^(b+1)) = alpha^(2^b) o alpha^(2^b)). */
+static int ensure_table(iterate_map_t M, slong b, pcp_work_t W)
+{
+    slong n = M->n;
+    while (M->ntab <= b && !W->overflow) {
+        iterate_table_struct *last = M->tab + M->ntab - 1;
+        iterate_table_struct t = {NULL, NULL};
+        t.img = _fmpz_vec_init(FLINT_MAX(n * n, 1));
+        for (slong k = 0; k < n && !W->overflow; k++)
+            table_apply(M, last, t.img + k * n, last->img + k * n, W);
+        if (M->hall && !W->overflow)
+            table_make_diff(M, &t, W);
+        if (W->overflow) {
+            table_clear(&t, n, M->deg);
+            break;
+        }
+        M->tab = flint_realloc(M->tab, (M->ntab + 1) * sizeof(iterate_table_struct));
+        M->tab[M->ntab++] = t;
+    }
+    return W->overflow;
+}
+
+ns_status iterate_map_advance(iterate_map_t M, fmpz *x, ulong k,
+                              const ns_progress_t *progress, nserr_t err)
+{
+    slong n = M->n;
+    if (k == 0 || n == 0)
+        return NS_OK;
+    pcp_work_t W;
+    pcp_work_init(W, M->Q->pcp);
+    W->progress = progress;
+    fmpz *y = _fmpz_vec_init(n);
+    _fmpz_vec_set(y, x, n);
+    /* one step at a time for small k (no squared tables needed), by the
+     * binary digits of k otherwise; the alpha^(2^b) commute */
+    if (k <= 4) {
+        for (ulong s = 0; s < k && !W->overflow; s++)
+            table_apply(M, M->tab, y, y, W);
+    } else {
+        for (slong b = 0; (k >> b) != 0 && !W->overflow; b++) {
+            if (!((k >> b) & 1))
+                continue;
+            if (ensure_table(M, b, W))
+                break;
+            table_apply(M, M->tab + b, y, y, W);
+        }
+    }
+    int stopped = W->overflow;
+    pcp_work_clear(W);
+    if (!stopped)
+        _fmpz_vec_set(x, y, n);
+    _fmpz_vec_clear(y, n);
+    return stopped ? cancelled(err) : NS_OK;
+}
+
+/* ---- description of one iterate ------------------------------------ */
+
+void iterate_point_init(iterate_point_t p)
+{
+    memset(p, 0, sizeof(iterate_point_struct));
+}
+
+void iterate_point_clear(iterate_point_t p)
+{
+    if (p->elt)
+        _fmpz_vec_clear(p->elt, FLINT_MAX(p->npc, 1));
+    for (slong j = 0; j < p->nlayers; j++) {
+        iterate_layer_struct *L = p->layers + j;
+        _fmpz_vec_clear(L->coords, FLINT_MAX(L->free_rank, 1));
+        _fmpz_vec_clear(L->torsion, FLINT_MAX(L->ntors, 1));
+    }
+    flint_free(p->layers);
+    if (p->sqnorm)
+        _fmpz_vec_clear(p->sqnorm, FLINT_MAX(p->nlayers, 1));
+    iterate_point_init(p);
+}
+
+/* Decimal digits of |x|; 1 for 0. */
+static slong decimal_digits(const fmpz_t x)
+{
+    if (fmpz_is_zero(x))
+        return 1;
+    slong d = (slong)fmpz_sizeinbase(x, 10); /* exact or one too many */
+    fmpz_t t, a;
+    fmpz_init(t);
+    fmpz_init(a);
+    fmpz_abs(a, x);
+    fmpz_ui_pow_ui(t, 10, (ulong)(d - 1));
+    if (fmpz_cmp(a, t) < 0)
+        d--;
+    fmpz_clear(t);
+    fmpz_clear(a);
+    return d;
+}
+
+void iterate_point_set(iterate_point_t p, const iterate_map_t M, const fmpz *x, ulong n)
+{
+    iterate_point_clear(p);
+    p->n = n;
+    p->npc = M->n;
+    p->elt = _fmpz_vec_init(FLINT_MAX(M->n, 1));
+    _fmpz_vec_set(p->elt, x, M->n);
+    p->nlayers = M->nlayers;
+    p->layers = flint_calloc(FLINT_MAX(M->nlayers, 1), sizeof(iterate_layer_struct));
+    p->sqnorm = _fmpz_vec_init(FLINT_MAX(M->nlayers, 1));
+    fmpz_t big;
+    fmpz_init(big);
+    for (slong j = 0; j < M->nlayers; j++) {
+        const layer_struct *L = M->layers + j;
+        iterate_layer_struct *P = p->layers + j;
+        slong cnt = L->count, r = L->free_rank;
+        const fmpz *v = x + L->start;
+        P->weight = L->weight;
+        P->free_rank = r;
+        P->coords = _fmpz_vec_init(FLINT_MAX(r, 1));
+        for (slong a = 0; a < r; a++)
+            for (slong b = 0; b < cnt; b++)
+                fmpz_addmul(P->coords + a, fmpz_mat_entry(L->phi, a, b), v + b);
+        /* torsion: v - sigma phi v reduced modulo the relations */
+        fmpz *t = _fmpz_vec_init(FLINT_MAX(cnt, 1));
+        _fmpz_vec_set(t, v, cnt);
+        for (slong b = 0; b < cnt; b++)
+            for (slong a = 0; a < r; a++)
+                fmpz_submul(t + b, fmpz_mat_entry(L->sigma, b, a), P->coords + a);
+        layer_reduce_vec(L, t);
+        P->torsion = _fmpz_vec_init(FLINT_MAX(L->nfinite, 1));
+        slong col = 0;
+        for (slong row = 0; row < fmpz_mat_nrows(L->hnf); row++) {
+            while (col < cnt && fmpz_is_zero(fmpz_mat_entry(L->hnf, row, col)))
+                col++;
+            if (col >= cnt)
+                break;
+            if (!fmpz_is_one(fmpz_mat_entry(L->hnf, row, col)))
+                fmpz_set(P->torsion + P->ntors++, t + col);
+        }
+        _fmpz_vec_clear(t, FLINT_MAX(cnt, 1));
+        fmpz_zero(big);
+        for (slong a = 0; a < r; a++) {
+            if (fmpz_cmpabs(P->coords + a, big) > 0)
+                fmpz_abs(big, P->coords + a);
+            fmpz_addmul(p->sqnorm + j, P->coords + a, P->coords + a);
+        }
+        for (slong a = 0; a < P->ntors; a++)
+            if (fmpz_cmpabs(P->torsion + a, big) > 0)
+                fmpz_abs(big, P->torsion + a);
+        P->digits = decimal_digits(big);
+    }
+    fmpz_clear(big);
+}
+
+void iterate_point_norm(arb_t out, const iterate_point_t p, slong prec)
+{
+    arb_t t;
+    arb_init(t);
+    arb_zero(out);
+    for (slong j = 0; j < p->nlayers; j++) {
+        if (fmpz_is_zero(p->sqnorm + j))
+            continue;
+        /* ||v||^(1/w) = (||v||^2)^(1/(2w)) */
+        arb_set_fmpz(t, p->sqnorm + j);
+        arb_root_ui(t, t, 2 * (ulong)p->layers[j].weight, prec);
+        arb_add(out, out, t, prec);
+    }
+    arb_clear(t);
+}
+
+void iterate_point_root(arb_t out, const iterate_point_t p, slong prec)
+{
+    if (p->n == 0) {
+        arb_indeterminate(out);
+        return;
+    }
+    iterate_point_norm(out, p, prec);
+    if (arb_is_zero(out))
+        return;
+    arb_log(out, out, prec);
+    arb_div_ui(out, out, p->n, prec);
+    arb_exp(out, out, prec);
+}
+
+char *iterate_decimal_str(void (*fn)(arb_t, const void *, slong), const void *ctx,
+                          slong digits)
+{
+    arb_t x;
+    arb_init(x);
+    char *res = NULL;
+    for (slong prec = 4 * digits + 64; prec <= (4 * digits + 64) << 12 && res == NULL;
+         prec *= 2) {
+        fn(x, ctx, prec);
+        if (!arb_is_finite(x))
+            break;
+        char *s = spectrum_ball_get_str(x, digits);
+        if (s) {
+            res = strbuf_dup_str(s);
+            free(s);
+        }
+    }
+    arb_clear(x);
+    return res;
+}
+
+static void norm_fn(arb_t out, const void *ctx, slong prec)
+{
+    iterate_point_norm(out, (const iterate_point_struct *)ctx, prec);
+}
+
+static void root_fn(arb_t out, const void *ctx, slong prec)
+{
+    iterate_point_root(out, (const iterate_point_struct *)ctx, prec);
+}
+
+char *iterate_point_norm_str(const iterate_point_t p, slong digits)
+{
+    return iterate_decimal_str(norm_fn, p, digits);
+}
+
+char *iterate_point_root_str(const iterate_point_t p, slong digits)
+{
+    if (p->n == 0)
+        return NULL;
+    return iterate_decimal_str(root_fn, p, digits);
+}

@@ -1,0 +1,118 @@
+/* iterate.h — the iterates alpha^n(w) of an endomorphism of a computed
+ * class-c quotient, exactly, with their coordinates per layer and the
+ * homogeneous norm.
+ *
+ * The map is kept as the images of the pc generators under alpha^(2^b),
+ * b = 0, 1, ..., each table the square of the last (built on demand), so
+ * that x -> alpha^k(x) costs O(log k) table applications for any k: the
+ * route for --steps in the millions printed every K-th step.
+ *
+ * Applying a table T to g = a_0^(g_0) ... a_(n-1)^(g_(n-1)) is the product
+ * T_0^(g_0) ... T_(n-1)^(g_(n-1)).  In a presentation without finite
+ * relative orders the coordinates of e -> T_k^e are integer-valued
+ * polynomials of degree <= c in e (P. Hall, "Nilpotent groups", 1957);
+ * each table keeps their forward differences at 0, so a power is one
+ * evaluation of c + 1 binomials whatever the size of e.  With finite
+ * relative orders the exponents of finite generators are already reduced
+ * (normal form, 0 <= g_k < m_k) and the others go by pcp_elt_pow, whose
+ * cost grows with the bit length of the exponent, never with its value.
+ *
+ * Coordinates: for layer j the weight-j exponents v of the normal form;
+ * the free part phi v in the layer basis of layer.h (the basis `report`
+ * shows), the torsion part the canonical representative of
+ * v - sigma phi v modulo the layer's relations, read at the pivot columns
+ * of their Hermite form (each entry in [0, pivot)).
+ *
+ * The homogeneous norm N(g) = sum_j ||v_j||^(1/j), ||.|| the Euclidean norm
+ * of the free coordinates of weight j, is comparable to word length on a
+ * torsion-free nilpotent group (Y. Guivarc'h, "Croissance polynomiale et
+ * periodes des fonctions harmoniques", Bull. SMF 101, 1973; H. Bass, Proc.
+ * LMS 25, 1972), so N(alpha^n(w))^(1/n) tends to the growth rate when w
+ * carries the top growth.
+ *
+ * Nothing here prints.  Strings are flint_malloc'd (flint_free). */
+#ifndef NILSTEP_ITERATE_H
+#define NILSTEP_ITERATE_H
+
+#include <arb.h>
+#include "endo.h"
+#include "layer.h"
+#include "nq.h"
+
+/* One table: images of the pc generators (n x n) and, for torsion-free
+ * presentations, the forward differences of e -> image^e ((c+1) x n per
+ * generator), NULL otherwise. */
+typedef struct {
+    fmpz *img;
+    fmpz *diff;
+} iterate_table_struct;
+
+typedef struct {
+    const nq_struct *Q;  /* borrowed; must outlive the map */
+    slong n;             /* pc generators */
+    slong deg;           /* degree bound of the Hall polynomials (= class) */
+    int hall;            /* 1: torsion-free presentation, powers by Hall */
+    slong ntab;          /* tables built: alpha^(2^0) .. alpha^(2^(ntab-1)) */
+    iterate_table_struct *tab;
+    slong nlayers;
+    layer_struct *layers; /* coordinates on each layer, owned */
+} iterate_map_struct;
+typedef iterate_map_struct iterate_map_t[1];
+
+void iterate_map_init(iterate_map_t M);
+void iterate_map_clear(iterate_map_t M);
+
+/* Takes the map E (valid, on Q) for iteration.  Q must stay alive and
+ * unchanged while M is used.  NS_ERR_INPUT for a map that is not valid;
+ * NS_ERR_CANCELLED when progress stopped it. */
+ns_status iterate_map_set(iterate_map_t M, const nq_t Q, const endo_t E,
+                          const ns_progress_t *progress, nserr_t err);
+
+/* x := alpha^k(x) (x has n entries in normal form).  Builds the squared
+ * tables it needs.  On cancel (NS_ERR_CANCELLED) x is unchanged. */
+ns_status iterate_map_advance(iterate_map_t M, fmpz *x, ulong k,
+                              const ns_progress_t *progress, nserr_t err);
+
+/* ---- one iterate described -------------------------------------------- */
+
+typedef struct {
+    slong weight, free_rank, ntors;
+    fmpz *coords;  /* free_rank: the free part in the layer basis */
+    fmpz *torsion; /* ntors: the torsion part (see above) */
+    slong digits;  /* decimal digits of the largest |entry| of coords and
+                      torsion (0 counts as one digit) */
+} iterate_layer_struct;
+
+typedef struct {
+    ulong n;        /* the step */
+    slong npc;
+    fmpz *elt;      /* alpha^n(w) as an exponent vector */
+    slong nlayers;
+    iterate_layer_struct *layers;
+    fmpz *sqnorm;   /* nlayers: ||v_j||^2, exact */
+} iterate_point_struct;
+typedef iterate_point_struct iterate_point_t[1];
+
+void iterate_point_init(iterate_point_t p);
+void iterate_point_clear(iterate_point_t p);
+
+/* Describes x = alpha^n(w). */
+void iterate_point_set(iterate_point_t p, const iterate_map_t M, const fmpz *x, ulong n);
+
+/* The homogeneous norm as a certified ball at precision prec. */
+void iterate_point_norm(arb_t out, const iterate_point_t p, slong prec);
+/* N(p)^(1/n) at precision prec; n = 0 gives an indeterminate ball. */
+void iterate_point_root(arb_t out, const iterate_point_t p, slong prec);
+
+/* Certified decimals with `digits` significant digits (spectrum.h's
+ * rule: every digit shown is right; exact 0 prints "0"), computing with
+ * more precision until they are certified.  iterate_point_root_str
+ * returns NULL for n = 0. */
+char *iterate_point_norm_str(const iterate_point_t p, slong digits);
+char *iterate_point_root_str(const iterate_point_t p, slong digits);
+/* The same for any ball-valued quantity recomputed by fn at rising
+ * precision (fn(out, ctx, prec)). */
+char *iterate_decimal_str(void (*fn)(arb_t, const void *, slong), const void *ctx,
+                          slong digits);
+
+#endif
