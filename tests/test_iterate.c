@@ -1,0 +1,513 @@
+/* test_iterate.c — iterates of a map (src/iterate.c) and word lengths by
+ * breadth-first search (src/wordlen.c).
+ *
+ *  - the fast route (Hall polynomials, squared tables alpha^(2^b)) against
+ *    plain collection written here (square-and-multiply with pcp_elt_mul,
+ *    no polynomials, one application of the map per step) on random maps
+ *    of random small groups, torsion included (printed seed);
+ *  - exact identities: in the Heisenberg group [a^m, b^n] = [a,b]^(mn)
+ *    (the commutator is bilinear in class 2; any text on nilpotent groups,
+ *    e.g. C. Drutu and M. Kapovich, Geometric Group Theory, 2018, ch. 13)
+ *    for 100-digit m and n; on a torus alpha^n acts by M^n (FLINT
+ *    fmpz_mat_pow); on the free nilpotent group of class 2 the second layer
+ *    of alpha^n is Lambda^2(M)^n (the second compound matrix, computed here
+ *    from 2x2 minors: gamma_2/gamma_3 of a free nilpotent group is the
+ *    exterior square of the abelianisation, M. Hall, The Theory of Groups,
+ *    1959, ch. 11);
+ *  - the homogeneous norm on a known iterate, 6^300 from the README's
+ *    example;
+ *  - word length in Z^3 with the standard generators is the 1-norm, on
+ *    every element of a ball (counted against the number of lattice points
+ *    of the cross-polytope, enumerated here). */
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <setjmp.h>
+#include <cmocka.h>
+#include <string.h>
+
+#include <flint/fmpz_mat.h>
+
+#include "endo.h"
+#include "iterate.h"
+#include "pres.h"
+#include "testutil.h"
+#include "wordlen.h"
+
+/* E := the map given by text on Q; 1 if it is well defined. */
+static int set_map(endo_t E, const nq_t Q, const char *text)
+{
+    slong X = Q->pres->gens->n;
+    expr_struct *im = flint_malloc(X * sizeof(expr_struct));
+    for (slong x = 0; x < X; x++)
+        expr_init(im + x);
+    nserr_t err;
+    nserr_init(err);
+    if (pres_parse_map(im, Q->pres, text, 1, 1, err) != NS_OK)
+        fail_msg("map '%s': %s", text, err->msg);
+    assert_int_equal(endo_set(E, Q, im, NULL, err), NS_OK);
+    for (slong x = 0; x < X; x++)
+        expr_clear(im + x);
+    flint_free(im);
+    return E->valid;
+}
+
+/* out := the element given by the word text. */
+static void eval_word(fmpz *out, const nq_t Q, const char *text)
+{
+    expr_t w;
+    expr_init(w);
+    nserr_t err;
+    nserr_init(err);
+    if (expr_parse(w, text, 1, 1, Q->pres->gens, err) != NS_OK)
+        fail_msg("word '%s': %s", text, err->msg);
+    assert_int_equal(nq_eval(Q, out, w, NULL, err), NS_OK);
+    expr_clear(w);
+}
+
+/* ---- plain collection ------------------------------------------------- */
+
+/* out := u^e by square-and-multiply on pcp_elt_mul (no Hall polynomials). */
+static void plain_pow(pcp_work_t W, fmpz *out, const fmpz *u, const fmpz_t e, slong n)
+{
+    fmpz *base = _fmpz_vec_init(n), *res = _fmpz_vec_init(n);
+    if (fmpz_sgn(e) < 0)
+        pcp_elt_inv(W, base, u);
+    else
+        _fmpz_vec_set(base, u, n);
+    fmpz_t E;
+    fmpz_init(E);
+    fmpz_abs(E, e);
+    for (slong b = (slong)fmpz_bits(E) - 1; b >= 0; b--) {
+        pcp_elt_mul(W, res, res, res);
+        if (fmpz_tstbit(E, (ulong)b))
+            pcp_elt_mul(W, res, res, base);
+    }
+    _fmpz_vec_set(out, res, n);
+    fmpz_clear(E);
+    _fmpz_vec_clear(base, n);
+    _fmpz_vec_clear(res, n);
+}
+
+/* x := alpha(x) from the images of the pc generators. */
+static void plain_apply(pcp_work_t W, fmpz *x, const fmpz *img, slong n)
+{
+    fmpz *acc = _fmpz_vec_init(n), *t = _fmpz_vec_init(n);
+    for (slong k = 0; k < n; k++) {
+        if (fmpz_is_zero(x + k))
+            continue;
+        plain_pow(W, t, img + k * n, x + k, n);
+        pcp_elt_mul(W, acc, acc, t);
+    }
+    _fmpz_vec_set(x, acc, n);
+    _fmpz_vec_clear(acc, n);
+    _fmpz_vec_clear(t, n);
+}
+
+/* A random word of length len in the generators of Q, exponents -2..2. */
+static void random_word(char *buf, size_t size, const nq_t Q, int len)
+{
+    size_t at = 0;
+    buf[0] = '\0';
+    for (int i = 0; i < len; i++) {
+        slong g = rng_range(0, Q->pres->gens->n - 1);
+        long e = rng_range(-2, 2);
+        if (e == 0)
+            e = 1;
+        at += (size_t)snprintf(buf + at, size - at, "%s%s^%ld", i ? " " : "",
+                               Q->pres->gens->name[g], e);
+    }
+}
+
+static void fast_iterates_should_agree_with_plain_collection(void **state)
+{
+    (void)state;
+    rng_seed_test("fast_iterates", 20261202u, "random maps of small groups, torsion included");
+    static const struct {
+        const char *pres;
+        slong cls;
+        int torsion;
+    } groups[] = {
+        {"<a, b | >", 3, 0},
+        {"<a, b | [a,b,a], [a,b,b]>", 2, 0},
+        {"<a, b, c | [a,b] = c, [a,c], [b,c]>", 2, 0},
+        {"<a, b | a^4>", 3, 1},
+        {"<a, b | [a,b]^3>", 3, 1},
+        {"<a, b | a^2, b^6>", 3, 1},
+        {"<a, b | a^6, [a,b,b]>", 3, 1},
+    };
+    slong ntors = 0, nfree = 0;
+    for (size_t g = 0; g < sizeof groups / sizeof groups[0]; g++) {
+        nq_t Q;
+        nq_init(Q);
+        compute_quotient(Q, groups[g].pres, groups[g].cls);
+        slong n = Q->pcp->n, X = Q->pres->gens->n;
+        for (slong trial = 0; trial < iters(6); trial++) {
+            char map[600], word[120];
+            size_t at = 0;
+            for (slong x = 0; x < X; x++) {
+                random_word(word, sizeof word, Q, (int)rng_range(1, 2));
+                at += (size_t)snprintf(map + at, sizeof map - at, "%s%s -> %s", x ? ", " : "",
+                                       Q->pres->gens->name[x], word);
+            }
+            endo_t E;
+            endo_init(E);
+            if (!set_map(E, Q, map)) {
+                endo_clear(E);
+                continue;
+            }
+            iterate_map_t M;
+            iterate_map_init(M);
+            nserr_t err;
+            nserr_init(err);
+            assert_int_equal(iterate_map_set(M, Q, E, NULL, err), NS_OK);
+            pcp_work_t W;
+            pcp_work_init(W, Q->pcp);
+            endo_ensure_pc_images(E, Q, W);
+            fmpz *x0 = _fmpz_vec_init(n), *fast = _fmpz_vec_init(n), *slow = _fmpz_vec_init(n);
+            random_word(word, sizeof word, Q, 3);
+            eval_word(x0, Q, word);
+            _fmpz_vec_set(slow, x0, n);
+            for (ulong k = 1; k <= 7; k++) {
+                plain_apply(W, slow, E->pc_img, n);
+                _fmpz_vec_set(fast, x0, n);
+                assert_int_equal(iterate_map_advance(M, fast, k, NULL, err), NS_OK);
+                if (!_fmpz_vec_equal(fast, slow, n)) {
+                    char *a = nq_elt_get_str(Q, fast), *b = nq_elt_get_str(Q, slow);
+                    fail_msg("%s class %ld, map %s, w = %s, k = %lu: fast %s, plain %s",
+                             groups[g].pres, (long)groups[g].cls, map, word, k, a, b);
+                }
+            }
+            if (groups[g].torsion)
+                ntors++;
+            else
+                nfree++;
+            _fmpz_vec_clear(x0, n);
+            _fmpz_vec_clear(fast, n);
+            _fmpz_vec_clear(slow, n);
+            pcp_work_clear(W);
+            iterate_map_clear(M);
+            endo_clear(E);
+        }
+        nq_clear(Q);
+    }
+    printf("# %ld torsion-free and %ld torsion cases\n", (long)nfree, (long)ntors);
+    assert_true(ntors >= 3 && nfree >= 3);
+}
+
+static void heisenberg_commutator_of_powers_should_be_power_of_commutator(void **state)
+{
+    (void)state;
+    nq_t Q;
+    nq_init(Q);
+    compute_quotient(Q, "<a, b | [a,b,a], [a,b,b]>", 2);
+    slong n = Q->pcp->n;
+    fmpz_t m, k, mk;
+    fmpz_init(m);
+    fmpz_init(k);
+    fmpz_init(mk);
+    /* two 100-digit numbers */
+    fmpz_set_str(m, "3141592653589793238462643383279502884197169399375105820974944592307816"
+                    "406286208998628034825342117067", 10);
+    fmpz_set_str(k, "-2718281828459045235360287471352662497757247093699959574966967627724076"
+                    "630353547594571382178525166427", 10);
+    fmpz_mul(mk, m, k);
+    fmpz *a = _fmpz_vec_init(n), *b = _fmpz_vec_init(n), *c = _fmpz_vec_init(n);
+    fmpz *lhs = _fmpz_vec_init(n), *rhs = _fmpz_vec_init(n);
+    eval_word(a, Q, "a");
+    eval_word(b, Q, "b");
+    eval_word(c, Q, "[a,b]");
+    pcp_work_t W;
+    pcp_work_init(W, Q->pcp);
+    pcp_elt_pow(W, a, a, m);
+    pcp_elt_pow(W, b, b, k);
+    pcp_elt_comm(W, lhs, a, b);
+    pcp_elt_pow(W, rhs, c, mk);
+    assert_true(_fmpz_vec_equal(lhs, rhs, n));
+    /* the same through the iterates of a -> a^m, b -> b^k: alpha^3([a,b]) =
+     * [a,b]^((mk)^3) */
+    char *ms = fmpz_get_str(NULL, 10, m), *ks = fmpz_get_str(NULL, 10, k);
+    char map[600];
+    snprintf(map, sizeof map, "a -> a^%s, b -> b^(%s)", ms, ks);
+    flint_free(ms);
+    flint_free(ks);
+    endo_t E;
+    endo_init(E);
+    assert_true(set_map(E, Q, map));
+    iterate_map_t M;
+    iterate_map_init(M);
+    nserr_t err;
+    nserr_init(err);
+    assert_int_equal(iterate_map_set(M, Q, E, NULL, err), NS_OK);
+    _fmpz_vec_set(lhs, c, n);
+    assert_int_equal(iterate_map_advance(M, lhs, 3, NULL, err), NS_OK);
+    fmpz_pow_ui(mk, mk, 3);
+    pcp_elt_pow(W, rhs, c, mk);
+    assert_true(_fmpz_vec_equal(lhs, rhs, n));
+    iterate_map_clear(M);
+    endo_clear(E);
+    pcp_work_clear(W);
+    _fmpz_vec_clear(a, n);
+    _fmpz_vec_clear(b, n);
+    _fmpz_vec_clear(c, n);
+    _fmpz_vec_clear(lhs, n);
+    _fmpz_vec_clear(rhs, n);
+    fmpz_clear(m);
+    fmpz_clear(k);
+    fmpz_clear(mk);
+    nq_clear(Q);
+}
+
+/* The map x_j -> prod_i x_i^(M[i][j]) of free(r) as text. */
+static void matrix_map_text(char *buf, size_t size, const nq_t Q, const fmpz_mat_t A)
+{
+    size_t at = 0;
+    slong r = fmpz_mat_nrows(A);
+    for (slong j = 0; j < r; j++) {
+        at += (size_t)snprintf(buf + at, size - at, "%s%s ->", j ? ", " : "",
+                               Q->pres->gens->name[j]);
+        for (slong i = 0; i < r; i++)
+            at += (size_t)snprintf(buf + at, size - at, " %s^%ld", Q->pres->gens->name[i],
+                                   fmpz_get_si(fmpz_mat_entry(A, i, j)));
+    }
+}
+
+static void torus_iterates_should_be_matrix_powers(void **state)
+{
+    (void)state;
+    rng_seed_test("torus", 20261203u, "random 3x3 matrices");
+    nq_t Q;
+    nq_init(Q);
+    compute_quotient(Q, "<a, b, c | [a,b], [a,c], [b,c]>", 1);
+    slong n = Q->pcp->n;
+    assert_int_equal(n, 3);
+    for (int trial = 0; trial < 4; trial++) {
+        fmpz_mat_t A, P;
+        fmpz_mat_init(A, 3, 3);
+        fmpz_mat_init(P, 3, 3);
+        for (int i = 0; i < 3; i++)
+            for (int j = 0; j < 3; j++)
+                fmpz_set_si(fmpz_mat_entry(A, i, j), rng_range(-3, 3));
+        char map[400];
+        matrix_map_text(map, sizeof map, Q, A);
+        endo_t E;
+        endo_init(E);
+        assert_true(set_map(E, Q, map));
+        iterate_map_t M;
+        iterate_map_init(M);
+        nserr_t err;
+        nserr_init(err);
+        assert_int_equal(iterate_map_set(M, Q, E, NULL, err), NS_OK);
+        ulong steps = 37;
+        fmpz_mat_pow(P, A, steps);
+        fmpz *x = _fmpz_vec_init(n);
+        iterate_point_t p;
+        iterate_point_init(p);
+        for (int j = 0; j < 3; j++) {
+            _fmpz_vec_zero(x, n);
+            fmpz_one(x + j);
+            assert_int_equal(iterate_map_advance(M, x, steps, NULL, err), NS_OK);
+            iterate_point_set(p, M, x, steps);
+            for (int i = 0; i < 3; i++)
+                assert_true(fmpz_equal(p->layers[0].coords + i, fmpz_mat_entry(P, i, j)));
+        }
+        iterate_point_clear(p);
+        _fmpz_vec_clear(x, n);
+        iterate_map_clear(M);
+        endo_clear(E);
+        fmpz_mat_clear(A);
+        fmpz_mat_clear(P);
+    }
+    nq_clear(Q);
+}
+
+/* Generator numbers (y, x) of a layer-2 basis label "[y,x]". */
+static void label_pair(const nq_t Q, const char *label, slong *y, slong *x)
+{
+    char a[32], b[32];
+    assert_int_equal(sscanf(label, "[%31[^,],%31[^]]]", a, b), 2);
+    *y = names_find(Q->pres->gens, a, strlen(a));
+    *x = names_find(Q->pres->gens, b, strlen(b));
+    assert_true(*y >= 0 && *x >= 0);
+}
+
+static void free_class2_second_layer_should_be_exterior_square(void **state)
+{
+    (void)state;
+    rng_seed_test("exterior_square", 20261204u, "random 3x3 matrices on free(3), class 2");
+    nq_t Q;
+    nq_init(Q);
+    compute_quotient(Q, "free(3)", 2);
+    slong n = Q->pcp->n;
+    for (int trial = 0; trial < 4; trial++) {
+        fmpz_mat_t A, L2, P;
+        fmpz_mat_init(A, 3, 3);
+        fmpz_mat_init(L2, 3, 3);
+        fmpz_mat_init(P, 3, 3);
+        for (int i = 0; i < 3; i++)
+            for (int j = 0; j < 3; j++)
+                fmpz_set_si(fmpz_mat_entry(A, i, j), rng_range(-2, 2));
+        char map[400];
+        matrix_map_text(map, sizeof map, Q, A);
+        endo_t E;
+        endo_init(E);
+        assert_true(set_map(E, Q, map));
+        iterate_map_t M;
+        iterate_map_init(M);
+        nserr_t err;
+        nserr_init(err);
+        assert_int_equal(iterate_map_set(M, Q, E, NULL, err), NS_OK);
+        const layer_struct *L = M->layers + 1;
+        assert_int_equal(L->free_rank, 3);
+        /* basis k is [y_k, x_k] = y_k ^ x_k in the exterior square;
+         * alpha(y ^ x) = A y ^ A x, whose coefficient on y_l ^ x_l is the
+         * minor A[y_l][y] A[x_l][x] - A[x_l][y] A[y_l][x] */
+        slong ys[3], xs[3];
+        for (int k = 0; k < 3; k++)
+            label_pair(Q, L->basis[k], ys + k, xs + k);
+        for (int l = 0; l < 3; l++)
+            for (int k = 0; k < 3; k++) {
+                fmpz *e = fmpz_mat_entry(L2, l, k);
+                fmpz_mul(e, fmpz_mat_entry(A, ys[l], ys[k]), fmpz_mat_entry(A, xs[l], xs[k]));
+                fmpz_submul(e, fmpz_mat_entry(A, xs[l], ys[k]), fmpz_mat_entry(A, ys[l], xs[k]));
+            }
+        ulong steps = 23;
+        fmpz_mat_pow(P, L2, steps);
+        fmpz *x = _fmpz_vec_init(n);
+        iterate_point_t p;
+        iterate_point_init(p);
+        for (int k = 0; k < 3; k++) {
+            char w[40];
+            snprintf(w, sizeof w, "[%s,%s]", Q->pres->gens->name[ys[k]],
+                     Q->pres->gens->name[xs[k]]);
+            eval_word(x, Q, w);
+            assert_int_equal(iterate_map_advance(M, x, steps, NULL, err), NS_OK);
+            iterate_point_set(p, M, x, steps);
+            for (int l = 0; l < 3; l++)
+                assert_true(fmpz_equal(p->layers[1].coords + l, fmpz_mat_entry(P, l, k)));
+        }
+        iterate_point_clear(p);
+        _fmpz_vec_clear(x, n);
+        iterate_map_clear(M);
+        endo_clear(E);
+        fmpz_mat_clear(A);
+        fmpz_mat_clear(L2);
+        fmpz_mat_clear(P);
+    }
+    nq_clear(Q);
+}
+
+static void norm_of_known_iterate_should_be_exact(void **state)
+{
+    (void)state;
+    /* README example: a -> a^2, b -> b^3 on the Heisenberg group multiplies
+     * [a,b] by 6 in the exponent: alpha^300([a,b]) = [a,b]^(6^300), whose
+     * norm is 6^150 and root sqrt 6. */
+    nq_t Q;
+    nq_init(Q);
+    compute_quotient(Q, "<a, b | [a,b,a], [a,b,b]>", 2);
+    endo_t E;
+    endo_init(E);
+    assert_true(set_map(E, Q, "a -> a^2, b -> b^3"));
+    iterate_map_t M;
+    iterate_map_init(M);
+    nserr_t err;
+    nserr_init(err);
+    assert_int_equal(iterate_map_set(M, Q, E, NULL, err), NS_OK);
+    slong n = Q->pcp->n;
+    fmpz *x = _fmpz_vec_init(n);
+    eval_word(x, Q, "[a,b]");
+    assert_int_equal(iterate_map_advance(M, x, 300, NULL, err), NS_OK);
+    iterate_point_t p;
+    iterate_point_init(p);
+    iterate_point_set(p, M, x, 300);
+    fmpz_t six;
+    fmpz_init(six);
+    fmpz_ui_pow_ui(six, 6, 300);
+    assert_true(fmpz_cmpabs(p->layers[1].coords, six) == 0);
+    assert_int_equal(p->layers[1].digits, 234); /* 300 log10 6 = 233.4 */
+    char *root = iterate_point_root_str(p, 12);
+    assert_string_equal(root, "2.44948974278"); /* sqrt 6 */
+    flint_free(root);
+    fmpz_clear(six);
+    iterate_point_clear(p);
+    _fmpz_vec_clear(x, n);
+    iterate_map_clear(M);
+    endo_clear(E);
+    nq_clear(Q);
+}
+
+static void word_length_in_z3_should_be_one_norm(void **state)
+{
+    (void)state;
+    nq_t Q;
+    nq_init(Q);
+    compute_quotient(Q, "<a, b, c | [a,b], [a,c], [b,c]>", 2);
+    assert_int_equal(Q->pcp->n, 3);
+    wordlen_t B;
+    wordlen_init(B, Q, 64UL << 20);
+    const int R = 6;
+    while (B->complete_radius < R)
+        assert_int_equal(wordlen_grow(B, NULL), 0);
+    fmpz *g = _fmpz_vec_init(3);
+    ulong inside = 0;
+    for (int i = -R - 1; i <= R + 1; i++)
+        for (int j = -R - 1; j <= R + 1; j++)
+            for (int k = -R - 1; k <= R + 1; k++) {
+                int one = abs(i) + abs(j) + abs(k);
+                fmpz_set_si(g, i);
+                fmpz_set_si(g + 1, j);
+                fmpz_set_si(g + 2, k);
+                slong d = wordlen_lookup(B, g);
+                if (one <= R) {
+                    assert_int_equal(d, one);
+                    inside++;
+                } else {
+                    assert_true(d < 0 || d == R + 1);
+                }
+            }
+    /* the ball of radius R holds exactly the cross-polytope's points (the
+     * partial sphere R + 1 aside) */
+    ulong upto = 0;
+    for (ulong t = 0; t < B->count; t++)
+        upto += B->dist[t] <= R;
+    assert_int_equal(upto, inside);
+    _fmpz_vec_clear(g, 3);
+    wordlen_clear(B);
+    nq_clear(Q);
+}
+
+static void word_length_should_stop_at_the_budget(void **state)
+{
+    (void)state;
+    nq_t Q;
+    nq_init(Q);
+    compute_quotient(Q, "<a, b | [a,b,a], [a,b,b]>", 2);
+    wordlen_t B;
+    wordlen_init(B, Q, 1UL << 16);
+    fmpz *g = _fmpz_vec_init(Q->pcp->n);
+    eval_word(g, Q, "[a,b]^100000");
+    assert_int_equal(wordlen_get(B, g, -1, NULL), -1);
+    assert_true(B->stopped);
+    assert_true(B->complete_radius > 0);
+    assert_true(wordlen_memory(B) <= (1UL << 16));
+    eval_word(g, Q, "a b^-1");
+    assert_int_equal(wordlen_get(B, g, -1, NULL), 2);
+    _fmpz_vec_clear(g, Q->pcp->n);
+    wordlen_clear(B);
+    nq_clear(Q);
+}
+
+int main(void)
+{
+    const struct CMUnitTest tests[] = {
+        cmocka_unit_test(fast_iterates_should_agree_with_plain_collection),
+        cmocka_unit_test(heisenberg_commutator_of_powers_should_be_power_of_commutator),
+        cmocka_unit_test(torus_iterates_should_be_matrix_powers),
+        cmocka_unit_test(free_class2_second_layer_should_be_exterior_square),
+        cmocka_unit_test(norm_of_known_iterate_should_be_exact),
+        cmocka_unit_test(word_length_in_z3_should_be_one_norm),
+        cmocka_unit_test(word_length_should_stop_at_the_budget),
+    };
+    return cmocka_run_group_tests(tests, NULL, NULL);
+}
