@@ -179,8 +179,11 @@ ns_status iterate_map_advance(iterate_map_t M, fmpz *x, ulong k,
     fmpz *y = _fmpz_vec_init(n);
     _fmpz_vec_set(y, x, n);
     /* one step at a time for small k (no squared tables needed), by the
-     * binary digits of k otherwise; the alpha^(2^b) commute */
-    if (k <= 4) {
+     * binary digits of k otherwise; the alpha^(2^b) commute.  Without Hall
+     * polynomials (finite relative orders) a squared table has huge
+     * exponents in its images, and applying it costs far more than k
+     * applications of alpha, whose images stay small: step singly there. */
+    if (k <= 4 || !M->hall) {
         for (ulong s = 0; s < k && !W->overflow; s++)
             table_apply(M, M->tab, y, y, W);
     } else {
