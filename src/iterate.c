@@ -24,9 +24,6 @@ void iterate_map_clear(iterate_map_t M)
     for (slong b = 0; b < M->ntab; b++)
         table_clear(M->tab + b, M->n, M->deg);
     flint_free(M->tab);
-    for (slong j = 0; j < M->nlayers; j++)
-        layer_clear(M->layers + j);
-    flint_free(M->layers);
     iterate_map_init(M);
 }
 
@@ -136,11 +133,9 @@ ns_status iterate_map_set(iterate_map_t M, const nq_t Q, const endo_t E,
         return cancelled(err);
     }
     M->nlayers = Q->class_reached;
-    M->layers = flint_malloc(FLINT_MAX(M->nlayers, 1) * sizeof(layer_struct));
-    for (slong j = 0; j < M->nlayers; j++) {
-        layer_init(M->layers + j);
-        layer_compute(M->layers + j, Q, j + 1);
-    }
+    M->layers = Q->layers;
+    for (slong j = 0; j < M->nlayers; j++)
+        layer_ensure_coords(Q->layers + j);
     return NS_OK;
 }
 

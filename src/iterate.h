@@ -55,7 +55,8 @@ typedef struct {
     slong ntab;          /* tables built: alpha^(2^0) .. alpha^(2^(ntab-1)) */
     iterate_table_struct *tab;
     slong nlayers;
-    layer_struct *layers; /* coordinates on each layer, owned */
+    const layer_struct *layers; /* the quotient's layers, borrowed (their
+                                   coordinates made sure of) */
 } iterate_map_struct;
 typedef iterate_map_struct iterate_map_t[1];
 
