@@ -127,7 +127,12 @@ int wordlen_grow(wordlen_t B, const ns_progress_t *progress)
     if (B->stopped)
         return 0;
     slong n = B->n;
-    ulong start = B->sphere_start, end = B->count;
+    if (!B->expanding) {
+        B->expanding = 1;
+        B->sphere_end = B->count;
+        B->cursor = B->sphere_start;
+    }
+    ulong start = B->cursor, end = B->sphere_end;
     int d = (int)B->complete_radius + 1;
     pcp_work_t W;
     pcp_work_init(W, B->Q->pcp);
@@ -135,7 +140,8 @@ int wordlen_grow(wordlen_t B, const ns_progress_t *progress)
     fmpz *u = _fmpz_vec_init(FLINT_MAX(n, 1));
     slong *key = flint_malloc(FLINT_MAX(n, 1) * sizeof(slong));
     int cancelled = 0;
-    for (ulong i = start; i < end && !B->stopped && !cancelled; i++) {
+    ulong i;
+    for (i = start; i < end && !B->stopped && !cancelled; i++) {
         for (slong g = 0; g < B->ngen && !B->stopped; g++) {
             for (slong k = 0; k < n; k++)
                 fmpz_set_si(u + k, B->elts[i * n + k]);
@@ -163,18 +169,19 @@ int wordlen_grow(wordlen_t B, const ns_progress_t *progress)
                 B->stop_reason = "memory budget reached";
             }
         }
+        if (cancelled)
+            break; /* element i is expanded again on the next call */
         /* a poll between elements too, for balls of cheap elements */
         if (((i - start) & 0x3ff) == 0x3ff && progress &&
-            ns_progress_report(progress, NULL, -1.0))
+            ns_progress_report(progress, NULL, -1.0)) {
             cancelled = 1;
+            i++;
+            break;
+        }
     }
-    if (cancelled) {
-        /* back to the ball as it was */
-        B->count = end;
-        rehash(B, B->nslot);
-        B->stopped = 0;
-        B->stop_reason = NULL;
-    } else if (!B->stopped) {
+    B->cursor = i;
+    if (!cancelled && !B->stopped) {
+        B->expanding = 0;
         B->complete_radius = d;
         B->sphere_start = end;
         if (B->count == end) {

@@ -36,6 +36,9 @@ typedef struct {
     ulong nslot;        /* power of 2 */
     slong complete_radius; /* every element of length <= this is in the ball */
     ulong sphere_start;    /* first element of the sphere complete_radius */
+    ulong sphere_end;      /* ... and one past its last (when expanding) */
+    ulong cursor;          /* the next element of that sphere to expand */
+    int expanding;         /* 1: a sphere is half expanded (resumable) */
     int stopped;           /* 1: the budget (or a coordinate overflow) ended
                               the search */
     const char *stop_reason; /* static text when stopped */
@@ -51,14 +54,18 @@ void wordlen_clear(wordlen_t B);
 size_t wordlen_memory(const wordlen_t B);
 
 /* Grows the ball one sphere.  Returns 0 when the sphere was added (or the
- * search had already stopped: see B->stopped), 1 when progress cancelled
- * (the ball is then as before). */
+ * search had already stopped: see B->stopped), 1 when progress cancelled:
+ * the next call resumes where this one stopped, and what was found so far
+ * is already exact (every element found is at distance complete_radius + 1,
+ * since the smaller ones are all in the ball), so a caller with a time
+ * budget per call (the explorer) grows a large sphere in slices. */
 int wordlen_grow(wordlen_t B, const ns_progress_t *progress);
 
 /* The word length of g, growing the ball until g is in it, the budget
  * ends the search, or the ball reaches max_radius (< 0: no limit).
  * Returns the length, -1 when unknown (then the length is
- * > B->complete_radius), -2 when progress cancelled. */
+ * > B->complete_radius), -2 when progress cancelled (call again to go
+ * on). */
 slong wordlen_get(wordlen_t B, const fmpz *g, slong max_radius, const ns_progress_t *progress);
 
 /* The length if g is already in the ball, else -1; never grows. */

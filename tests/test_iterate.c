@@ -498,6 +498,45 @@ static void word_length_should_stop_at_the_budget(void **state)
     nq_clear(Q);
 }
 
+static int cancel_always(void *ctx, const char *stage, double fraction)
+{
+    (void)stage;
+    (void)fraction;
+    ++*(int *)ctx;
+    return 1;
+}
+
+static void word_length_should_resume_after_a_cancel(void **state)
+{
+    (void)state;
+    /* the same ball grown in one go and in slices cut by a progress hook
+     * that cancels at every poll (the explorer's time budget) */
+    nq_t Q;
+    nq_init(Q);
+    compute_quotient(Q, "<a, b | [a,b,a], [a,b,b]>", 2);
+    wordlen_t B1, B2;
+    wordlen_init(B1, Q, 64UL << 20);
+    wordlen_init(B2, Q, 64UL << 20);
+    int calls = 0;
+    ns_progress_t hook = {cancel_always, &calls};
+    while (B1->complete_radius < 16)
+        wordlen_grow(B1, &hook);
+    while (B2->complete_radius < 16)
+        assert_int_equal(wordlen_grow(B2, NULL), 0);
+    assert_true(calls > 0);
+    assert_true(B1->count >= B2->count);
+    fmpz *g = _fmpz_vec_init(Q->pcp->n);
+    for (ulong t = 0; t < B2->count; t++) {
+        for (slong k = 0; k < Q->pcp->n; k++)
+            fmpz_set_si(g + k, B2->elts[t * Q->pcp->n + k]);
+        assert_int_equal(wordlen_lookup(B1, g), B2->dist[t]);
+    }
+    _fmpz_vec_clear(g, Q->pcp->n);
+    wordlen_clear(B1);
+    wordlen_clear(B2);
+    nq_clear(Q);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -508,6 +547,7 @@ int main(void)
         cmocka_unit_test(norm_of_known_iterate_should_be_exact),
         cmocka_unit_test(word_length_in_z3_should_be_one_norm),
         cmocka_unit_test(word_length_should_stop_at_the_budget),
+        cmocka_unit_test(word_length_should_resume_after_a_cancel),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
