@@ -36,7 +36,15 @@ enum {
     ACT_DISCARD = 128 /* remove the recovery copy */
 };
 
-typedef enum { SCREEN_MAIN, SCREEN_LAYER, SCREEN_HELP, SCREEN_MEMBERS, SCREEN_FULL } screen_id;
+typedef enum {
+    SCREEN_MAIN,
+    SCREEN_LAYER,
+    SCREEN_HELP,
+    SCREEN_MEMBERS,
+    SCREEN_FULL,
+    SCREEN_ITERATE,
+    SCREEN_BOUNDS
+} screen_id;
 
 typedef enum {
     PROMPT_NONE,
@@ -47,7 +55,8 @@ typedef enum {
     PROMPT_OPEN,         /* a path to open */
     PROMPT_CONFIRM_QUIT, /* unsaved changes: y quits */
     PROMPT_CONFIRM_OPEN, /* unsaved changes: y goes on to PROMPT_OPEN */
-    PROMPT_RECOVER       /* a recovery copy exists: r restores, d discards */
+    PROMPT_RECOVER,      /* a recovery copy exists: r restores, d discards */
+    PROMPT_ITERATE       /* an element for the iterates screen */
 } prompt_kind;
 
 /* Keys: a Unicode character is its code point; a curses function key
@@ -58,6 +67,8 @@ typedef enum {
 
 typedef struct explorer_app_struct explorer_app;
 typedef struct members_struct members_t; /* screen_members.c */
+/* The iterates screen's run (screen_iterate.c), NULL until it is used. */
+typedef struct screen_iterate_state screen_iterate_state;
 
 /* One line of a key table: the action runs on `key`; `keys` and `help` are
  * what the help screen shows (the first binding of an action carries
@@ -149,6 +160,7 @@ struct explorer_app_struct {
     int doc_is_member;  /* the document came from it and has no file yet */
 
     int utf8; /* the terminal takes UTF-8: use ρ, ↦, … */
+    screen_iterate_state *iter; /* the iterates screen's run, owned */
     int running;
 };
 
@@ -176,6 +188,32 @@ int members_show(explorer_app *app, const char *path);
 /* Back to the member list from another screen (a key action). */
 int members_act_return(explorer_app *app);
 void members_free(members_t *m);
+/* The iterates screen (screen_iterate.c): _open enters it (running the
+ * session's iterate word, else the selected generator); _busy says a run
+ * wants computing time, which the main loop gives by calling _tick (one
+ * slice of at most 25 ms) whenever no key is waiting; _forget drops the
+ * run (the analysis it borrows changed); _set_word and _check_word serve
+ * PROMPT_ITERATE. */
+void screen_iterate_draw(explorer_app *app);
+const ui_keymap *screen_iterate_keys(void);
+void screen_iterate_open(explorer_app *app);
+int screen_iterate_busy(const explorer_app *app);
+int screen_iterate_tick(explorer_app *app);
+void screen_iterate_forget(explorer_app *app);
+void screen_iterate_set_word(explorer_app *app, const char *text);
+void screen_iterate_check_word(explorer_app *app, const char *text);
+
+/* The bounds chart and the eigenvalue picture (screen_charts.c); the rows
+ * of the picture for layer L in w x h cells plus a legend line (*nrows of
+ * them; free each and the array with free()), NULL when there is nothing
+ * to draw. */
+void screen_bounds_draw(explorer_app *app);
+const ui_keymap *screen_bounds_keys(void);
+char **screen_charts_eigen_rows(const explorer_app *app, const analysis_layer_struct *L, int w,
+                                int h, int *nrows);
+
+/* Queues a key read during a computation for the main loop (explorer.c). */
+void app_typeahead_push(explorer_app *app, int key);
 
 /* Draws the prompt over the bottom of the frame. */
 void prompt_draw(explorer_app *app);

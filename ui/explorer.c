@@ -248,6 +248,12 @@ static void explorer_draw(explorer_app *app)
         case SCREEN_FULL:
             screen_full_draw(app);
             break;
+        case SCREEN_ITERATE:
+            screen_iterate_draw(app);
+            break;
+        case SCREEN_BOUNDS:
+            screen_bounds_draw(app);
+            break;
         }
         if (app->prompt != PROMPT_NONE)
             prompt_draw(app); /* places the cursor last */
@@ -315,7 +321,7 @@ static void explorer_draw_busy(explorer_progress *p)
 }
 
 /* Queues a key typed during a computation; the queue grows as needed. */
-static void explorer_typeahead_push(explorer_app *app, int key)
+void app_typeahead_push(explorer_app *app, int key)
 {
     if (app->typeahead_head > 0 && app->typeahead_head + app->ntypeahead == app->typeahead_cap) {
         memmove(app->typeahead, app->typeahead + app->typeahead_head,
@@ -353,7 +359,7 @@ static int explorer_progress_cb(void *ctx, const char *stage, double fraction)
         else if (r == KEY_CODE_YES && ch == KEY_RESIZE)
             explorer_draw_busy(p); /* the analysis is half-built: do not paint it */
         else
-            explorer_typeahead_push(app, r == KEY_CODE_YES ? UIKEY_FN((int)ch) : (int)ch);
+            app_typeahead_push(app, r == KEY_CODE_YES ? UIKEY_FN((int)ch) : (int)ch);
     }
     if (explorer_term_signal)
         p->cancelled = 1; /* the main loop keeps the work and ends */
@@ -583,6 +589,7 @@ static int explorer_apply_map(explorer_app *app)
                      "map not analysed: cancelled (e edits an image, c computes again)");
         return 1;
     }
+    screen_iterate_forget(app); /* its run iterates the old map */
     explorer_analysis_free(app->A);
     app->A = M;
     if (st != NS_OK) {
@@ -599,6 +606,7 @@ static int explorer_apply_map(explorer_app *app)
  * analysis that borrows it and has no map yet. */
 static void explorer_adopt_analysis(explorer_app *app, analysis_struct *Q)
 {
+    screen_iterate_forget(app);     /* its run borrows the old analysis */
     explorer_analysis_free(app->A); /* it borrows app->Q: first */
     explorer_analysis_free(app->Q);
     app->Q = Q;
@@ -1015,6 +1023,10 @@ static const ui_keymap *explorer_keymap(const explorer_app *app)
         return screen_members_keys();
     case SCREEN_FULL:
         return screen_full_keys();
+    case SCREEN_ITERATE:
+        return screen_iterate_keys();
+    case SCREEN_BOUNDS:
+        return screen_bounds_keys();
     case SCREEN_MAIN:
         break;
     }
@@ -1146,9 +1158,15 @@ static void explorer_loop(explorer_app *app)
             explorer_draw(app);
         if (app->recovery_due > 0 && explorer_now() >= app->recovery_due)
             explorer_write_recovery(app);
+        /* a run on the iterates screen computes while no key waits */
+        int busy = screen_iterate_busy(app);
+        if (busy)
+            timeout(0);
         int key = explorer_read_key(app);
+        if (busy)
+            timeout(EXPLORER_POLL_MS);
         if (key < 0) {
-            flags = ACT_NONE;
+            flags = busy ? screen_iterate_tick(app) : ACT_NONE;
             continue;
         }
         flags = explorer_key(app, key);
@@ -1210,6 +1228,7 @@ static void explorer_app_init(explorer_app *app)
 
 static void explorer_app_clear(explorer_app *app)
 {
+    screen_iterate_forget(app);
     session_clear(app->doc);
     session_clear(app->pending_doc);
     session_clear(app->recovered);

@@ -26,7 +26,7 @@ static char *prompt_strdup(const char *s)
 static int prompt_is_text(prompt_kind k)
 {
     return k == PROMPT_IMAGE || k == PROMPT_GROUP || k == PROMPT_TITLE || k == PROMPT_SAVE_AS ||
-           k == PROMPT_OPEN;
+           k == PROMPT_OPEN || k == PROMPT_ITERATE;
 }
 
 void prompt_open(explorer_app *app, prompt_kind kind, const char *text)
@@ -130,6 +130,9 @@ void prompt_check(explorer_app *app)
     case PROMPT_TITLE:
         snprintf(app->edit_msg, sizeof app->edit_msg, "Enter sets the title, Esc leaves it");
         break;
+    case PROMPT_ITERATE:
+        screen_iterate_check_word(app, text);
+        break;
     case PROMPT_SAVE_AS:
     case PROMPT_OPEN:
         /* an empty name is not an error yet, only not ready: Enter beeps */
@@ -168,6 +171,10 @@ static void prompt_label(explorer_app *app, char *label, size_t n, char *prefix,
     case PROMPT_OPEN:
         snprintf(label, n, "Open a session file");
         snprintf(prefix, pn, "file ");
+        break;
+    case PROMPT_ITERATE:
+        snprintf(label, n, "Element to iterate (a word in the generators)");
+        snprintf(prefix, pn, "w = ");
         break;
     default:
         label[0] = prefix[0] = '\0';
@@ -349,6 +356,9 @@ static int act_apply(explorer_app *app)
         free(app->pending_path);
         app->pending_path = prompt_strdup(text);
         return ACT_SAVE | ACT_REDRAW;
+    case PROMPT_ITERATE:
+        screen_iterate_set_word(app, text);
+        return ACT_REDRAW;
     case PROMPT_OPEN: {
         size_t tl = strlen(text);
         if (tl > 6 && !strcmp(text + tl - 6, ".jsonl")) /* scan results: the member list */

@@ -183,6 +183,13 @@ static void detail_build(explorer_app *app, detail_text *t)
                    lam, (long)(k + 1), L->ev_abs_str[k]);
     detail_add(t, ROLE_NORMAL, "  %ld of modulus > 1, %ld of modulus exactly 1 (decided exactly)",
                (long)L->n_above_one, (long)L->n_unimodular);
+    int npic = 0; /* the eigenvalues in the complex plane (screen_charts.c) */
+    char **pic = screen_charts_eigen_rows(app, L, 36, 9, &npic);
+    for (int r = 0; r < npic; r++) {
+        detail_add(t, ROLE_NUMBER, "  %s", pic[r]);
+        free(pic[r]);
+    }
+    free(pic);
     detail_add(t, ROLE_NORMAL, "%s", "");
     char *d = fmpz_get_str(NULL, 10, L->det);
     char *e = fmpz_get_str(NULL, 10, L->det_i_minus);

@@ -676,6 +676,18 @@ static int act_help(explorer_app *app)
     return ACT_REDRAW;
 }
 
+static int act_iterates(explorer_app *app)
+{
+    screen_iterate_open(app);
+    return ACT_REDRAW;
+}
+
+static int act_bounds(explorer_app *app)
+{
+    app->screen = SCREEN_BOUNDS;
+    return ACT_REDRAW;
+}
+
 static int act_quit(explorer_app *app)
 {
     if (app->vm->dirty) {
@@ -720,6 +732,8 @@ static const ui_binding main_bindings[] = {
     {'v', act_full, "v", "every value in full: the selected image and layer, all digits of "
      "every number, whole lines where the screen had to cut", "v full"},
     {'i', act_identity_image, "i", "map the selected generator to itself", NULL},
+    {'n', act_iterates, "n", "iterates of the selected generator (or the session's element): table and plot", "n iterates"},
+    {'b', act_bounds, "b", "the bounds as a chart: rho_j^(1/j) per layer, growth rate, max rho_k", NULL},
     {'c', act_recompute, "c", "compute again: after a cancel, what was cancelled", NULL},
     {'t', act_edit_title, "t", "edit the title of the session", NULL},
     {'w', act_save_as, "w", "save as: write the session to a new path", NULL},
