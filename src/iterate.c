@@ -8,6 +8,21 @@
 void iterate_map_init(iterate_map_t M)
 {
     memset(M, 0, sizeof(iterate_map_struct));
+    fmpz_init(M->pow10);
+    M->pow10_k = -1;
+}
+
+static void poly_clear(iterate_table_struct *t)
+{
+    if (t->nmono) {
+        _fmpz_vec_clear(t->nz_val, FLINT_MAX(t->nz_start[t->nmono], 1));
+        flint_free(t->nz_idx);
+        flint_free(t->nz_start);
+        flint_free(t->mono);
+    }
+    t->nmono = 0;
+    t->mono = t->nz_start = t->nz_idx = NULL;
+    t->nz_val = NULL;
 }
 
 static void table_clear(iterate_table_struct *t, slong n, slong deg)
@@ -17,6 +32,182 @@ static void table_clear(iterate_table_struct *t, slong n, slong deg)
     if (t->diff)
         _fmpz_vec_clear(t->diff, FLINT_MAX(n * (deg + 1) * n, 1));
     t->img = t->diff = NULL;
+    poly_clear(t);
+}
+
+/* ---- the map as a polynomial in the exponents ------------------------- */
+
+#define ITERATE_MAX_MONO 3000
+
+/* Appends every d >= 0 on variables i.. with sum w_i d_i <= budget to
+ * list (cur holds the choices for variables < i); stops past the cap. */
+static void mono_enum(slong **list, slong *len, slong *alloc, slong *cur, const slong *w, slong n,
+                      slong i, slong budget)
+{
+    if (*len > ITERATE_MAX_MONO)
+        return;
+    if (i == n) {
+        if (*len == *alloc) {
+            *alloc = 2 * *alloc + 16;
+            *list = flint_realloc(*list, *alloc * n * sizeof(slong));
+        }
+        memcpy(*list + *len * n, cur, n * sizeof(slong));
+        (*len)++;
+        return;
+    }
+    for (slong d = 0; d * w[i] <= budget; d++) {
+        cur[i] = d;
+        mono_enum(list, len, alloc, cur, w, n, i + 1, budget - d * w[i]);
+    }
+    cur[i] = 0;
+}
+
+/* Index of the exponent vector d in the lexicographically sorted list. */
+static slong mono_find(const slong *list, slong len, slong n, const slong *d)
+{
+    slong lo = 0, hi = len - 1;
+    while (lo <= hi) {
+        slong mid = (lo + hi) / 2;
+        int c = 0;
+        for (slong i = 0; i < n && c == 0; i++)
+            c = (list[mid * n + i] > d[i]) - (list[mid * n + i] < d[i]);
+        if (c == 0)
+            return mid;
+        if (c < 0)
+            lo = mid + 1;
+        else
+            hi = mid - 1;
+    }
+    return -1;
+}
+
+/* out := the polynomial of t at x. */
+static void poly_eval(const iterate_map_struct *M, const iterate_table_struct *t, fmpz *out,
+                      const fmpz *x)
+{
+    slong n = M->n, c = M->deg;
+    /* binom(x_i, d) for d = 0..c */
+    fmpz *B = _fmpz_vec_init(n * (c + 1));
+    fmpz_t f, prod, acc;
+    fmpz_init(f);
+    fmpz_init(prod);
+    fmpz_init(acc);
+    for (slong i = 0; i < n; i++) {
+        fmpz *b = B + i * (c + 1);
+        fmpz_one(b);
+        slong top = c / M->Q->pcp->weight[i];
+        for (slong d = 1; d <= top && !fmpz_is_zero(b + d - 1); d++) {
+            fmpz_sub_ui(f, x + i, (ulong)(d - 1));
+            fmpz_mul(b + d, b + d - 1, f);
+            fmpz_divexact_ui(b + d, b + d, (ulong)d);
+        }
+    }
+    fmpz *res = _fmpz_vec_init(n);
+    for (slong m = 0; m < t->nmono; m++) {
+        const slong *d = t->mono + m * n;
+        fmpz_one(prod);
+        for (slong i = 0; i < n && !fmpz_is_zero(prod); i++)
+            if (d[i])
+                fmpz_mul(prod, prod, B + i * (c + 1) + d[i]);
+        if (fmpz_is_zero(prod))
+            continue;
+        for (slong q = t->nz_start[m]; q < t->nz_start[m + 1]; q++)
+            fmpz_addmul(res + t->nz_idx[q], t->nz_val + q, prod);
+    }
+    _fmpz_vec_swap(out, res, n);
+    _fmpz_vec_clear(res, n);
+    _fmpz_vec_clear(B, n * (c + 1));
+    fmpz_clear(f);
+    fmpz_clear(prod);
+    fmpz_clear(acc);
+}
+
+/* Builds t's polynomial from its values at the lattice points: vals
+ * (nmono x n) at the points mono.  Newton's formula on the lower set:
+ * coef_d = sum_(e <= d) (-1)^|d - e| prod_i binom(d_i, e_i) f(e). */
+static void poly_interpolate(const iterate_map_struct *M, iterate_table_struct *t,
+                             const fmpz *vals)
+{
+    slong n = M->n, N = t->nmono;
+    fmpz *coef = _fmpz_vec_init(N * n);
+    slong *e = flint_malloc(n * sizeof(slong)), *nzv = flint_malloc(n * sizeof(slong));
+    fmpz_t w;
+    fmpz_init(w);
+    for (slong m = 0; m < N; m++) {
+        const slong *d = t->mono + m * n;
+        slong nnz = 0;
+        for (slong i = 0; i < n; i++) {
+            e[i] = 0;
+            if (d[i])
+                nzv[nnz++] = i;
+        }
+        /* mixed-radix walk over e <= d on the nonzero positions */
+        for (;;) {
+            slong idx = mono_find(t->mono, N, n, e);
+            /* weight prod_i binom(d_i, e_i), sign (-1)^(sum d_i - e_i) */
+            fmpz_t b;
+            fmpz_init(b);
+            fmpz_one(w);
+            slong par = 0;
+            for (slong q = 0; q < nnz; q++) {
+                slong i = nzv[q];
+                fmpz_bin_uiui(b, (ulong)d[i], (ulong)e[i]);
+                fmpz_mul(w, w, b);
+                par += d[i] - e[i];
+            }
+            fmpz_clear(b);
+            if (par & 1)
+                fmpz_neg(w, w);
+            _fmpz_vec_scalar_addmul_fmpz(coef + m * n, vals + idx * n, n, w);
+            slong q = 0;
+            while (q < nnz && e[nzv[q]] == d[nzv[q]]) {
+                e[nzv[q]] = 0;
+                q++;
+            }
+            if (q == nnz)
+                break;
+            e[nzv[q]]++;
+        }
+    }
+    /* sparse runs of the nonzero coefficients */
+    slong nz = 0;
+    for (slong q = 0; q < N * n; q++)
+        nz += !fmpz_is_zero(coef + q);
+    t->nz_start = flint_malloc((N + 1) * sizeof(slong));
+    t->nz_idx = flint_malloc(FLINT_MAX(nz, 1) * sizeof(slong));
+    t->nz_val = _fmpz_vec_init(FLINT_MAX(nz, 1));
+    nz = 0;
+    for (slong m = 0; m < N; m++) {
+        t->nz_start[m] = nz;
+        for (slong l = 0; l < n; l++)
+            if (!fmpz_is_zero(coef + m * n + l)) {
+                t->nz_idx[nz] = l;
+                fmpz_swap(t->nz_val + nz, coef + m * n + l);
+                nz++;
+            }
+    }
+    t->nz_start[N] = nz;
+    fmpz_clear(w);
+    flint_free(e);
+    flint_free(nzv);
+    _fmpz_vec_clear(coef, N * n);
+}
+
+/* The lattice points of the basis into t (t->mono, t->nmono); 0 when the
+ * basis is too large. */
+static int poly_points(const iterate_map_struct *M, iterate_table_struct *t)
+{
+    slong n = M->n, len = 0, alloc = 0;
+    slong *list = NULL, *cur = flint_calloc(FLINT_MAX(n, 1), sizeof(slong));
+    mono_enum(&list, &len, &alloc, cur, M->Q->pcp->weight, n, 0, M->deg);
+    flint_free(cur);
+    if (len > ITERATE_MAX_MONO || n == 0) {
+        flint_free(list);
+        return 0;
+    }
+    t->mono = list;
+    t->nmono = len;
+    return 1;
 }
 
 void iterate_map_clear(iterate_map_t M)
@@ -24,6 +215,7 @@ void iterate_map_clear(iterate_map_t M)
     for (slong b = 0; b < M->ntab; b++)
         table_clear(M->tab + b, M->n, M->deg);
     flint_free(M->tab);
+    fmpz_clear(M->pow10);
     iterate_map_init(M);
 }
 
@@ -78,6 +270,10 @@ static void table_apply(iterate_map_t M, const iterate_table_struct *t, fmpz *ou
                         const fmpz *g, pcp_work_t W)
 {
     slong n = M->n;
+    if (t->nmono) {
+        poly_eval(M, t, out, g);
+        return;
+    }
     fmpz *acc = _fmpz_vec_init(FLINT_MAX(n, 1));
     fmpz *p = _fmpz_vec_init(FLINT_MAX(n, 1));
     int first = 1;
@@ -94,6 +290,78 @@ static void table_apply(iterate_map_t M, const iterate_table_struct *t, fmpz *ou
     _fmpz_vec_set(out, acc, n);
     _fmpz_vec_clear(acc, FLINT_MAX(n, 1));
     _fmpz_vec_clear(p, FLINT_MAX(n, 1));
+}
+
+/* The polynomial of the first table, from collection at the lattice
+ * points, then checked by collection at points off the lattice set (with
+ * entries up to 40 in absolute value); dropped when a check fails. */
+static void poly_build_first(iterate_map_t M, iterate_table_struct *t, pcp_work_t W)
+{
+    slong n = M->n;
+    iterate_table_struct tmp = *t;
+    tmp.nmono = 0;
+    tmp.mono = NULL;
+    if (!poly_points(M, &tmp))
+        return;
+    slong N = tmp.nmono;
+    fmpz *vals = _fmpz_vec_init(N * n), *pt = _fmpz_vec_init(n), *a = _fmpz_vec_init(n);
+    tmp.nmono = 0; /* table_apply by collection while sampling */
+    for (slong m = 0; m < N && !W->overflow; m++) {
+        for (slong i = 0; i < n; i++)
+            fmpz_set_si(pt + i, tmp.mono[m * n + i]);
+        table_apply(M, &tmp, vals + m * n, pt, W);
+    }
+    tmp.nmono = N;
+    if (!W->overflow)
+        poly_interpolate(M, &tmp, vals);
+    int ok = !W->overflow;
+    ulong r = 0x2545F4914F6CDD1DUL;
+    for (int check = 0; check < 4 && ok; check++) {
+        for (slong i = 0; i < n; i++) {
+            r ^= r << 13;
+            r ^= r >> 7;
+            r ^= r << 17;
+            fmpz_set_si(pt + i, (slong)(r % 81) - 40);
+        }
+        iterate_table_struct coll = *t;
+        coll.nmono = 0;
+        table_apply(M, &coll, a, pt, W);
+        poly_eval(M, &tmp, vals, pt);
+        ok = !W->overflow && _fmpz_vec_equal(a, vals, n);
+    }
+    if (ok) {
+        t->nmono = tmp.nmono;
+        t->mono = tmp.mono;
+        t->nz_start = tmp.nz_start;
+        t->nz_idx = tmp.nz_idx;
+        t->nz_val = tmp.nz_val;
+    } else {
+        poly_clear(&tmp);
+    }
+    _fmpz_vec_clear(vals, N * n);
+    _fmpz_vec_clear(pt, n);
+    _fmpz_vec_clear(a, n);
+}
+
+/* The polynomial of the square of table last into t (same basis): its
+ * values at the lattice points are last composed with itself. */
+static void poly_build_square(iterate_map_t M, const iterate_table_struct *last,
+                              iterate_table_struct *t)
+{
+    slong n = M->n, N = last->nmono;
+    t->mono = flint_malloc(N * n * sizeof(slong));
+    memcpy(t->mono, last->mono, N * n * sizeof(slong));
+    t->nmono = N;
+    fmpz *vals = _fmpz_vec_init(N * n), *pt = _fmpz_vec_init(n);
+    for (slong m = 0; m < N; m++) {
+        for (slong i = 0; i < n; i++)
+            fmpz_set_si(pt + i, t->mono[m * n + i]);
+        poly_eval(M, last, pt, pt);
+        poly_eval(M, last, vals + m * n, pt);
+    }
+    poly_interpolate(M, t, vals);
+    _fmpz_vec_clear(vals, N * n);
+    _fmpz_vec_clear(pt, n);
 }
 
 static ns_status cancelled(nserr_t err)
@@ -126,6 +394,8 @@ ns_status iterate_map_set(iterate_map_t M, const nq_t Q, const endo_t E,
     _fmpz_vec_set(M->tab->img, E->pc_img, n * n);
     if (M->hall)
         table_make_diff(M, M->tab, W);
+    if (M->hall && !W->overflow)
+        poly_build_first(M, M->tab, W);
     int stopped = W->overflow;
     pcp_work_clear(W);
     if (stopped) {
@@ -146,11 +416,14 @@ static int ensure_table(iterate_map_t M, slong b, pcp_work_t W)
     slong n = M->n;
     while (M->ntab <= b && !W->overflow) {
         iterate_table_struct *last = M->tab + M->ntab - 1;
-        iterate_table_struct t = {NULL, NULL};
+        iterate_table_struct t;
+        memset(&t, 0, sizeof t);
         t.img = _fmpz_vec_init(FLINT_MAX(n * n, 1));
         for (slong k = 0; k < n && !W->overflow; k++)
             table_apply(M, last, t.img + k * n, last->img + k * n, W);
-        if (M->hall && !W->overflow)
+        if (last->nmono)
+            poly_build_square(M, last, &t); /* no collection needed */
+        else if (M->hall && !W->overflow)
             table_make_diff(M, &t, W);
         if (W->overflow) {
             table_clear(&t, n, M->deg);
@@ -220,22 +493,24 @@ void iterate_point_clear(iterate_point_t p)
     iterate_point_init(p);
 }
 
-/* Decimal digits of |x|; 1 for 0. */
-static slong decimal_digits(const fmpz_t x)
+/* Decimal digits of |x|; 1 for 0.  The bit length brackets log10 |x|;
+ * only when a power of ten falls inside the bracket is it computed. */
+static slong decimal_digits(const iterate_map_struct *M, const fmpz_t x)
 {
     if (fmpz_is_zero(x))
         return 1;
-    slong d = (slong)fmpz_sizeinbase(x, 10); /* exact or one too many */
-    fmpz_t t, a;
-    fmpz_init(t);
-    fmpz_init(a);
-    fmpz_abs(a, x);
-    fmpz_ui_pow_ui(t, 10, (ulong)(d - 1));
-    if (fmpz_cmp(a, t) < 0)
-        d--;
-    fmpz_clear(t);
-    fmpz_clear(a);
-    return d;
+    ulong b = fmpz_bits(x); /* 2^(b-1) <= |x| < 2^b */
+    const double l2 = 0.30102999566398119521;
+    slong lo = (slong)((double)(b - 1) * l2 - 1e-9), hi = (slong)((double)b * l2 + 1e-9);
+    if (lo == hi)
+        return lo + 1;
+    /* 10^hi may lie in the bracket: compare */
+    iterate_map_struct *C = (iterate_map_struct *)M; /* a cache: M is logically const */
+    if (C->pow10_k != hi) {
+        fmpz_ui_pow_ui(C->pow10, 10, (ulong)hi);
+        C->pow10_k = hi;
+    }
+    return fmpz_cmpabs(x, C->pow10) >= 0 ? hi + 1 : hi;
 }
 
 void iterate_point_set(iterate_point_t p, const iterate_map_t M, const fmpz *x, ulong n)
@@ -288,7 +563,7 @@ void iterate_point_set(iterate_point_t p, const iterate_map_t M, const fmpz *x, 
         for (slong a = 0; a < P->ntors; a++)
             if (fmpz_cmpabs(P->torsion + a, big) > 0)
                 fmpz_abs(big, P->torsion + a);
-        P->digits = decimal_digits(big);
+        P->digits = decimal_digits(M, big);
     }
     fmpz_clear(big);
 }
@@ -302,7 +577,7 @@ void iterate_point_norm(arb_t out, const iterate_point_t p, slong prec)
         if (fmpz_is_zero(p->sqnorm + j))
             continue;
         /* ||v||^(1/w) = (||v||^2)^(1/(2w)) */
-        arb_set_fmpz(t, p->sqnorm + j);
+        arb_set_round_fmpz(t, p->sqnorm + j, prec + 16);
         arb_root_ui(t, t, 2 * (ulong)p->layers[j].weight, prec);
         arb_add(out, out, t, prec);
     }

@@ -17,6 +17,17 @@
  * (normal form, 0 <= g_k < m_k) and the others go by pcp_elt_pow, whose
  * cost grows with the bit length of the exponent, never with its value.
  *
+ * Faster still, in those presentations the coordinates of alpha(x) are
+ * integer-valued polynomials in the exponents x of weighted degree <= c (a
+ * pc generator of weight w counting w), because multiplication and powers
+ * are (Hall).  Each table is kept as that polynomial in the binomial basis
+ * prod_i binom(x_i, d_i), sum_i w_i d_i <= c: the first interpolated from
+ * values of alpha at the lattice points d by collection and checked by
+ * collection at further points, each square interpolated from its
+ * predecessor composed with itself.  A step is then a few hundred products
+ * of integers, with no collection at all.  When the basis is too large
+ * (ITERATE_MAX_MONO) or a check fails the table applies by collection.
+ *
  * Coordinates: for layer j the weight-j exponents v of the normal form;
  * the free part phi v in the layer basis of layer.h (the basis `report`
  * shows), the torsion part the canonical representative of
@@ -45,6 +56,13 @@
 typedef struct {
     fmpz *img;
     fmpz *diff;
+    /* the whole map as a polynomial in the exponents (see iterate.c), or
+     * nmono = 0 when it was not built */
+    slong nmono;
+    slong *mono;    /* nmono x n: the exponents d of prod_i binom(x_i, d_i) */
+    slong *nz_start; /* nmono + 1: coefficient runs */
+    slong *nz_idx;   /* the coordinate of each coefficient */
+    fmpz *nz_val;    /* the coefficients */
 } iterate_table_struct;
 
 typedef struct {
@@ -57,6 +75,8 @@ typedef struct {
     slong nlayers;
     const layer_struct *layers; /* the quotient's layers, borrowed (their
                                    coordinates made sure of) */
+    fmpz_t pow10;   /* a cache for counting digits: 10^pow10_k */
+    slong pow10_k;
 } iterate_map_struct;
 typedef iterate_map_struct iterate_map_t[1];
 

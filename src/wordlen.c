@@ -172,7 +172,7 @@ int wordlen_grow(wordlen_t B, const ns_progress_t *progress)
         if (cancelled)
             break; /* element i is expanded again on the next call */
         /* a poll between elements too, for balls of cheap elements */
-        if (((i - start) & 0x3ff) == 0x3ff && progress &&
+        if (((i - start) & 0x3f) == 0x3f && progress &&
             ns_progress_report(progress, NULL, -1.0)) {
             cancelled = 1;
             i++;

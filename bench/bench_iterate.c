@@ -1,0 +1,157 @@
+/* bench_iterate.c — iterates alpha^n(w) (src/iterate.c) and the slices of
+ * the explorer's iterates screen.
+ *
+ *  1. 1000 iterates of the automorphism a -> b, b -> c, c -> a b of the
+ *     free nilpotent group of rank 3 and class 4 (Hirsch length 32), each
+ *     described (coordinates per layer, digits, the root of the norm):
+ *     target 1 s;
+ *  2. 10,000 iterates of a -> a^2 b, b -> a b on the Heisenberg group:
+ *     target 1 s;
+ *  3. the longest single step in 1 and 2, and the longest slice of the
+ *     word-length search cut at 25 ms as the explorer cuts it: the
+ *     explorer reads keys between steps and slices, target 50 ms.
+ * Nothing is asserted; the machine may be shared. */
+#include <stdio.h>
+#include <time.h>
+
+#include "endo.h"
+#include "iterate.h"
+#include "pres.h"
+#include "wordlen.h"
+
+static double now(void)
+{
+    struct timespec t;
+    clock_gettime(CLOCK_MONOTONIC, &t);
+    return (double)t.tv_sec + 1e-9 * (double)t.tv_nsec;
+}
+
+static double longest_step;
+
+static int setup(nq_t Q, endo_t E, const char *pres_text, slong c, const char *map)
+{
+    pres_t G;
+    nserr_t err;
+    pres_init(G);
+    nserr_init(err);
+    int ok = pres_parse(G, pres_text, 1, 1, err) == NS_OK &&
+             nq_compute(Q, G, c, NULL, err) == NS_OK;
+    slong X = G->gens->n;
+    expr_struct *im = flint_malloc(X * sizeof(expr_struct));
+    for (slong x = 0; x < X; x++)
+        expr_init(im + x);
+    ok = ok && pres_parse_map(im, Q->pres, map, 1, 1, err) == NS_OK &&
+         endo_set(E, Q, im, NULL, err) == NS_OK && E->valid;
+    for (slong x = 0; x < X; x++)
+        expr_clear(im + x);
+    flint_free(im);
+    if (!ok)
+        fprintf(stderr, "bench_iterate: %s: %s\n", pres_text, err->msg);
+    pres_clear(G);
+    return ok;
+}
+
+static void run(const char *what, const char *pres_text, slong c, const char *map, long steps,
+                double target)
+{
+    nq_t Q;
+    endo_t E;
+    nq_init(Q);
+    endo_init(E);
+    if (!setup(Q, E, pres_text, c, map))
+        goto done;
+    iterate_map_t M;
+    nserr_t err;
+    iterate_map_init(M);
+    nserr_init(err);
+    double t0 = now();
+    iterate_map_set(M, Q, E, NULL, err);
+    slong n = Q->pcp->n;
+    fmpz *x = _fmpz_vec_init(n);
+    fmpz_one(x); /* the first generator */
+    iterate_point_t p;
+    iterate_point_init(p);
+    arb_t r;
+    arb_init(r);
+    double root = 0, t_adv = 0;
+    for (long k = 1; k <= steps; k++) {
+        double s = now();
+        iterate_map_advance(M, x, 1, NULL, err);
+        t_adv += now() - s;
+        iterate_point_set(p, M, x, (ulong)k);
+        iterate_point_root(r, p, 64);
+        root = arf_get_d(arb_midref(r), ARF_RND_NEAR);
+        s = now() - s;
+        if (s > longest_step)
+            longest_step = s;
+    }
+    double t = now() - t0;
+    printf("%-52s %6ld iterates  %8.3f s  (target %.0f s; the steps %.3f s, describing them "
+           "the rest)  root at n = %ld: %.6f  Hirsch length %ld\n",
+           what, steps, t, target, t_adv, steps, root, (long)Q->hirsch_length);
+    arb_clear(r);
+    iterate_point_clear(p);
+    _fmpz_vec_clear(x, n);
+    iterate_map_clear(M);
+    nserr_clear(err);
+done:
+    endo_clear(E);
+    nq_clear(Q);
+}
+
+typedef struct {
+    double start, longest;
+} slice_clock;
+
+static int slice_hook(void *ctx, const char *stage, double fraction)
+{
+    (void)stage;
+    (void)fraction;
+    slice_clock *c = ctx;
+    return now() - c->start > 0.025;
+}
+
+static void slices(void)
+{
+    nq_t Q;
+    pres_t G;
+    nserr_t err;
+    nq_init(Q);
+    pres_init(G);
+    nserr_init(err);
+    pres_parse(G, "<a, b | [a,b,a], [a,b,b]>", 1, 1, err);
+    nq_compute(Q, G, 2, NULL, err);
+    wordlen_t B;
+    wordlen_init(B, Q, 64UL << 20);
+    slice_clock c = {0, 0};
+    ns_progress_t hook = {slice_hook, &c};
+    double t0 = now();
+    long nslices = 0;
+    while (!B->stopped && now() - t0 < 10) {
+        c.start = now();
+        wordlen_grow(B, &hook);
+        double s = now() - c.start;
+        if (s > c.longest)
+            c.longest = s;
+        nslices++;
+    }
+    printf("%-52s %6ld slices   longest %.1f ms  (target 50 ms), radius %ld, %lu elements\n",
+           "word-length search in 25 ms slices (Heisenberg)", nslices, 1e3 * c.longest,
+           (long)B->complete_radius, (unsigned long)B->count);
+    wordlen_clear(B);
+    pres_clear(G);
+    nq_clear(Q);
+    nserr_clear(err);
+}
+
+int main(void)
+{
+    run("free nilpotent rank 3 class 4, a -> b, b -> c, c -> a b", "free(3)", 4,
+        "a -> b, b -> c, c -> a b", 1000, 1);
+    run("Heisenberg, a -> a^2 b, b -> a b", "<a, b | [a,b,a], [a,b,b]>", 2, "a -> a^2 b, b -> a b",
+        10000, 1);
+    printf("%-52s longest single step %.2f ms  (target 50 ms)\n", "explorer: one step",
+           1e3 * longest_step);
+    slices();
+    return 0;
+}
