@@ -621,6 +621,7 @@ static void explorer_adopt_analysis(explorer_app *app, analysis_struct *Q)
 /* As explorer_adopt_analysis, with the map already analysed in M. */
 static void explorer_adopt_both(explorer_app *app, analysis_struct *Q, analysis_struct *M)
 {
+    screen_iterate_forget(app); /* its run borrows the old analysis */
     explorer_analysis_free(app->A);
     explorer_analysis_free(app->Q);
     app->Q = Q;
