@@ -609,11 +609,7 @@ char *iterate_decimal_str(void (*fn)(arb_t, const void *, slong), const void *ct
         fn(x, ctx, prec);
         if (!arb_is_finite(x))
             break;
-        char *s = spectrum_ball_get_str(x, digits);
-        if (s) {
-            res = strbuf_dup_str(s);
-            free(s);
-        }
+        res = spectrum_ball_get_str(x, digits); /* flint_malloc'd, or NULL */
     }
     arb_clear(x);
     return res;

@@ -85,12 +85,9 @@ typedef struct {
 static char *ball_str(const arb_t x)
 {
     for (slong d = ITER_DIGITS; d >= 1; d--) {
-        char *s = spectrum_ball_get_str(x, d);
-        if (s) {
-            char *t = strbuf_dup_str(s);
-            free(s);
-            return t;
-        }
+        char *s = spectrum_ball_get_str(x, d); /* flint_malloc'd */
+        if (s)
+            return s;
     }
     char *s = arb_get_str(x, 5, 0);
     char *t = strbuf_dup_str(s);
