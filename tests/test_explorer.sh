@@ -202,6 +202,7 @@ keys '?'
 wait_for "undo the last change of an image"
 keys Space
 wait_for "Line editor"
+keys j j j j                       # the line editor's keys run past one page
 wait_for "Ctrl-U"
 keys Escape
 wait_for "Images of the generators"

@@ -118,6 +118,7 @@ wait_for "     100  " 30           # the run reaches n = 100 (the default)
 screen | grep -q "GR " || fail "the plot should mark the growth-rate line"
 # |a| = 1 at n = 0 and |alpha(a)| = |a^2 b [b,a]^-1| is found by the ball
 keys Escape                        # stops the word-length search if it runs
+sleep 0.5
 keys Escape
 wait_for "Layers of the lower central series"
 
@@ -131,6 +132,7 @@ wait_for "Enter iterates it"
 keys Enter
 wait_for "^n([a,b])"
 keys Escape
+sleep 0.5
 keys Escape
 wait_for "Layers of the lower central series"
 keys s
@@ -144,13 +146,14 @@ wait_for "Hirsch length 3"
 keys n
 wait_for "^n([a,b])"
 keys Escape
+sleep 0.5
 keys Escape
 
 current="eigenvalue picture in the layer detail"
 wait_for "Layers of the lower central series"
 keys Enter
 wait_for "Characteristic polynomial"
-for i in 1 2 3 4 5 6 7 8 9 10 11 12 13 14 15; do keys j; done
+for i in $(seq 1 30); do keys j; done
 wait_for "the unit circle"
 keys Escape
 

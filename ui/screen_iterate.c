@@ -232,8 +232,8 @@ static int slice_progress(void *ctx, const char *stage, double fraction)
     int r, delay = wgetdelay(stdscr);
     nodelay(stdscr, TRUE);
     while ((r = get_wch(&ch)) != ERR) {
-        if (r == OK && ch == UIKEY_ESC)
-            c->esc = 1;
+        if (r == OK && ch == UIKEY_ESC && !c->esc)
+            c->esc = 1; /* a second Esc waits: it goes back */
         else
             app_typeahead_push(c->app, r == KEY_CODE_YES ? UIKEY_FN((int)ch) : (int)ch);
     }

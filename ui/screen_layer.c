@@ -183,13 +183,6 @@ static void detail_build(explorer_app *app, detail_text *t)
                    lam, (long)(k + 1), L->ev_abs_str[k]);
     detail_add(t, ROLE_NORMAL, "  %ld of modulus > 1, %ld of modulus exactly 1 (decided exactly)",
                (long)L->n_above_one, (long)L->n_unimodular);
-    int npic = 0; /* the eigenvalues in the complex plane (screen_charts.c) */
-    char **pic = screen_charts_eigen_rows(app, L, 36, 9, &npic);
-    for (int r = 0; r < npic; r++) {
-        detail_add(t, ROLE_NUMBER, "  %s", pic[r]);
-        free(pic[r]);
-    }
-    free(pic);
     detail_add(t, ROLE_NORMAL, "%s", "");
     char *d = fmpz_get_str(NULL, 10, L->det);
     char *e = fmpz_get_str(NULL, 10, L->det_i_minus);
@@ -205,6 +198,17 @@ static void detail_build(explorer_app *app, detail_text *t)
     if (L->entropy_str)
         detail_add(t, ROLE_NORMAL, "  entropy of this layer: sum of log|%s| over |%s| > 1 = %s",
                    lam, lam, L->entropy_str);
+    int npic = 0; /* the eigenvalues in the complex plane (screen_charts.c) */
+    char **pic = screen_charts_eigen_rows(app, L, 36, 9, &npic);
+    if (npic > 0) {
+        detail_add(t, ROLE_NORMAL, "%s", "");
+        detail_add(t, ROLE_HEADING, "Eigenvalues in the complex plane");
+    }
+    for (int r = 0; r < npic; r++) {
+        detail_add(t, ROLE_NUMBER, "  %s", pic[r]);
+        free(pic[r]);
+    }
+    free(pic);
 }
 
 void screen_layer_draw(explorer_app *app)
