@@ -1240,6 +1240,7 @@ static void explorer_app_clear(explorer_app *app)
     viewmodel_clear(app->vm);
     lineedit_clear(app->edit);
     explorer_analysis_free(app->A);
+    explorer_analysis_free(app->Q); /* after A, which borrows it */
     members_free(app->members);
     free(app->path);
     free(app->title);
