@@ -563,10 +563,19 @@ static ns_status analyse_finite_part(analysis_t A, const ns_progress_t *progress
         fmpz_divexact(A->image_index, A->tors->order, A->tmap->image_order);
         A->index_defined = 1;
     } else {
+        /* Every det M_j != 0 makes alpha one-to-one on the torsion-free
+         * Gc/T, so alpha(Gc) meets T in alpha(T) and the index multiplies:
+         * [Gc : alpha(Gc)] = [Gc/T : image] [T : alpha(T)], the first
+         * factor being prod |det M_j| (already in image_index). */
+        int dets_nonzero = A->injective;
         A->injective = A->injective && A->tmap->injective_on_t;
-        A->index_defined = A->injective;
-        if (!A->injective)
+        A->index_defined = dets_nonzero;
+        if (dets_nonzero) {
+            fmpz_mul(A->image_index, A->image_index, A->tors->order);
+            fmpz_divexact(A->image_index, A->image_index, A->tmap->t_image_order);
+        } else {
             fmpz_zero(A->image_index);
+        }
     }
     if (reid_inf)
         A->reid_kind = ANALYSIS_REID_INFINITE;

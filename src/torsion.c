@@ -644,6 +644,7 @@ void torsion_map_init(torsion_map_t M)
 {
     memset(M, 0, sizeof(torsion_map_struct));
     fmpz_init(M->image_order);
+    fmpz_init(M->t_image_order);
     fmpz_init(M->fixed_elements);
     fmpz_init(M->fixed_classes);
     fmpz_init(M->reidemeister);
@@ -652,6 +653,7 @@ void torsion_map_init(torsion_map_t M)
 void torsion_map_clear(torsion_map_t M)
 {
     fmpz_clear(M->image_order);
+    fmpz_clear(M->t_image_order);
     fmpz_clear(M->fixed_elements);
     fmpz_clear(M->fixed_classes);
     fmpz_clear(M->reidemeister);
@@ -1209,6 +1211,7 @@ ns_status torsion_map_compute(torsion_map_t M, const torsion_t T, const nq_t Q,
     fmpz_init(o);
     tsub_order(o, I);
     M->injective_on_t = fmpz_equal(o, T->order);
+    fmpz_set(M->t_image_order, o);
     if (T->finite) {
         M->finite_injective = M->injective_on_t;
         fmpz_set(M->image_order, o);

@@ -76,6 +76,7 @@ typedef struct {
     int injective_on_t;      /* alpha restricted to T is one-to-one */
     int finite_injective;    /* finite Gc: alpha one-to-one (= onto) */
     fmpz_t image_order;      /* finite Gc: |alpha(Gc)| */
+    fmpz_t t_image_order;    /* |alpha(T)|, always */
     int fixed_defined;       /* finite Gc: the two counts below */
     fmpz_t fixed_elements;   /* #{x : alpha(x) = x} */
     int fixed_classes_defined; /* finite Gc and alpha an automorphism */

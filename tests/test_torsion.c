@@ -123,6 +123,36 @@ static void klein_bottle_quotients(void **state)
     }
 }
 
+/* The index of the image of a map that is not one-to-one on the finite
+ * part of an infinite Gc.  Worked by hand: in the class-c quotient of
+ * <a, t | t^-1 a t = a^-1> the torsion subgroup is <a>, cyclic of order
+ * 2^c, and Gc/T = <t> is infinite cyclic.  a -> a^(2^k), t -> t is a
+ * homomorphism (t^-1 a^m t = a^-m) whose image <a^(2^k), t> has index 2^k:
+ * it meets T in <a^(2^k)> and maps onto Gc/T. */
+static void klein_bottle_index_not_injective(void **state)
+{
+    (void)state;
+    for (slong c = 2; c <= 4; c++)
+        for (slong k = 1; k < c; k++) {
+            analysis_t A;
+            analysis_init(A);
+            set_group(A, "<a, t | t^-1 a t = a^-1>", c);
+            char map[64];
+            snprintf(map, sizeof map, "a -> a^%ld, t -> t", 1L << k);
+            set_map(A, map);
+            assert_true(A->injective_defined);
+            assert_false(A->injective);
+            assert_true(A->index_defined);
+            assert_int_equal(si(A->image_index), 1L << k);
+            /* with t -> t^3 the free part adds its factor 3 */
+            snprintf(map, sizeof map, "a -> a^%ld, t -> t^3", 1L << k);
+            set_map(A, map);
+            assert_true(A->index_defined);
+            assert_int_equal(si(A->image_index), 3L << k);
+            analysis_clear(A);
+        }
+}
+
 /* A second analysis that borrows the group (as the scan threads do) sees
  * the same torsion subgroup and gets the same numbers: the Klein bottle
  * quotient at class 3 with a -> a, t -> t^3 has R = 2^3 + 2 = 10 (above). */
@@ -358,6 +388,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(klein_bottle_quotients),
+        cmocka_unit_test(klein_bottle_index_not_injective),
         cmocka_unit_test(shared_group_keeps_torsion),
         cmocka_unit_test(product_with_z2),
         cmocka_unit_test(layer_torsion_that_does_not_lift),
