@@ -105,3 +105,33 @@ void paint_fill(int y, int x, int w, paint_role role)
     mvhline(y, x, ' ', w);
     attrset(A_NORMAL);
 }
+
+void paint_lines_add(paint_lines *t, paint_role role, const char *fmt, ...)
+{
+    if (t->n == t->cap) {
+        t->cap = t->cap ? 2 * t->cap : 64;
+        t->v = realloc(t->v, (size_t)t->cap * sizeof *t->v);
+        if (t->v == NULL)
+            abort();
+    }
+    va_list ap;
+    va_start(ap, fmt);
+    int len = vsnprintf(NULL, 0, fmt, ap);
+    va_end(ap);
+    char *s = malloc((size_t)len + 1);
+    if (s == NULL)
+        abort();
+    va_start(ap, fmt);
+    vsnprintf(s, (size_t)len + 1, fmt, ap);
+    va_end(ap);
+    t->v[t->n].role = role;
+    t->v[t->n].text = s;
+    t->n++;
+}
+
+void paint_lines_free(paint_lines *t)
+{
+    for (int i = 0; i < t->n; i++)
+        free(t->v[i].text);
+    free(t->v);
+}

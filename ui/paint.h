@@ -43,6 +43,25 @@ int paint_textf(int y, int x, int w, paint_role role, const char *fmt, ...)
 /* Fills w cells at (y, x) with blanks in the role's attributes. */
 void paint_fill(int y, int x, int w, paint_role role);
 
+/* A growing list of role-tagged lines that a screen builds before it
+ * draws a scrolled window of them (layer detail, full values).  Zero
+ * initialise; the texts are malloc'd; out of memory aborts. */
+typedef struct {
+    paint_role role;
+    char *text;
+} paint_line;
+
+typedef struct {
+    paint_line *v;
+    int n, cap;
+} paint_lines;
+
+/* Appends one printf-formatted line. */
+void paint_lines_add(paint_lines *t, paint_role role, const char *fmt, ...)
+    __attribute__((format(printf, 3, 4)));
+/* Frees every line and the list (t may be reused after zeroing). */
+void paint_lines_free(paint_lines *t);
+
 /* Whether paint_text cuts with "~" instead of "…". */
 void paint_set_ascii(int ascii);
 

@@ -13,130 +13,90 @@
 #include "lineedit.h"
 #include "paint.h"
 
-typedef struct {
-    paint_role role;
-    char *text;
-} full_line;
-
-typedef struct {
-    full_line *v;
-    int n, cap;
-} full_text;
-
-static void full_add(full_text *t, paint_role role, const char *fmt, ...)
-    __attribute__((format(printf, 3, 4)));
-
-static void full_add(full_text *t, paint_role role, const char *fmt, ...)
-{
-    if (t->n == t->cap) {
-        t->cap = t->cap ? 2 * t->cap : 64;
-        t->v = realloc(t->v, (size_t)t->cap * sizeof *t->v);
-        if (t->v == NULL)
-            abort();
-    }
-    va_list ap;
-    va_start(ap, fmt);
-    int len = vsnprintf(NULL, 0, fmt, ap);
-    va_end(ap);
-    char *s = malloc((size_t)len + 1);
-    if (s == NULL)
-        abort();
-    va_start(ap, fmt);
-    vsnprintf(s, (size_t)len + 1, fmt, ap);
-    va_end(ap);
-    t->v[t->n].role = role;
-    t->v[t->n].text = s;
-    t->n++;
-}
-
-static void full_free(full_text *t)
-{
-    for (int i = 0; i < t->n; i++)
-        free(t->v[i].text);
-    free(t->v);
-}
-
-static void full_int(full_text *t, const char *label, const fmpz_t v)
+static void full_int(paint_lines *t, const char *label, const fmpz_t v)
 {
     char *s = fmpz_get_str(NULL, 10, v);
     size_t nd = strlen(s) - (s[0] == '-');
-    full_add(t, ROLE_NUMBER, "  %s = %s", label, s);
+    paint_lines_add(t, ROLE_NUMBER, "  %s = %s", label, s);
     if (nd > 12)
-        full_add(t, ROLE_DIM, "    (%zu digits)", nd);
+        paint_lines_add(t, ROLE_DIM, "    (%zu digits)", nd);
     flint_free(s);
 }
 
-static void full_build(explorer_app *app, full_text *t)
+static void full_build(explorer_app *app, paint_lines *t)
 {
     const analysis_struct *A = app->A;
     const char *arrow = app->utf8 ? "\xE2\x86\xA6" : "->";
-    full_add(t, ROLE_HEADING, "Title");
-    full_add(t, ROLE_NORMAL, "  %s", app->title);
-    full_add(t, ROLE_HEADING, "Group, class %ld", (long)app->cls);
-    full_add(t, ROLE_NORMAL, "  %s", app->group_text);
+    paint_lines_add(t, ROLE_HEADING, "Title");
+    paint_lines_add(t, ROLE_NORMAL, "  %s", app->title);
+    paint_lines_add(t, ROLE_HEADING, "Group, class %ld", (long)app->cls);
+    paint_lines_add(t, ROLE_NORMAL, "  %s", app->group_text);
     if (app->group_problem[0])
-        full_add(t, ROLE_ERROR, "  %s", app->group_problem);
+        paint_lines_add(t, ROLE_ERROR, "  %s", app->group_problem);
     if (app->status[0])
-        full_add(t, app->status_error ? ROLE_ERROR : ROLE_NORMAL, "  last message: %s",
-                 app->status_error ? app_error_text(app->status) : app->status);
-    full_add(t, ROLE_NORMAL, "%s", "");
+        paint_lines_add(t, app->status_error ? ROLE_ERROR : ROLE_NORMAL, "  last message: %s",
+                        app->status_error ? app_error_text(app->status) : app->status);
+    paint_lines_add(t, ROLE_NORMAL, "%s", "");
 
     size_t i = app->vm->sel_image;
     if (i < app->vm->ngens) {
-        full_add(t, ROLE_HEADING, "Selected image");
-        full_add(t, ROLE_NORMAL, "  %s %s %s", app->vm->names[i], arrow, app->vm->images[i]);
+        paint_lines_add(t, ROLE_HEADING, "Selected image");
+        paint_lines_add(t, ROLE_NORMAL, "  %s %s %s", app->vm->names[i], arrow, app->vm->images[i]);
         if (A->has_map && A->gen_image_str)
-            full_add(t, ROLE_NUMBER, "  = %s", A->gen_image_str[i]);
-        full_add(t, ROLE_NORMAL, "%s", "");
+            paint_lines_add(t, ROLE_NUMBER, "  = %s", A->gen_image_str[i]);
+        paint_lines_add(t, ROLE_NORMAL, "%s", "");
     }
     if (A->has_group && app->vm->sel_layer < (size_t)A->nlayers) {
         slong j = (slong)app->vm->sel_layer;
         const analysis_layer_struct *L = A->layers + j;
-        full_add(t, ROLE_HEADING, "Selected layer %ld: %s", (long)(j + 1),
-                 L->group_str ? L->group_str : "?");
+        paint_lines_add(t, ROLE_HEADING, "Selected layer %ld: %s", (long)(j + 1),
+                        L->group_str ? L->group_str : "?");
         if (A->has_map && A->valid && L->rho_str) {
-            full_add(t, ROLE_NUMBER, "  rho_%ld = %s", (long)(j + 1), L->rho_str);
-            full_add(t, ROLE_NUMBER, "  rho_%ld^(1/%ld) = %s", (long)(j + 1), (long)(j + 1),
-                     L->root_bound_str);
+            paint_lines_add(t, ROLE_NUMBER, "  rho_%ld = %s", (long)(j + 1), L->rho_str);
+            paint_lines_add(t, ROLE_NUMBER, "  rho_%ld^(1/%ld) = %s", (long)(j + 1), (long)(j + 1),
+                            L->root_bound_str);
             full_int(t, "det M", L->det);
             full_int(t, "det(I - M)", L->det_i_minus);
         }
         for (slong k = 0; k < L->layer->free_rank; k++)
-            full_add(t, ROLE_NORMAL, "  e%ld = %s", (long)(k + 1), L->layer->basis[k]);
-        full_add(t, ROLE_NORMAL, "%s", "");
+            paint_lines_add(t, ROLE_NORMAL, "  e%ld = %s", (long)(k + 1), L->layer->basis[k]);
+        paint_lines_add(t, ROLE_NORMAL, "%s", "");
     }
     if (!A->has_map) {
-        full_add(t, ROLE_ERROR, "No map analysed.");
+        paint_lines_add(t, ROLE_ERROR, "No map analysed.");
     } else if (!A->valid) {
-        full_add(t, ROLE_HEADING, "Relators that do not map to 1 in the class-%ld quotient",
-                 (long)app->cls);
+        paint_lines_add(t, ROLE_HEADING, "Relators that do not map to 1 in the class-%ld quotient",
+                        (long)app->cls);
         for (slong k = 0; k < A->nfail; k++)
-            full_add(t, ROLE_NORMAL, "  %s  %s  %s", A->fail_relator[k], arrow, A->fail_image[k]);
+            paint_lines_add(t, ROLE_NORMAL, "  %s  %s  %s", A->fail_relator[k], arrow,
+                            A->fail_image[k]);
     } else {
-        full_add(t, ROLE_HEADING, "Growth");
-        full_add(t, ROLE_NUMBER, "  lower bound L = %s (layer %ld)", A->lower_bound_str,
-                 (long)A->lower_layer);
-        full_add(t, ROLE_NUMBER, "  growth rate   = %s", A->growth_str);
-        full_add(t, ROLE_NUMBER, "  upper bound U = %s (layer %ld)", A->upper_bound_str,
-                 (long)A->upper_layer);
+        paint_lines_add(t, ROLE_HEADING, "Growth");
+        paint_lines_add(t, ROLE_NUMBER, "  lower bound L = %s (layer %ld)", A->lower_bound_str,
+                        (long)A->lower_layer);
+        paint_lines_add(t, ROLE_NUMBER, "  growth rate   = %s", A->growth_str);
+        paint_lines_add(t, ROLE_NUMBER, "  upper bound U = %s (layer %ld)", A->upper_bound_str,
+                        (long)A->upper_layer);
         if (A->growth_reason)
-            full_add(t, ROLE_NORMAL, "  %s", A->growth_reason);
-        full_add(t, ROLE_NORMAL, "%s", "");
-        full_add(t, ROLE_HEADING, "Invariants");
-        full_add(t, ROLE_NUMBER, "  entropy = %s", A->entropy_str ? A->entropy_str : "not defined");
+            paint_lines_add(t, ROLE_NORMAL, "  %s", A->growth_reason);
+        paint_lines_add(t, ROLE_NORMAL, "%s", "");
+        paint_lines_add(t, ROLE_HEADING, "Invariants");
+        paint_lines_add(t, ROLE_NUMBER, "  entropy = %s",
+                        A->entropy_str ? A->entropy_str : "not defined");
         if (A->log_growth_str)
-            full_add(t, ROLE_NUMBER, "  log growth rate = %s", A->log_growth_str);
+            paint_lines_add(t, ROLE_NUMBER, "  log growth rate = %s", A->log_growth_str);
         if (A->lefschetz_defined) {
             full_int(t, "Lefschetz", A->lefschetz);
             full_int(t, "Nielsen", A->nielsen);
             if (A->reid_kind == ANALYSIS_REID_FINITE)
                 full_int(t, "Reidemeister", A->reidemeister);
             else
-                full_add(t, ROLE_NUMBER, "  Reidemeister = %s",
-                         A->reid_kind == ANALYSIS_REID_INFINITE ? "infinite" : "not defined");
+                paint_lines_add(t, ROLE_NUMBER, "  Reidemeister = %s",
+                                A->reid_kind == ANALYSIS_REID_INFINITE ? "infinite"
+                                                                       : "not defined");
         } else {
-            full_add(t, ROLE_NORMAL, "  Lefschetz, Nielsen, Reidemeister: not defined (%s)",
-                     A->undefined_reason ? A->undefined_reason : "see the report");
+            paint_lines_add(t, ROLE_NORMAL, "  Lefschetz, Nielsen, Reidemeister: not defined (%s)",
+                            A->undefined_reason ? A->undefined_reason : "see the report");
         }
         if (A->index_defined)
             full_int(t, "index of the image", A->image_index);
@@ -145,7 +105,7 @@ static void full_build(explorer_app *app, full_text *t)
 
 /* Rows of the text wrapped to width w; row r of it is written to (*line,
  * *off) when asked. */
-static int full_rows(const full_text *t, int w, int want, int *line, size_t *off, size_t *len)
+static int full_rows(const paint_lines *t, int w, int want, int *line, size_t *off, size_t *len)
 {
     int r = 0;
     for (int i = 0; i < t->n; i++) {
@@ -168,7 +128,7 @@ static int full_rows(const full_text *t, int w, int want, int *line, size_t *off
 
 void screen_full_draw(explorer_app *app)
 {
-    full_text t = {0};
+    paint_lines t = {0};
     full_build(app, &t);
     int w = COLS - 2, rows = LINES - 3, line = 0;
     size_t off = 0, len = 0;
@@ -193,7 +153,7 @@ void screen_full_draw(explorer_app *app)
         paint_text(1 + r, 1, w, t.v[line].role, piece);
         free(piece);
     }
-    full_free(&t);
+    paint_lines_free(&t);
     app_draw_hints(app, screen_full_keys());
 }
 

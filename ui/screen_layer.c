@@ -12,60 +12,17 @@
 #include "lineedit.h"
 #include "paint.h"
 
-typedef struct {
-    paint_role role;
-    char *text;
-} detail_line;
-
-typedef struct {
-    detail_line *v;
-    int n, cap;
-} detail_text;
-
-static void detail_add(detail_text *t, paint_role role, const char *fmt, ...)
-    __attribute__((format(printf, 3, 4)));
-
-static void detail_add(detail_text *t, paint_role role, const char *fmt, ...)
-{
-    if (t->n == t->cap) {
-        t->cap = t->cap ? 2 * t->cap : 64;
-        t->v = realloc(t->v, (size_t)t->cap * sizeof *t->v);
-        if (t->v == NULL)
-            abort();
-    }
-    va_list ap;
-    va_start(ap, fmt);
-    int len = vsnprintf(NULL, 0, fmt, ap);
-    va_end(ap);
-    char *s = malloc((size_t)len + 1);
-    if (s == NULL)
-        abort();
-    va_start(ap, fmt);
-    vsnprintf(s, (size_t)len + 1, fmt, ap);
-    va_end(ap);
-    t->v[t->n].role = role;
-    t->v[t->n].text = s;
-    t->n++;
-}
-
-static void detail_free(detail_text *t)
-{
-    for (int i = 0; i < t->n; i++)
-        free(t->v[i].text);
-    free(t->v);
-}
-
 static const char *sym(const explorer_app *app, const char *utf8, const char *ascii)
 {
     return app->utf8 ? utf8 : ascii;
 }
 
 /* A matrix as right-aligned rows "[ 2  1 ]". */
-static void detail_matrix(detail_text *t, const fmpz_mat_t M)
+static void detail_matrix(paint_lines *t, const fmpz_mat_t M)
 {
     slong r = fmpz_mat_nrows(M), c = fmpz_mat_ncols(M);
     if (r == 0 || c == 0) {
-        detail_add(t, ROLE_NUMBER, "  (the zero space)");
+        paint_lines_add(t, ROLE_NUMBER, "  (the zero space)");
         return;
     }
     int *w = calloc((size_t)c, sizeof *w);
@@ -91,17 +48,17 @@ static void detail_matrix(detail_text *t, const fmpz_mat_t M)
             flint_free(s);
         }
         snprintf(row + k, cap - k, " ]");
-        detail_add(t, ROLE_NUMBER, "%s", row);
+        paint_lines_add(t, ROLE_NUMBER, "%s", row);
         free(row);
     }
     free(w);
 }
 
-static void detail_build(explorer_app *app, detail_text *t)
+static void detail_build(explorer_app *app, paint_lines *t)
 {
     const analysis_struct *A = app->A;
     if (!A->has_group || app->vm->sel_layer >= (size_t)A->nlayers) {
-        detail_add(t, ROLE_ERROR, "No layer to show.");
+        paint_lines_add(t, ROLE_ERROR, "No layer to show.");
         return;
     }
     slong j = (slong)app->vm->sel_layer + 1;
@@ -109,18 +66,22 @@ static void detail_build(explorer_app *app, detail_text *t)
     const char *rho = sym(app, "\xCF\x81", "rho");
     const char *gam = sym(app, "\xCE\xB3", "gamma");
 
-    detail_add(t, ROLE_HEADING, "Layer %ld = %s%ld / %s%ld  %s  %s", (long)j, gam, (long)j, gam,
-               (long)(j + 1), sym(app, "\xE2\x89\x85", "="), L->group_str ? L->group_str : "?");
+    paint_lines_add(t, ROLE_HEADING, "Layer %ld = %s%ld / %s%ld  %s  %s", (long)j, gam, (long)j,
+                    gam, (long)(j + 1), sym(app, "\xE2\x89\x85", "="),
+                    L->group_str ? L->group_str : "?");
     /* every pc generator of the layer is accounted for */
     long dep = (long)(L->layer->count - L->layer->free_rank - L->layer->ntors);
-    detail_add(t, ROLE_NORMAL, "  %ld pc generator%s: %ld for the free part, %ld for torsion factors, "
-               "%ld dependent",
-               (long)L->layer->count, L->layer->count == 1 ? "" : "s", (long)L->layer->free_rank, (long)L->layer->ntors, dep);
+    paint_lines_add(t, ROLE_NORMAL,
+                    "  %ld pc generator%s: %ld for the free part, %ld for torsion factors, "
+                    "%ld dependent",
+                    (long)L->layer->count, L->layer->count == 1 ? "" : "s",
+                    (long)L->layer->free_rank, (long)L->layer->ntors, dep);
     if (dep > 0)
-        detail_add(t, ROLE_DIM,
-                   "  (dependent: the layer's relations write %s through the other pc generators,"
-                   " so %s nothing to the group)", dep == 1 ? "it" : "each of them",
-                   dep == 1 ? "it adds" : "they add");
+        paint_lines_add(
+            t, ROLE_DIM,
+            "  (dependent: the layer's relations write %s through the other pc generators,"
+            " so %s nothing to the group)",
+            dep == 1 ? "it" : "each of them", dep == 1 ? "it adds" : "they add");
     if (L->layer->ntors > 0 && L->layer->pc_labels) {
         /* the torsion is only visible on the pc generators: name them */
         char names[512] = "";
@@ -128,84 +89,87 @@ static void detail_build(explorer_app *app, detail_text *t)
         for (slong g = 0; g < L->layer->count && k + 2 < sizeof names; g++)
             k += (size_t)snprintf(names + k, sizeof names - k, "%s%s", g ? ", " : "",
                                   L->layer->pc_labels[g]);
-        detail_add(t, ROLE_NORMAL, "  pc generators of the layer: %s", names);
+        paint_lines_add(t, ROLE_NORMAL, "  pc generators of the layer: %s", names);
     }
-    detail_add(t, ROLE_NORMAL, "%s", "");
-    detail_add(t, ROLE_HEADING, "Basis of the free part, as commutators");
+    paint_lines_add(t, ROLE_NORMAL, "%s", "");
+    paint_lines_add(t, ROLE_HEADING, "Basis of the free part, as commutators");
     if (L->layer->free_rank == 0)
-        detail_add(t, ROLE_NORMAL, "  (no free part)");
+        paint_lines_add(t, ROLE_NORMAL, "  (no free part)");
     for (slong k = 0; k < L->layer->free_rank; k++)
-        detail_add(t, ROLE_NORMAL, "  e%ld = %s", (long)(k + 1), L->layer->basis[k]);
-    detail_add(t, ROLE_NORMAL, "%s", "");
+        paint_lines_add(t, ROLE_NORMAL, "  e%ld = %s", (long)(k + 1), L->layer->basis[k]);
+    paint_lines_add(t, ROLE_NORMAL, "%s", "");
 
     if (!A->has_map) {
-        detail_add(t, ROLE_ERROR, "No map analysed: %s", app->group_problem);
+        paint_lines_add(t, ROLE_ERROR, "No map analysed: %s", app->group_problem);
         return;
     }
     if (!A->valid) {
-        detail_add(t, ROLE_ERROR,
-                   "The images do not define an endomorphism of the class-%ld quotient,",
-                   (long)app->cls);
-        detail_add(
+        paint_lines_add(t, ROLE_ERROR,
+                        "The images do not define an endomorphism of the class-%ld quotient,",
+                        (long)app->cls);
+        paint_lines_add(
             t, ROLE_ERROR,
             "so the map induces no matrix here (the main screen lists the failing relators).");
         return;
     }
-    detail_add(t, ROLE_HEADING, "Matrix M%ld (column k holds the image of e_k)", (long)j);
+    paint_lines_add(t, ROLE_HEADING, "Matrix M%ld (column k holds the image of e_k)", (long)j);
     detail_matrix(t, L->matrix);
     if (L->layer->ntors > 0) {
-        detail_add(t, ROLE_NORMAL, "%s", "");
-        detail_add(t, ROLE_HEADING, "Action on the layer's %ld pc generators, torsion included",
-                   (long)L->layer->count);
+        paint_lines_add(t, ROLE_NORMAL, "%s", "");
+        paint_lines_add(t, ROLE_HEADING,
+                        "Action on the layer's %ld pc generators, torsion included",
+                        (long)L->layer->count);
         detail_matrix(t, L->action);
     }
-    detail_add(t, ROLE_NORMAL, "%s", "");
-    detail_add(t, ROLE_HEADING, "Characteristic polynomial");
-    detail_add(t, ROLE_NUMBER, "  %s", L->charpoly_str ? L->charpoly_str : "-");
-    detail_add(t, ROLE_NORMAL, "  factored over Z: %s",
-               L->charpoly_factored_str ? L->charpoly_factored_str : "-");
-    detail_add(t, ROLE_NORMAL, "%s", "");
-    detail_add(t, ROLE_HEADING, "Spectral radius");
-    detail_add(t, ROLE_NUMBER, "  %s%ld = %s%s", rho, (long)j, L->rho_str ? L->rho_str : "-",
-               A->upper_layer == j ? "   U: attains the upper bound" : "");
+    paint_lines_add(t, ROLE_NORMAL, "%s", "");
+    paint_lines_add(t, ROLE_HEADING, "Characteristic polynomial");
+    paint_lines_add(t, ROLE_NUMBER, "  %s", L->charpoly_str ? L->charpoly_str : "-");
+    paint_lines_add(t, ROLE_NORMAL, "  factored over Z: %s",
+                    L->charpoly_factored_str ? L->charpoly_factored_str : "-");
+    paint_lines_add(t, ROLE_NORMAL, "%s", "");
+    paint_lines_add(t, ROLE_HEADING, "Spectral radius");
+    paint_lines_add(t, ROLE_NUMBER, "  %s%ld = %s%s", rho, (long)j, L->rho_str ? L->rho_str : "-",
+                    A->upper_layer == j ? "   U: attains the upper bound" : "");
     if (L->rho_minpoly_str)
-        detail_add(t, ROLE_NORMAL, "  a root of %s", L->rho_minpoly_str);
-    detail_add(t, ROLE_NUMBER, "  %s%ld^(1/%ld) = %s%s", rho, (long)j, (long)j,
-               L->root_bound_str ? L->root_bound_str : "-",
-               A->lower_layer == j ? "   L: attains the lower bound" : "");
-    detail_add(t, ROLE_NORMAL, "%s", "");
-    detail_add(t, ROLE_HEADING, "Eigenvalues, with multiplicity, by decreasing modulus");
+        paint_lines_add(t, ROLE_NORMAL, "  a root of %s", L->rho_minpoly_str);
+    paint_lines_add(t, ROLE_NUMBER, "  %s%ld^(1/%ld) = %s%s", rho, (long)j, (long)j,
+                    L->root_bound_str ? L->root_bound_str : "-",
+                    A->lower_layer == j ? "   L: attains the lower bound" : "");
+    paint_lines_add(t, ROLE_NORMAL, "%s", "");
+    paint_lines_add(t, ROLE_HEADING, "Eigenvalues, with multiplicity, by decreasing modulus");
     if (L->nev == 0)
-        detail_add(t, ROLE_NORMAL, "  (none)");
+        paint_lines_add(t, ROLE_NORMAL, "  (none)");
     const char *lam = sym(app, "\xCE\xBB", "lambda");
     for (slong k = 0; k < L->nev; k++)
-        detail_add(t, ROLE_NUMBER, "  %s%-3ld %-44s |%s%ld| = %s", lam, (long)(k + 1), L->ev_str[k],
-                   lam, (long)(k + 1), L->ev_abs_str[k]);
-    detail_add(t, ROLE_NORMAL, "  %ld of modulus > 1, %ld of modulus exactly 1 (decided exactly)",
-               (long)L->n_above_one, (long)L->n_unimodular);
-    detail_add(t, ROLE_NORMAL, "%s", "");
+        paint_lines_add(t, ROLE_NUMBER, "  %s%-3ld %-44s |%s%ld| = %s", lam, (long)(k + 1),
+                        L->ev_str[k], lam, (long)(k + 1), L->ev_abs_str[k]);
+    paint_lines_add(t, ROLE_NORMAL,
+                    "  %ld of modulus > 1, %ld of modulus exactly 1 (decided exactly)",
+                    (long)L->n_above_one, (long)L->n_unimodular);
+    paint_lines_add(t, ROLE_NORMAL, "%s", "");
     char *d = fmpz_get_str(NULL, 10, L->det);
     char *e = fmpz_get_str(NULL, 10, L->det_i_minus);
-    detail_add(t, ROLE_HEADING, "Determinants");
+    paint_lines_add(t, ROLE_HEADING, "Determinants");
     char l1[64], l2[64];
     snprintf(l1, sizeof l1, "det M%ld", (long)j);
     snprintf(l2, sizeof l2, "det(I %s M%ld)", sym(app, "\xE2\x88\x92", "-"), (long)j);
     int pad = (int)lineedit_utf8_ncols(l2) - (int)lineedit_utf8_ncols(l1);
-    detail_add(t, ROLE_NUMBER, "  %s%*s = %s", l1, pad, "", d);
-    detail_add(t, ROLE_NUMBER, "  %s = %s", l2, e);
+    paint_lines_add(t, ROLE_NUMBER, "  %s%*s = %s", l1, pad, "", d);
+    paint_lines_add(t, ROLE_NUMBER, "  %s = %s", l2, e);
     flint_free(d);
     flint_free(e);
     if (L->entropy_str)
-        detail_add(t, ROLE_NORMAL, "  entropy of this layer: sum of log|%s| over |%s| > 1 = %s",
-                   lam, lam, L->entropy_str);
+        paint_lines_add(t, ROLE_NORMAL,
+                        "  entropy of this layer: sum of log|%s| over |%s| > 1 = %s", lam, lam,
+                        L->entropy_str);
     int npic = 0; /* the eigenvalues in the complex plane (screen_charts.c) */
     char **pic = screen_charts_eigen_rows(app, L, 36, 9, &npic);
     if (npic > 0) {
-        detail_add(t, ROLE_NORMAL, "%s", "");
-        detail_add(t, ROLE_HEADING, "Eigenvalues in the complex plane");
+        paint_lines_add(t, ROLE_NORMAL, "%s", "");
+        paint_lines_add(t, ROLE_HEADING, "Eigenvalues in the complex plane");
     }
     for (int r = 0; r < npic; r++) {
-        detail_add(t, ROLE_NUMBER, "  %s", pic[r]);
+        paint_lines_add(t, ROLE_NUMBER, "  %s", pic[r]);
         free(pic[r]);
     }
     free(pic);
@@ -213,7 +177,7 @@ static void detail_build(explorer_app *app, detail_text *t)
 
 void screen_layer_draw(explorer_app *app)
 {
-    detail_text t = {0};
+    paint_lines t = {0};
     detail_build(app, &t);
     int rows = LINES - 3;
     if (app->detail_scroll > t.n - rows)
@@ -222,18 +186,19 @@ void screen_layer_draw(explorer_app *app)
         app->detail_scroll = 0;
     /* where we are goes in the header, so that no message can cover it */
     char where[160];
-    int k = snprintf(where, sizeof where, "layer %zu of %zu", app->vm->sel_layer + 1,
-                     app->vm->nlayers);
+    int k =
+        snprintf(where, sizeof where, "layer %zu of %zu", app->vm->sel_layer + 1, app->vm->nlayers);
     if (t.n > rows)
-        snprintf(where + k, sizeof where - (size_t)k, "   lines %d-%d of %d", app->detail_scroll + 1,
+        snprintf(where + k, sizeof where - (size_t)k, "   lines %d-%d of %d",
+                 app->detail_scroll + 1,
                  app->detail_scroll + rows < t.n ? app->detail_scroll + rows : t.n, t.n);
     app_draw_header(app, where);
     for (int r = 0; r < rows && app->detail_scroll + r < t.n; r++) {
-        const detail_line *l = &t.v[app->detail_scroll + r];
+        const paint_line *l = &t.v[app->detail_scroll + r];
         const char *text = l->text + lineedit_utf8_offset(l->text, (size_t)app->detail_hscroll);
         paint_text(1 + r, 1, COLS - 1, l->role, text);
     }
-    detail_free(&t);
+    paint_lines_free(&t);
     if (app->status[0])
         app_draw_status(app);
     app_draw_hints(app, screen_layer_keys());
