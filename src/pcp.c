@@ -778,6 +778,25 @@ static void conj_once(pcp_work_t W, fmpz *out, const fmpz *y, slong i)
     fmpz_clear(e);
 }
 
+/* y := a_k^(a_i^-1), the y with y^(a_i) = a_k: conjugation by a_i is the
+ * identity modulo higher weight, so y <- y (y^(a_i))^-1 a_k gains a weight
+ * each round.  z and ak are scratch vectors of W's length. */
+static void conj_inverse_solve(pcp_work_t W, fmpz *y, fmpz *z, fmpz *ak, slong n, slong k,
+                               slong i, slong maxweight)
+{
+    _fmpz_vec_zero(ak, n);
+    fmpz_one(ak + k);
+    _fmpz_vec_set(y, ak, n);
+    for (slong round = 0; round <= maxweight + 1 && !W->overflow; round++) {
+        conj_once(W, z, y, i);
+        if (_fmpz_vec_equal(z, ak, n))
+            break;
+        pcp_elt_inv(W, z, z);
+        pcp_elt_mul(W, y, y, z);
+        pcp_elt_mul(W, y, y, ak);
+    }
+}
+
 int pcp_complete(pcp_t P, pcp_work_t W)
 {
     slong n = P->n;
@@ -808,26 +827,14 @@ int pcp_complete(pcp_t P, pcp_work_t W)
             pcp_elt_inv(W, y, y);
             pcw_set_vec(P->conjinv + s, y, n);
         }
-        /* a_k^(a_i^-1): the y with y^(a_i) = a_k; conjugation by a_i is the
-         * identity modulo higher weight, so y <- y (y^(a_i))^-1 a_k gains a
-         * weight each round. */
+        /* a_k^(a_i^-1) and its inverse (conj_inverse_solve) */
         for (slong k = i + 1; k < P->ncore && !W->overflow; k++) {
             slong s = pcp_slot(k, i);
             if (P->trivial[s])
                 continue;
             if (W->progress && ns_progress_report(W->progress, NULL, -1.0))
                 W->overflow = 1;
-            _fmpz_vec_zero(ak, n);
-            fmpz_one(ak + k);
-            _fmpz_vec_set(y, ak, n);
-            for (slong round = 0; round <= P->maxweight + 1 && !W->overflow; round++) {
-                conj_once(W, z, y, i);
-                if (_fmpz_vec_equal(z, ak, n))
-                    break;
-                pcp_elt_inv(W, z, z);
-                pcp_elt_mul(W, y, y, z);
-                pcp_elt_mul(W, y, y, ak);
-            }
+            conj_inverse_solve(W, y, z, ak, n, k, i, P->maxweight);
             pcw_set_vec(P->conjm + s, y, n);
             pcp_elt_inv(W, y, y);
             pcw_set_vec(P->conjminv + s, y, n);
@@ -924,17 +931,7 @@ int pcp_complete_from(pcp_t P, const pcp_t prev, pcp_work_t W)
             fmpz_sub_ui(z + k, z + k, 1);
             int done = correct_by_central(y, y0, z, n0, n);
             if (!done) {
-                _fmpz_vec_zero(ak, n);
-                fmpz_one(ak + k);
-                _fmpz_vec_set(y, ak, n);
-                for (slong round = 0; round <= P->maxweight + 1 && !W->overflow; round++) {
-                    conj_once(W, z, y, i);
-                    if (_fmpz_vec_equal(z, ak, n))
-                        break;
-                    pcp_elt_inv(W, z, z);
-                    pcp_elt_mul(W, y, y, z);
-                    pcp_elt_mul(W, y, y, ak);
-                }
+                conj_inverse_solve(W, y, z, ak, n, k, i, P->maxweight);
             }
             pcw_set_vec(P->conjm + s, y, n);
             done = 0;
