@@ -8,7 +8,9 @@
  * actions change the state and return what must happen next (ACT_* flags);
  * only the main loop in explorer.c acts on those flags, computes, and
  * redraws.  Nothing here does group theory: every number comes from the
- * analysis_t, which the main loop feeds.
+ * analysis_t, which the main loop feeds.  screens.h declares the screens
+ * and the prompt, frame.h what they share (header, message and key lines);
+ * DEVELOPERS.md ("The explorer's layers") says who may include whom.
  *
  * Ownership: explorer_app owns everything it points to; the screens only
  * read it, except through the actions. */
@@ -163,87 +165,5 @@ struct explorer_app_struct {
     screen_iterate_state *iter; /* the iterates screen's run, owned */
     int running;
 };
-
-/* ---- screens (screen_*.c, prompt.c) -------------------------------- */
-
-void screen_main_draw(explorer_app *app);
-const ui_keymap *screen_main_keys(void);
-
-void screen_layer_draw(explorer_app *app);
-const ui_keymap *screen_layer_keys(void);
-
-void screen_full_draw(explorer_app *app);
-const ui_keymap *screen_full_keys(void);
-
-void screen_help_draw(explorer_app *app);
-const ui_keymap *screen_help_keys(void);
-
-/* The members of a scan result file (nilstep scan's JSON Lines). */
-void screen_members_draw(explorer_app *app);
-const ui_keymap *screen_members_keys(void);
-/* Reads the file into *out; -1 with msg set when it has no scan result. */
-int members_load(members_t **out, const char *path, char *msg, size_t msgsize);
-/* Loads path and shows its members (status message on failure). */
-int members_show(explorer_app *app, const char *path);
-/* Back to the member list from another screen (a key action). */
-int members_act_return(explorer_app *app);
-void members_free(members_t *m);
-/* The iterates screen (screen_iterate.c): _open enters it (running the
- * session's iterate word, else the selected generator); _busy says a run
- * wants computing time, which the main loop gives by calling _tick (one
- * slice of at most 25 ms) whenever no key is waiting; _forget drops the
- * run (the analysis it borrows changed); _set_word and _check_word serve
- * PROMPT_ITERATE. */
-void screen_iterate_draw(explorer_app *app);
-const ui_keymap *screen_iterate_keys(void);
-void screen_iterate_open(explorer_app *app);
-int screen_iterate_busy(const explorer_app *app);
-int screen_iterate_tick(explorer_app *app);
-void screen_iterate_forget(explorer_app *app);
-void screen_iterate_set_word(explorer_app *app, const char *text);
-void screen_iterate_check_word(explorer_app *app, const char *text);
-
-/* The bounds chart and the eigenvalue picture (screen_charts.c); the rows
- * of the picture for layer L in w x h cells plus a legend line (*nrows of
- * them; free each and the array with free()), NULL when there is nothing
- * to draw. */
-void screen_bounds_draw(explorer_app *app);
-const ui_keymap *screen_bounds_keys(void);
-char **screen_charts_eigen_rows(const explorer_app *app, const analysis_layer_struct *L, int w,
-                                int h, int *nrows);
-
-/* Queues a key read during a computation for the main loop (explorer.c). */
-void app_typeahead_push(explorer_app *app, int key);
-
-/* Draws the prompt over the bottom of the frame. */
-void prompt_draw(explorer_app *app);
-/* Handles one key while a prompt is open; returns ACT_* flags. */
-int prompt_key(explorer_app *app, int key);
-/* Opens a prompt of that kind (text prompts start with text). */
-void prompt_open(explorer_app *app, prompt_kind kind, const char *text);
-/* Parses the text being typed and sets edit_ok / edit_msg / edit_caret. */
-void prompt_check(explorer_app *app);
-/* The line editor's own keys, for the help screen. */
-const ui_keymap *prompt_keys(void);
-
-/* ---- shared by the screens (explorer.c) ----------------------------- */
-
-/* Sets the bottom-line message (printf-style). */
-void app_status(explorer_app *app, int is_error, const char *fmt, ...)
-    __attribute__((format(printf, 3, 4)));
-
-/* msg without the "error: " that nserr_format puts after the location, for
- * a line that already says "error:" (static storage, valid until the next
- * call). */
-const char *app_error_text(const char *msg);
-
-/* Draws the bottom key line from a keymap's hints. */
-void app_draw_hints(explorer_app *app, const ui_keymap *km);
-
-/* Draws the message line (row LINES - 2). */
-void app_draw_status(explorer_app *app);
-
-/* The header bar (row 0) with a screen name. */
-void app_draw_header(explorer_app *app, const char *where);
 
 #endif

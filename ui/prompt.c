@@ -9,6 +9,8 @@
 #include <string.h>
 
 #include "app.h"
+#include "frame.h"
+#include "screens.h"
 #include "paint.h"
 
 #define PROMPT_ROWS 4

@@ -11,6 +11,8 @@
 #include <string.h>
 
 #include "app.h"
+#include "frame.h"
+#include "screens.h"
 #include "paint.h"
 #include "plot.h"
 

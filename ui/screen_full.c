@@ -10,6 +10,8 @@
 #include <string.h>
 
 #include "app.h"
+#include "frame.h"
+#include "screens.h"
 #include "lineedit.h"
 #include "paint.h"
 

@@ -5,6 +5,8 @@
 #include <string.h>
 
 #include "app.h"
+#include "frame.h"
+#include "screens.h"
 #include "lineedit.h"
 #include "paint.h"
 

@@ -18,6 +18,8 @@
 #include <time.h>
 
 #include "app.h"
+#include "frame.h"
+#include "screens.h"
 #include "iterate.h"
 #include "paint.h"
 #include "plot.h"

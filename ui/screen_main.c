@@ -14,6 +14,8 @@
 #include <string.h>
 
 #include "app.h"
+#include "frame.h"
+#include "screens.h"
 #include "lineedit.h"
 #include "numfmt.h"
 #include "paint.h"

@@ -10,6 +10,8 @@
 #include <string.h>
 
 #include "app.h"
+#include "frame.h"
+#include "screens.h"
 #include "jsonl.h"
 #include "paint.h"
 #include "strbuf.h"
