@@ -22,7 +22,8 @@ problems = []
 # The layers, lowest first.  A module is a .c file and its header.
 LAYERS = [
     # 0: tools that know nothing of the explorer's state
-    {"lineedit", "numfmt", "plot", "paint", "viewmodel", "memlimit", "recovery", "defaults"},
+    {"lineedit", "numfmt", "plot", "paint", "viewmodel", "memlimit", "recovery", "defaults",
+     "filepath"},
     # 1: the explorer's state and what every screen shares
     {"app", "frame"},
     # 2: the screens and the prompt (sideways calls among them are allowed)

@@ -132,6 +132,8 @@ struct explorer_app_struct {
     char edit_msg[600]; /* parse result of the text being typed */
     int edit_ok;        /* 1: it parses */
     int edit_caret;     /* 1-based column of the error in the text, 0 none */
+    char **cands;       /* file prompts: the names Tab found (filepath.h), */
+    size_t ncands;      /* listed above the prompt until the text changes */
 
     /* scrolling */
     int detail_scroll;

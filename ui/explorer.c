@@ -20,6 +20,7 @@
 #include "frame.h"
 #include "screens.h"
 #include "defaults.h"
+#include "filepath.h"
 #include "paint.h"
 #include "memlimit.h"
 #include "recovery.h"
@@ -1137,6 +1138,7 @@ static void explorer_app_clear(explorer_app *app)
     pres_clear(app->pres);
     viewmodel_clear(app->vm);
     lineedit_clear(app->edit);
+    filepath_free_list(app->cands, app->ncands);
     explorer_analysis_free(app->A);
     explorer_analysis_free(app->Q); /* after A, which borrows it */
     members_free(app->members);

@@ -8,7 +8,10 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include <unistd.h>
+
 #include "app.h"
+#include "filepath.h"
 #include "frame.h"
 #include "screens.h"
 #include "paint.h"
@@ -31,8 +34,22 @@ static int prompt_is_text(prompt_kind k)
            k == PROMPT_OPEN || k == PROMPT_ITERATE;
 }
 
+/* Prompts that take a file name: "~" expands, Tab completes. */
+static int prompt_is_path(prompt_kind k)
+{
+    return k == PROMPT_SAVE_AS || k == PROMPT_OPEN;
+}
+
+static void prompt_drop_cands(explorer_app *app)
+{
+    filepath_free_list(app->cands, app->ncands);
+    app->cands = NULL;
+    app->ncands = 0;
+}
+
 void prompt_open(explorer_app *app, prompt_kind kind, const char *text)
 {
+    prompt_drop_cands(app);
     app->prompt = kind;
     app->edit_scroll = 0;
     lineedit_set_text(app->edit, text ? text : "");
@@ -119,6 +136,7 @@ static void check_group(explorer_app *app, const char *text)
 void prompt_check(explorer_app *app)
 {
     const char *text = lineedit_get_text(app->edit);
+    prompt_drop_cands(app); /* the list was for the text before */
     app->edit_caret = 0;
     app->edit_ok = 1;
     app->edit_msg[0] = '\0';
@@ -136,19 +154,98 @@ void prompt_check(explorer_app *app)
         screen_iterate_check_word(app, text);
         break;
     case PROMPT_SAVE_AS:
-    case PROMPT_OPEN:
+    case PROMPT_OPEN: {
         /* an empty name is not an error yet, only not ready: Enter beeps */
-        snprintf(app->edit_msg, sizeof app->edit_msg, "%s",
-                 text[0] == '\0'              ? "type a file name"
-                 : app->prompt == PROMPT_OPEN ? "Enter opens this file, Esc cancels"
-                                              : "Enter saves there, Esc cancels");
+        char *full = filepath_expand(text);
+        if (text[0] == '\0')
+            snprintf(app->edit_msg, sizeof app->edit_msg, "type a file name (Tab completes)");
+        else if (strcmp(full, text) != 0) /* say where "~" leads */
+            snprintf(app->edit_msg, sizeof app->edit_msg, "Enter %s %s, Esc cancels",
+                     app->prompt == PROMPT_OPEN ? "opens" : "saves to", full);
+        else
+            snprintf(app->edit_msg, sizeof app->edit_msg, "%s",
+                     app->prompt == PROMPT_OPEN ? "Enter opens this file, Esc cancels"
+                                                : "Enter saves there, Esc cancels");
+        free(full);
         break;
+    }
     default:
         break;
     }
 }
 
 /* ---- drawing ----------------------------------------------------------- */
+
+/* Text in w cells, its start given up (marked) when it is longer: the end
+ * of a directory is the part that tells where one is. */
+static void prompt_paint_tail(explorer_app *app, int y, int x, int w, paint_role role,
+                              const char *s)
+{
+    size_t n = lineedit_utf8_ncols(s);
+    if (w <= 1)
+        return;
+    if (n <= (size_t)w) {
+        paint_text(y, x, w, role, s);
+        return;
+    }
+    int m = paint_text(y, x, 1, ROLE_MARKER, app->utf8 ? "\xE2\x80\xA6" : "~");
+    paint_text(y, x + m, w - m, role, s + lineedit_utf8_offset(s, n - (size_t)(w - m)));
+}
+
+/* The names Tab found, above the prompt box: in columns, each name whole;
+ * when they do not all fit, as many as fit and how many more there are. */
+static void prompt_draw_cands(explorer_app *app, int bottom)
+{
+    size_t n = app->ncands;
+    int top = 1, avail = bottom - top; /* rows for the list and its heading */
+    if (n == 0 || avail < 2)
+        return;
+    size_t wmax = 0;
+    for (size_t i = 0; i < n; i++) {
+        size_t w = lineedit_utf8_ncols(app->cands[i]);
+        if (w > wmax)
+            wmax = w;
+    }
+    int inner = COLS - 2;
+    int colw = (int)wmax + 2;
+    int ncol = colw > inner ? 1 : inner / colw;
+    /* a name wider than the screen takes several rows */
+    int rows_per = wmax > (size_t)inner ? (int)((wmax + (size_t)inner - 1) / (size_t)inner) : 1;
+    size_t nrows = (n + (size_t)ncol - 1) / (size_t)ncol;
+    size_t fit_rows = (size_t)(avail - 1) / (size_t)rows_per;
+    size_t shown = n;
+    if (nrows > fit_rows) {
+        /* keep a row for "... more" */
+        fit_rows = (size_t)(avail - 2) / (size_t)rows_per;
+        shown = fit_rows * (size_t)ncol;
+    }
+    size_t used = (shown + (size_t)ncol - 1) / (size_t)ncol;
+    int height = 1 + (int)used * rows_per + (shown < n ? 1 : 0);
+    int y = bottom - height;
+    for (int r = 0; r < height; r++)
+        paint_fill(y + r, 0, COLS, ROLE_NORMAL);
+    paint_fill(y, 0, COLS, ROLE_BAR);
+    paint_textf(y, 1, COLS - 1, ROLE_BAR, "%zu names match (Tab completed what they share):", n);
+    for (size_t i = 0; i < shown; i++) {
+        int row = y + 1 + (int)(i / (size_t)ncol) * rows_per;
+        int col = 1 + (int)(i % (size_t)ncol) * colw;
+        const char *s = app->cands[i];
+        for (int k = 0; k < rows_per && *s; k++) {
+            size_t take = lineedit_utf8_offset(s, (size_t)inner);
+            char *part = malloc(take + 1);
+            if (part == NULL)
+                abort();
+            memcpy(part, s, take);
+            part[take] = '\0';
+            paint_text(row + k, col, inner, ROLE_NORMAL, part);
+            free(part);
+            s += take;
+        }
+    }
+    if (shown < n)
+        paint_textf(y + height - 1, 1, COLS - 1, ROLE_DIM,
+                    "... and %zu more: type more of the name, then Tab", n - shown);
+}
 
 static void prompt_label(explorer_app *app, char *label, size_t n, char *prefix, size_t pn)
 {
@@ -245,6 +342,15 @@ void prompt_draw(explorer_app *app)
     if (shown > (size_t)fw)
         paint_text(y0 + 1, COLS - 1, 1, ROLE_MARKER, ">");
 
+    if (prompt_is_path(app->prompt)) {
+        /* where a relative name leads */
+        char cwd[4096];
+        if (getcwd(cwd, sizeof cwd) == NULL)
+            snprintf(cwd, sizeof cwd, "(the current directory cannot be read)");
+        int w = paint_text(y0 + 2, 1, COLS - 1, ROLE_DIM, "in ");
+        prompt_paint_tail(app, y0 + 2, 1 + w, COLS - 2 - w, ROLE_DIM, cwd);
+        prompt_draw_cands(app, y0);
+    }
     if (app->edit_caret > 0) {
         long cx = (long)px + app->edit_caret - 1 - (long)app->edit_scroll;
         if (cx >= px && cx < COLS)
@@ -302,12 +408,59 @@ static int act_kill_end(explorer_app *app)
     return edit_cmd(app, LINEEDIT_KILL_TO_END);
 }
 
+/* Tab in a file prompt: completes the name before the cursor. */
+static int act_complete(explorer_app *app)
+{
+    if (!prompt_is_path(app->prompt))
+        return ACT_NONE;
+    const char *text = lineedit_get_text(app->edit);
+    size_t cur = lineedit_utf8_offset(text, lineedit_cursor_col(app->edit));
+    char *before = malloc(cur + 1);
+    if (before == NULL)
+        abort();
+    memcpy(before, text, cur);
+    before[cur] = '\0';
+    char *out, **cands;
+    size_t n;
+    int r = filepath_complete(&out, &cands, &n, before);
+    if (r == 0) {
+        prompt_check(app);
+        const char *slash = strrchr(before, '/');
+        snprintf(app->edit_msg, sizeof app->edit_msg, "Tab: no name starts with '%s' in %.*s",
+                 slash ? slash + 1 : before, slash ? (int)(slash - before + 1) : 1,
+                 slash ? before : ".");
+        beep();
+        free(before);
+        return ACT_REDRAW;
+    }
+    size_t tail = strlen(text + cur);
+    size_t ol = strlen(out);
+    char *joined = malloc(ol + tail + 1);
+    if (joined == NULL)
+        abort();
+    memcpy(joined, out, ol);
+    memcpy(joined + ol, text + cur, tail + 1);
+    lineedit_set_text(app->edit, joined);
+    lineedit_set_cursor_col(app->edit, lineedit_utf8_ncols(out));
+    prompt_check(app);
+    app->cands = cands; /* after prompt_check, which drops an old list */
+    app->ncands = n;
+    free(joined);
+    free(out);
+    free(before);
+    return ACT_REDRAW;
+}
+
 static int act_cancel(explorer_app *app)
 {
+    prompt_drop_cands(app);
     app->prompt = PROMPT_NONE;
     app_status(app, 0, "cancelled");
     return ACT_REDRAW;
 }
+
+static int prompt_apply_kind(explorer_app *app, prompt_kind kind, const char *text,
+                             const char *path);
 
 static int act_apply(explorer_app *app)
 {
@@ -320,6 +473,16 @@ static int act_apply(explorer_app *app)
     }
     prompt_kind kind = app->prompt;
     app->prompt = PROMPT_NONE;
+    prompt_drop_cands(app);
+    char *path = prompt_is_path(kind) ? filepath_expand(text) : NULL; /* "~" expanded */
+    int flags = prompt_apply_kind(app, kind, text, path);
+    free(path);
+    return flags;
+}
+
+static int prompt_apply_kind(explorer_app *app, prompt_kind kind, const char *text,
+                             const char *path)
+{
     switch (kind) {
     case PROMPT_IMAGE:
         if (!viewmodel_set_image(app->vm, app->edit_index, text)) {
@@ -356,19 +519,19 @@ static int act_apply(explorer_app *app)
     }
     case PROMPT_SAVE_AS:
         free(app->pending_path);
-        app->pending_path = prompt_strdup(text);
+        app->pending_path = prompt_strdup(path);
         return ACT_SAVE | ACT_REDRAW;
     case PROMPT_ITERATE:
         screen_iterate_set_word(app, text);
         return ACT_REDRAW;
     case PROMPT_OPEN: {
-        size_t tl = strlen(text);
-        if (tl > 6 && !strcmp(text + tl - 6, ".jsonl")) /* scan results: the member list */
-            return members_show(app, text);
+        size_t tl = strlen(path);
+        if (tl > 6 && !strcmp(path + tl - 6, ".jsonl")) /* scan results: the member list */
+            return members_show(app, path);
         nserr_t err;
         nserr_init(err);
         session_clear(app->pending_doc);
-        if (session_load(app->pending_doc, text, err) != NS_OK) {
+        if (session_load(app->pending_doc, path, err) != NS_OK) {
             /* keep the prompt and the typed path, with the reason */
             app->prompt = PROMPT_OPEN;
             nserr_format(app->edit_msg, sizeof app->edit_msg, err, NULL);
@@ -380,7 +543,7 @@ static int act_apply(explorer_app *app)
         nserr_clear(err);
         app->has_pending_doc = 1;
         free(app->pending_path);
-        app->pending_path = prompt_strdup(text);
+        app->pending_path = prompt_strdup(path);
         return ACT_OPEN | ACT_REDRAW;
     }
     default:
@@ -408,6 +571,10 @@ static const ui_binding prompt_bindings[] = {
     {UIKEY_CTRL('d'), act_delete, NULL, NULL, NULL},
     {UIKEY_CTRL('u'), act_kill, "Ctrl-U", "clear the whole line", "Ctrl-U clear"},
     {UIKEY_CTRL('k'), act_kill_end, "Ctrl-K", "delete from the cursor to the end", NULL},
+    {'\t', act_complete, "Tab",
+     "file names: complete the name (what the matches share; several are listed); ~ is the "
+     "home directory",
+     NULL},
 };
 
 static const ui_keymap prompt_keymap = {"Line editor (images, presentation, title, file names)",
