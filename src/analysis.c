@@ -51,6 +51,18 @@ void analysis_clear_map(analysis_t A)
     A->map_str = NULL;
     free_strs(A->fail_relator, A->nfail);
     free_strs(A->fail_image, A->nfail);
+    for (slong k = 0; A->failures && k < A->nfail; k++) {
+        analysis_failure_struct *f = A->failures + k;
+        flint_free(f->lhs);
+        flint_free(f->rhs);
+        flint_free(f->lhs_word);
+        flint_free(f->rhs_word);
+        flint_free(f->lhs_image);
+        flint_free(f->rhs_image);
+        flint_free(f->forced_image);
+    }
+    flint_free(A->failures);
+    A->failures = NULL;
     free_strs(A->gen_image_str, A->gen_image_str ? X : 0);
     free_strs(A->inverse_str, A->inverse_str ? X : 0);
     A->inverse_str = NULL;
@@ -589,7 +601,109 @@ static ns_status analyse_finite_part(analysis_t A, const ns_progress_t *progress
 /* Everything after the map is set on A->endo (and map_str is written):
  * the images as normal words, validity, and for a valid map the layers,
  * bounds, growth and invariants.  On error the map is forgotten. */
-static ns_status analyse_endo(analysis_t A, const ns_progress_t *progress, nserr_t err)
+/* Does generator x occur in the word n? */
+static int word_has_gen(const expr_node *n, slong x)
+{
+    const expr_node **st = flint_malloc(sizeof(expr_node *) * 16);
+    slong ns = 0, cap = 16;
+    int found = 0;
+    st[ns++] = n;
+    while (ns > 0 && !found) {
+        const expr_node *d = st[--ns];
+        if (d->kind == EXPR_GEN && d->gen == x)
+            found = 1;
+        for (slong i = 0; i < d->nkids; i++) {
+            if (ns == cap) {
+                cap *= 2;
+                st = flint_realloc(st, sizeof(expr_node *) * cap);
+            }
+            st[ns++] = d->kids[i];
+        }
+    }
+    flint_free(st);
+    return found;
+}
+
+/* One side of a failing relation: its text, alpha(side) as a word in the
+ * input generators (when images are known) and as a normal word; val gets
+ * alpha(side).  Returns nonzero when W was stopped. */
+static int failure_side(char **text, char **word, char **image, fmpz *val, const nq_struct *Q,
+                        const endo_struct *E, const expr_node *side, const expr_struct *images,
+                        pcp_work_t W)
+{
+    slong n = Q->pcp->n;
+    if (side == NULL) {
+        *text = strbuf_dup_str("1");
+        *word = images ? strbuf_dup_str("1") : NULL;
+        *image = strbuf_dup_str("1");
+        _fmpz_vec_zero(val, n);
+        return 0;
+    }
+    *text = expr_node_get_str(side, Q->pres->gens);
+    *word = NULL;
+    if (images) {
+        expr_node *w = expr_node_substitute(side, images, Q->pres->gens->n);
+        *word = expr_node_get_str(w, Q->pres->gens);
+        expr_node_free(w);
+    }
+    if (pcp_eval_expr(W, val, side, E->gen_img)) {
+        *image = strbuf_dup_str("?");
+        return 1;
+    }
+    *image = nq_elt_get_str(Q, val);
+    return 0;
+}
+
+/* The failing relations in full (analysis_failure_struct); images are the
+ * words the map was given by, or NULL for a map given as a value. */
+static ns_status analyse_failures(analysis_t A, const expr_struct *images,
+                                  const ns_progress_t *progress, nserr_t err)
+{
+    const nq_struct *Q = A->nq;
+    slong n = Q->pcp->n;
+    A->failures = flint_calloc(FLINT_MAX(A->nfail, 1), sizeof(analysis_failure_struct));
+    fmpz *lv = _fmpz_vec_init(FLINT_MAX(n, 1)), *rv = _fmpz_vec_init(FLINT_MAX(n, 1));
+    pcp_work_t W;
+    pcp_work_init(W, Q->pcp);
+    W->progress = progress;
+    int stopped = 0;
+    for (slong k = 0; k < A->nfail && !stopped; k++) {
+        analysis_failure_struct *f = A->failures + k;
+        const expr_node *u, *v;
+        f->relation = A->endo->fail_rel[k];
+        f->forced_gen = -1;
+        int eq = pres_relation_sides(&u, &v, Q->pres, f->relation);
+        stopped = failure_side(&f->lhs, &f->lhs_word, &f->lhs_image, lv, Q, A->endo, u,
+                               images, W) ||
+                  failure_side(&f->rhs, &f->rhs_word, &f->rhs_image, rv, Q, A->endo, v,
+                               images, W);
+        const fmpz *fv = A->endo->fail_val + k * n;
+        f->lowest_class = 0;
+        for (slong i = 0; i < n && !f->lowest_class; i++)
+            if (!fmpz_is_zero(fv + i))
+                for (slong j = 0; j < Q->nlayers && !f->lowest_class; j++)
+                    if (i >= Q->layers[j].start && i < Q->layers[j].start + Q->layers[j].count)
+                        f->lowest_class = Q->layers[j].weight;
+        if (!eq || stopped)
+            continue;
+        if (u->kind == EXPR_GEN && !word_has_gen(v, u->gen)) {
+            f->forced_gen = u->gen;
+            f->forced_image = strbuf_dup_str(f->rhs_word ? f->rhs_word : f->rhs_image);
+        } else if (v->kind == EXPR_GEN && !word_has_gen(u, v->gen)) {
+            f->forced_gen = v->gen;
+            f->forced_image = strbuf_dup_str(f->lhs_word ? f->lhs_word : f->lhs_image);
+        }
+    }
+    pcp_work_clear(W);
+    _fmpz_vec_clear(lv, FLINT_MAX(n, 1));
+    _fmpz_vec_clear(rv, FLINT_MAX(n, 1));
+    if (stopped)
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "the map's analysis was stopped");
+    return NS_OK;
+}
+
+static ns_status analyse_endo(analysis_t A, const expr_struct *images,
+                              const ns_progress_t *progress, nserr_t err)
 {
     const nq_struct *Q = A->nq;
     slong X = Q->pres->gens->n, n = Q->pcp->n;
@@ -606,7 +720,10 @@ static ns_status analyse_endo(analysis_t A, const ns_progress_t *progress, nserr
             A->fail_relator[k] = strbuf_dup_str(Q->pres->text[r]);
             A->fail_image[k] = (nq_elt_get_str(Q, A->endo->fail_val + k * n));
         }
-        return NS_OK;
+        ns_status st = analyse_failures(A, images, progress, err);
+        if (st != NS_OK)
+            analysis_clear_map(A);
+        return st;
     }
     ns_status st = analyse_layers(A, progress, err);
     if (st != NS_OK) {
@@ -638,7 +755,7 @@ ns_status analysis_set_map(analysis_t A, const expr_struct *images, const ns_pro
         analysis_clear_map(A);
         return st;
     }
-    return analyse_endo(A, progress, err);
+    return analyse_endo(A, images, progress, err);
 }
 
 /* "a -> w_a, b -> w_b" from images given as elements: the words are the
@@ -675,7 +792,7 @@ ns_status analysis_set_map_endo(analysis_t A, endo_t E, const ns_progress_t *pro
     memcpy(A->endo, M, sizeof(endo_struct));
     A->has_map = 1;
     A->map_str = map_text_of(A->nq, A->endo->gen_img);
-    return analyse_endo(A, progress, err);
+    return analyse_endo(A, NULL, progress, err);
 }
 
 static ns_status need_valid(const analysis_t A, nserr_t err)

@@ -164,6 +164,40 @@ expr_node *expr_node_copy(const expr_node *n)
     return root;
 }
 
+static int has_image(const expr_node *n, const expr_struct *images, slong nimages)
+{
+    return n->kind == EXPR_GEN && n->gen >= 0 && n->gen < nimages && images[n->gen].root;
+}
+
+expr_node *expr_node_substitute(const expr_node *n, const expr_struct *images, slong nimages)
+{
+    node_stack st = {NULL, 0, 0};
+
+    if (n == NULL)
+        return NULL;
+    if (has_image(n, images, nimages))
+        return expr_node_copy(images[n->gen].root);
+    expr_node *root = expr_node_copy(n);
+    /* walk the copy; the pasted images are not walked again */
+    node_stack_push(&st, root);
+    while (st.n > 0) {
+        expr_node *d = st.v[--st.n];
+        for (slong i = 0; i < d->nkids; i++) {
+            expr_node *k = d->kids[i];
+            if (k == NULL)
+                continue;
+            if (has_image(k, images, nimages)) {
+                d->kids[i] = expr_node_copy(images[k->gen].root);
+                expr_node_free(k);
+            } else {
+                node_stack_push(&st, k);
+            }
+        }
+    }
+    flint_free(st.v);
+    return root;
+}
+
 /* ------------------------------------------------------------------------ */
 /* Whole words                                                               */
 

@@ -54,6 +54,10 @@ expr_node *expr_node_new(expr_kind kind, int line, int col);
 expr_node *expr_node_copy(const expr_node *n);
 void expr_node_free(expr_node *n);
 void expr_node_add_kid(expr_node *parent, expr_node *kid);
+/* A copy of n with every generator g replaced by a copy of images[g].root
+ * (the word n with the images substituted: alpha(n) as a word); owned by
+ * the caller.  Generators without an image (g >= nimages) stay. */
+expr_node *expr_node_substitute(const expr_node *n, const expr_struct *images, slong nimages);
 
 /* A list of generator names; owns the strings. */
 typedef struct {

@@ -703,21 +703,36 @@ static void put_owned(strbuf_t b, char *s)
     flint_free(s);
 }
 
-/* A relation parsed from "u = v" (its text has the '=') prints that way
- * again; its tree is u v^-1. */
-static void put_relation(strbuf_t b, const pres_t p, slong i)
+/* A relation parsed from "u = v" has the '=' in its text and the tree
+ * u v^-1 (relation_node); a relator written u v^-1 has no '='. */
+int pres_relation_sides(const expr_node **lhs, const expr_node **rhs, const pres_t p, slong i)
 {
     const expr_node *r = p->rels[i].root;
 
     if (p->text != NULL && p->text[i] != NULL && strchr(p->text[i], '=') != NULL &&
         r != NULL && r->kind == EXPR_MUL && r->nkids == 2 && r->kids[1]->kind == EXPR_POW &&
         r->kids[1]->nkids == 1 && fmpz_equal_si(r->kids[1]->exp, -1)) {
-        put_owned(b, expr_node_get_str(r->kids[0], p->gens));
+        *lhs = r->kids[0];
+        *rhs = r->kids[1]->kids[0];
+        return 1;
+    }
+    *lhs = r;
+    *rhs = NULL;
+    return 0;
+}
+
+/* A relation parsed from "u = v" prints that way again. */
+static void put_relation(strbuf_t b, const pres_t p, slong i)
+{
+    const expr_node *u, *v;
+
+    if (pres_relation_sides(&u, &v, p, i)) {
+        put_owned(b, expr_node_get_str(u, p->gens));
         strbuf_puts(b, " = ");
-        put_owned(b, expr_node_get_str(r->kids[1]->kids[0], p->gens));
+        put_owned(b, expr_node_get_str(v, p->gens));
         return;
     }
-    put_owned(b, expr_node_get_str(r, p->gens));
+    put_owned(b, expr_node_get_str(u, p->gens));
 }
 
 char *pres_get_str(const pres_t p)

@@ -63,6 +63,11 @@ void pres_swap(pres_t a, pres_t b);
 ns_status pres_parse(pres_t out, const char *text, int line, int col,
                      nserr_t err);
 
+/* The two sides of relation i: for a relation written "u = v" (stored as
+ * u v^-1) *lhs = u, *rhs = v and the result is 1; for a plain relator w
+ * *lhs = w, *rhs = NULL and the result is 0.  The nodes are borrowed. */
+int pres_relation_sides(const expr_node **lhs, const expr_node **rhs, const pres_t p, slong i);
+
 /* "<a, b | [a,b,a], [a,b,b]>"; caller frees with flint_free. */
 char *pres_get_str(const pres_t p);
 

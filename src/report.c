@@ -80,6 +80,30 @@ static void put_quotient_group(strbuf_t b, const analysis_layer_struct *L, const
         strbuf_puts(b, "0");
 }
 
+/* "alpha(u) = word = normal word", the word left out when it is the
+ * normal word. */
+static void text_failure_side(strbuf_t b, const char *side, const char *word, const char *image)
+{
+    strbuf_printf(b, "      alpha(%s) = ", side);
+    if (word && strcmp(word, image) != 0)
+        strbuf_printf(b, "%s = ", word);
+    strbuf_printf(b, "%s\n", image);
+}
+
+static void text_failure(strbuf_t b, const analysis_t A, const analysis_failure_struct *f)
+{
+    if (f->lowest_class <= 1)
+        strbuf_puts(b, "      fails already on the class-1 quotient\n");
+    else
+        strbuf_printf(b, "      fails from class %ld on (holds on the class-%ld quotient)\n",
+                      (long)f->lowest_class, (long)(f->lowest_class - 1));
+    text_failure_side(b, f->lhs, f->lhs_word, f->lhs_image);
+    text_failure_side(b, f->rhs, f->rhs_word, f->rhs_image);
+    if (f->forced_gen >= 0)
+        strbuf_printf(b, "      the relation forces %s -> %s\n",
+                      A->nq->pres->gens->name[f->forced_gen], f->forced_image);
+}
+
 /* "Z/2 + Z/4", "trivial" or "not abelian". */
 static void put_torsion_structure(strbuf_t b, const torsion_t T, int latex)
 {
@@ -326,8 +350,10 @@ static void report_text(strbuf_t b, const analysis_t A, const char *title)
         strbuf_printf(b, "not well defined on the class-%ld quotient: %ld relator%s not mapped "
                        "to 1\n",
                     (long)A->class_requested, (long)A->nfail, A->nfail == 1 ? " is" : "s are");
-        for (slong k = 0; k < A->nfail; k++)
+        for (slong k = 0; k < A->nfail; k++) {
             strbuf_printf(b, "  %s  ->  %s\n", A->fail_relator[k], A->fail_image[k]);
+            text_failure(b, A, A->failures + k);
+        }
         return;
     }
     strbuf_printf(b, "              an endomorphism of the class-%ld quotient\n",
@@ -509,6 +535,23 @@ static void json_map_images(strbuf_t b, const analysis_t A)
         strbuf_put_json_str(b, A->fail_relator[k]);
         strbuf_puts(b, ", \"image\": ");
         strbuf_put_json_str(b, A->fail_image[k]);
+        const analysis_failure_struct *f = A->failures + k;
+        strbuf_printf(b, ", \"lowest_class\": %ld, \"lhs\": ", (long)f->lowest_class);
+        strbuf_put_json_str(b, f->lhs);
+        strbuf_puts(b, ", \"rhs\": ");
+        strbuf_put_json_str(b, f->rhs);
+        strbuf_puts(b, ", \"lhs_word\": ");
+        json_str_or_null(b, f->lhs_word);
+        strbuf_puts(b, ", \"rhs_word\": ");
+        json_str_or_null(b, f->rhs_word);
+        strbuf_puts(b, ", \"lhs_image\": ");
+        strbuf_put_json_str(b, f->lhs_image);
+        strbuf_puts(b, ", \"rhs_image\": ");
+        strbuf_put_json_str(b, f->rhs_image);
+        strbuf_puts(b, ", \"forced_generator\": ");
+        json_str_or_null(b, f->forced_gen >= 0 ? g->name[f->forced_gen] : NULL);
+        strbuf_puts(b, ", \"forced_image\": ");
+        json_str_or_null(b, f->forced_image);
         strbuf_puts(b, "}");
     }
     strbuf_puts(b, "],\n   \"images\": {");

@@ -733,6 +733,17 @@ static void validity_relator_in_gamma3(void **state)
     /* the image [[b,a],b] is the pc generator labelled [b,a,b] itself */
     printf("# failing relator %s -> %s\n", A->fail_relator[0], A->fail_image[0]);
     assert_string_equal(A->fail_image[0], "[b,a,b]");
+    /* the relator lies in gamma_3 and its image [b,a,b] is a weight-3 pc
+     * generator: the map is fine on the class-2 quotient (checked above)
+     * and fails from class 3 on; a relator has the sides w and 1 and
+     * defines no generator */
+    assert_int_equal(A->failures[0].lowest_class, 3);
+    assert_string_equal(A->failures[0].lhs, "[a,b,a]");
+    assert_string_equal(A->failures[0].lhs_word, "[b,a,b]");
+    assert_string_equal(A->failures[0].rhs, "1");
+    assert_string_equal(A->failures[0].rhs_image, "1");
+    assert_int_equal(A->failures[0].forced_gen, -1);
+    assert_null(A->failures[0].forced_image);
 
     /* an endomorphism of G itself stays valid: a -> a^2, b -> b^3 maps
      * [a,b,a] to [a^2,b^3,a^2], a power of [a,b,a] modulo gamma_4 */
@@ -754,8 +765,60 @@ static void validity_fails_in_abelianisation(void **state)
     assert_int_equal(A->nfail, 1);
     assert_string_equal(A->fail_relator[0], "a^2");
     assert_string_equal(A->fail_image[0], "b^2");
+    assert_int_equal(A->failures[0].lowest_class, 1);
     set_map(A, "a -> a, b -> a b^-1");
     assert_true(A->valid);
+    analysis_clear(A);
+}
+
+/* The Heisenberg group <x, y, z | z = [x,y], [x,z], [y,z]> with z's image
+ * left alone while x -> x^2, y -> y^3.  By hand: z is central, so
+ * [x^a, y^b] = [x,y]^(ab) and alpha([x,y]) = [x^2,y^3] = z^6, while
+ * alpha(z) = z: the relation fails on the class-2 quotient and holds on
+ * the abelianisation (both sides have exponent sums 0), and it forces
+ * z -> [x^2,y^3], i.e. z^6.  Setting either makes the map well defined. */
+static void failure_forced_image_heisenberg(void **state)
+{
+    (void)state;
+    analysis_t A;
+    analysis_init(A);
+    set_group(A, "<x, y, z | z = [x,y], [x,z], [y,z]>", 2);
+    set_map(A, "x -> x^2, y -> y^3, z -> z");
+    assert_false(A->valid);
+    assert_int_equal(A->nfail, 1);
+    const analysis_failure_struct *f = A->failures;
+    assert_int_equal(f->relation, 0);
+    assert_int_equal(f->lowest_class, 2);
+    assert_string_equal(f->lhs, "z");
+    assert_string_equal(f->rhs, "[x,y]");
+    assert_string_equal(f->lhs_word, "z");
+    assert_string_equal(f->rhs_word, "[x^2,y^3]");
+    assert_int_equal(f->forced_gen, 2);
+    assert_string_equal(f->forced_image, "[x^2,y^3]");
+    /* the normal words: alpha(rhs) is the sixth power of alpha(lhs) = z,
+     * whatever the sign of the label (z = [x,y] and the pc label is one
+     * of [x,y], [y,x]) */
+    printf("# alpha(z) = %s, alpha([x,y]) = %s\n", f->lhs_image, f->rhs_image);
+    char want[64];
+    snprintf(want, sizeof want, "%s^6", f->lhs_image);
+    if (strchr(f->lhs_image, '^') == NULL)
+        assert_string_equal(f->rhs_image, want);
+    else
+        assert_true(strcmp(f->lhs_image, "[y,x]^-1") == 0 && strcmp(f->rhs_image, "[y,x]^-6") == 0);
+    set_map(A, "x -> x^2, y -> y^3, z -> [x^2,y^3]");
+    assert_true(A->valid);
+    set_map(A, "x -> x^2, y -> y^3, z -> z^6");
+    assert_true(A->valid);
+    /* the relation written the other way round forces the same image */
+    set_group(A, "<x, y, z | [x,y] = z, [x,z], [y,z]>", 2);
+    set_map(A, "x -> x^2, y -> y^3, z -> z");
+    assert_int_equal(A->failures[0].forced_gen, 2);
+    assert_string_equal(A->failures[0].forced_image, "[x^2,y^3]");
+    /* z occurs on both sides: no generator is defined by the relation */
+    set_group(A, "<x, y, z | z = [x,y] z^2, [x,z], [y,z]>", 2);
+    set_map(A, "x -> x^2, y -> y^3, z -> z");
+    if (!A->valid)
+        assert_int_equal(A->failures[0].forced_gen, -1);
     analysis_clear(A);
 }
 
@@ -959,6 +1022,7 @@ int main(void)
         cmocka_unit_test(growth_rate_torsion_keeps_it_one),
         cmocka_unit_test(validity_relator_in_gamma3),
         cmocka_unit_test(validity_fails_in_abelianisation),
+        cmocka_unit_test(failure_forced_image_heisenberg),
         cmocka_unit_test(maps_given_as_values),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
