@@ -67,11 +67,14 @@ static void full_build(explorer_app *app, paint_lines *t)
     if (!A->has_map) {
         paint_lines_add(t, ROLE_ERROR, "No map analysed.");
     } else if (!A->valid) {
-        paint_lines_add(t, ROLE_HEADING, "Relators that do not map to 1 in the class-%ld quotient",
+        paint_lines_add(t, ROLE_HEADING, "Relations that do not hold in the class-%ld quotient",
                         (long)app->cls);
-        for (slong k = 0; k < A->nfail; k++)
+        for (slong k = 0; k < A->nfail; k++) {
             paint_lines_add(t, ROLE_NORMAL, "  %s  %s  %s", A->fail_relator[k], arrow,
                             A->fail_image[k]);
+            if (A->failures)
+                screen_main_failure_lines(app, k, t, 1);
+        }
     } else {
         paint_lines_add(t, ROLE_HEADING, "Growth");
         paint_lines_add(t, ROLE_NUMBER, "  lower bound L = %s (layer %ld)", A->lower_bound_str,

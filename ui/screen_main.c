@@ -433,23 +433,57 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
     flint_free(it[2].digits);
 }
 
+/* Adds the lines that tell failing relation k (main screen and full
+ * screen alike): where it starts to fail, both sides' images in the user's
+ * generators, the image it forces.  Returns the number of lines added. */
+int screen_main_failure_lines(const explorer_app *app, slong k, paint_lines *t, int full)
+{
+    /* full: under a line that already names the relation, indented */
+    const char *rel = full ? " " : app->A->fail_relator[k], *ind = full ? "    " : "  ";
+    const analysis_struct *A = app->A;
+    const analysis_failure_struct *f = A->failures + k;
+    const char *alpha = sym(app, "\xCE\xB1", "alpha");
+    const char *to = sym(app, "\xE2\x86\xA6", "->");
+    int n0 = t->n;
+    if (f->lowest_class <= 1)
+        paint_lines_add(t, ROLE_NORMAL, "%s   fails already on the class-1 quotient", rel);
+    else
+        paint_lines_add(t, ROLE_NORMAL, "%s   fails from class %ld on (holds at class %ld)", rel,
+                        (long)f->lowest_class, (long)(f->lowest_class - 1));
+    const char *side[2] = {f->lhs, f->rhs}, *word[2] = {f->lhs_word, f->rhs_word},
+               *img[2] = {f->lhs_image, f->rhs_image};
+    for (int i = 0; i < 2; i++) {
+        if (word[i] && strcmp(word[i], img[i]) != 0)
+            paint_lines_add(t, ROLE_NUMBER, "%s%s(%s) = %s = %s", ind, alpha, side[i], word[i],
+                            img[i]);
+        else
+            paint_lines_add(t, ROLE_NUMBER, "%s%s(%s) = %s", ind, alpha, side[i], img[i]);
+    }
+    if (f->forced_gen >= 0)
+        paint_lines_add(t, ROLE_NUMBER, "%sthe relation forces %s %s %s   (f sets it)", ind,
+                        app->vm->names[f->forced_gen], to, f->forced_image);
+    return t->n - n0;
+}
+
 static void draw_failures(explorer_app *app, int y)
 {
     const analysis_struct *A = app->A;
     paint_textf(y, 0, COLS, ROLE_ERROR,
-                "Not well defined: these relators do not map to 1 in the class-%ld quotient.",
+                "Not well defined: %ld relation%s fail%s on the class-%ld quotient (v: in full).",
+                (long)A->nfail, A->nfail == 1 ? "" : "s", A->nfail == 1 ? "s" : "",
                 (long)app->cls);
+    paint_lines t = {0};
+    for (slong k = 0; A->failures && k < A->nfail && t.n < BOTTOM_ROWS; k++)
+        screen_main_failure_lines(app, k, &t, 0);
     int room = BOTTOM_ROWS - 1;
-    for (slong k = 0; k < A->nfail && k < room; k++) {
-        if (k == room - 1 && A->nfail > room) {
-            paint_textf(y + 1 + (int)k, 2, COLS - 2, ROLE_DIM,
-                        "... and %ld more (nilstep report lists all)", (long)(A->nfail - k));
-            break;
-        }
-        int x = 2 + paint_textf(y + 1 + (int)k, 2, COLS - 2, ROLE_NORMAL, "%s  %s  ",
-                                A->fail_relator[k], sym(app, "\xE2\x86\xA6", "->"));
-        paint_text(y + 1 + (int)k, x, COLS - x, ROLE_NUMBER, A->fail_image[k]);
+    for (int i = 0; i < t.n && i < room; i++) {
+        if (i == room - 1 && t.n > room)
+            paint_text(y + 1 + i, 2, COLS - 2, ROLE_DIM,
+                       "... more (v shows every failing relation in full)");
+        else
+            paint_text(y + 1 + i, 2, COLS - 2, t.v[i].role, t.v[i].text);
     }
+    paint_lines_free(&t);
 }
 
 void screen_main_draw(explorer_app *app)
@@ -542,6 +576,34 @@ static int act_identity_image(explorer_app *app)
     app->map_action = 'S';
     app_status(app, 0, "%s now maps to itself", app->vm->names[i]);
     return ACT_MAP | ACT_REDRAW;
+}
+
+/* The first failing relation that defines a generator whose image is not
+ * already the forced one sets it (an image edit: u undoes it). */
+static int act_forced_image(explorer_app *app)
+{
+    const analysis_struct *A = app->A;
+    if (!A->has_map || A->valid || !A->failures) {
+        app_status(app, 1, "no failing relation forces an image");
+        return ACT_REDRAW;
+    }
+    for (slong k = 0; k < A->nfail; k++) {
+        const analysis_failure_struct *f = A->failures + k;
+        size_t x = (size_t)f->forced_gen;
+        if (f->forced_gen < 0 || x >= app->vm->ngens ||
+            strcmp(app->vm->images[x], f->forced_image) == 0)
+            continue;
+        if (!viewmodel_set_image(app->vm, x, f->forced_image))
+            continue;
+        app->vm->sel_image = x;
+        app->map_edited = 1;
+        app->map_action = 'S';
+        app_status(app, 0, "%s now maps to %s, as %s forces", app->vm->names[x], f->forced_image,
+                   A->fail_relator[k]);
+        return ACT_MAP | ACT_REDRAW;
+    }
+    app_status(app, 1, "no failing relation forces an image");
+    return ACT_REDRAW;
 }
 
 /* After an undo or redo: image edits analyse the map again; document
@@ -734,6 +796,8 @@ static const ui_binding main_bindings[] = {
     {'v', act_full, "v", "every value in full: the selected image and layer, all digits of "
      "every number, whole lines where the screen had to cut", "v full"},
     {'i', act_identity_image, "i", "map the selected generator to itself", NULL},
+    {'f', act_forced_image, "f", "when a failing relation z = w defines a generator, give z the "
+     "image the relation forces", NULL},
     {'n', act_iterates, "n", "iterates of the selected generator (or the session's element): table and plot", "n iterates"},
     {'b', act_bounds, "b", "the bounds as a chart: rho_j^(1/j) per layer, growth rate, max rho_k", NULL},
     {'c', act_recompute, "c", "compute again: after a cancel, what was cancelled", NULL},

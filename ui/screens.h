@@ -9,9 +9,13 @@
 #define NILSTEP_UI_SCREENS_H
 
 #include "app.h"
+#include "paint.h"
 
 void screen_main_draw(explorer_app *app);
 const ui_keymap *screen_main_keys(void);
+/* Adds the lines that tell failing relation k of app->A to t (full: for
+ * the full screen, under a line naming the relation); returns how many. */
+int screen_main_failure_lines(const explorer_app *app, slong k, paint_lines *t, int full);
 
 void screen_layer_draw(explorer_app *app);
 const ui_keymap *screen_layer_keys(void);
