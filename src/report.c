@@ -98,7 +98,8 @@ static void text_failure(strbuf_t b, const analysis_t A, const analysis_failure_
         strbuf_printf(b, "      fails from class %ld on (holds on the class-%ld quotient)\n",
                       (long)f->lowest_class, (long)(f->lowest_class - 1));
     text_failure_side(b, f->lhs, f->lhs_word, f->lhs_image);
-    text_failure_side(b, f->rhs, f->rhs_word, f->rhs_image);
+    if (strcmp(f->rhs, "1") != 0) /* a plain relator: alpha(1) = 1 says nothing */
+        text_failure_side(b, f->rhs, f->rhs_word, f->rhs_image);
     if (f->forced_gen >= 0)
         strbuf_printf(b, "      the relation forces %s -> %s\n",
                       A->nq->pres->gens->name[f->forced_gen], f->forced_image);

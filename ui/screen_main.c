@@ -453,6 +453,8 @@ int screen_main_failure_lines(const explorer_app *app, slong k, paint_lines *t, 
     const char *side[2] = {f->lhs, f->rhs}, *word[2] = {f->lhs_word, f->rhs_word},
                *img[2] = {f->lhs_image, f->rhs_image};
     for (int i = 0; i < 2; i++) {
+        if (i == 1 && strcmp(f->rhs, "1") == 0)
+            break; /* a plain relator: alpha(1) = 1 says nothing */
         if (word[i] && strcmp(word[i], img[i]) != 0)
             paint_lines_add(t, ROLE_NUMBER, "%s%s(%s) = %s = %s", ind, alpha, side[i], word[i],
                             img[i]);
