@@ -15,7 +15,7 @@
 #include <time.h>
 
 #include "endo.h"
-#include "iterate.h"
+#include "iterate_norm.h"
 #include "pres.h"
 #include "wordlen.h"
 

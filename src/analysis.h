@@ -15,11 +15,14 @@
  * All strings (and arrays of strings) are owned by the analysis, allocated
  * with flint_malloc as everywhere in the engine (strbuf.h), and stay valid
  * until the next analysis_set_* or analysis_clear; the static texts
- * (growth_reason, undefined_reason, inverse_reason) are never freed. */
+ * (growth_reason, undefined_reason, inverse_reason) are never freed.
+ * The explorer's screens read it through analysis_view.h, which gives what
+ * they show without the internal structures and their headers. */
 #ifndef NILSTEP_ANALYSIS_H
 #define NILSTEP_ANALYSIS_H
 
 #include <flint/fmpz_mat.h>
+#include "analysis_view.h"
 #include "endo.h"
 #include "layer.h"
 #include "nq.h"
@@ -57,41 +60,9 @@ typedef struct {
     spectrum_t spectrum;   /* the full spectral data of matrix */
 } analysis_layer_struct;
 
-/* One relation that the map does not respect, told in the user's own
- * terms.  A relation "u = v" has the sides u and v; a plain relator w the
- * sides w and 1.  Each image of a side is given twice: as a word in the
- * input generators (the side with every generator replaced by its image
- * as the user wrote it, e.g. alpha([a,b]) = [a^2,b]), and as the normal
- * word in the pc labels, which are left-normed commutators of the input
- * generators (e.g. [b,a]^-2): the first is what the user typed, the second
- * lets two images be compared letter by letter. */
-typedef struct {
-    slong relation;        /* index into nq->pres */
-    char *lhs, *rhs;       /* the sides as written; rhs "1" for a relator */
-    char *lhs_word, *rhs_word;   /* alpha(side) in the input generators, or
-                                    NULL for a map given as a value */
-    char *lhs_image, *rhs_image; /* alpha(side) as normal words */
-    /* the least c' <= class at which the relation fails on the class-c'
-     * quotient: the weight of the leading pc generator of
-     * alpha(lhs) alpha(rhs)^-1 (the class-c' quotient is the prefix of
-     * weight <= c', and normal words are unique) */
-    slong lowest_class;
-    /* a relation x = w or w = x with x an input generator that does not
-     * occur in w defines x: its image must be alpha(w).  forced_gen is x
-     * (or -1), forced_image that image as a word in the input generators
-     * (lhs_word/rhs_word of w; its normal word for a map given as a
-     * value).  Setting it makes this relation hold. */
-    slong forced_gen;
-    char *forced_image;
-} analysis_failure_struct;
+/* analysis_failure_struct and analysis_reid_kind: analysis_view.h */
 
-typedef enum {
-    ANALYSIS_REID_UNDEFINED = 0,
-    ANALYSIS_REID_FINITE,
-    ANALYSIS_REID_INFINITE
-} analysis_reid_kind;
-
-typedef struct {
+typedef struct analysis_struct {
     /* group stage */
     int has_group;
     int group_borrowed;          /* the group stage belongs to another analysis

@@ -1,7 +1,8 @@
 /* iterate.c — see iterate.h. */
+#include <math.h>
 #include <stdlib.h>
 #include <string.h>
-#include "iterate.h"
+#include "iterate_norm.h"
 #include "spectrum.h"
 #include "strbuf.h"
 
@@ -623,6 +624,18 @@ static void norm_fn(arb_t out, const void *ctx, slong prec)
 static void root_fn(arb_t out, const void *ctx, slong prec)
 {
     iterate_point_root(out, (const iterate_point_struct *)ctx, prec);
+}
+
+double iterate_point_root_d(const iterate_point_t p)
+{
+    if (p->n == 0)
+        return NAN;
+    arb_t r;
+    arb_init(r);
+    iterate_point_root(r, p, 64);
+    double d = arf_get_d(arb_midref(r), ARF_RND_NEAR);
+    arb_clear(r);
+    return d;
 }
 
 char *iterate_point_norm_str(const iterate_point_t p, slong digits)

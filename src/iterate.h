@@ -41,11 +41,12 @@
  * LMS 25, 1972), so N(alpha^n(w))^(1/n) tends to the growth rate when w
  * carries the top growth.
  *
- * Nothing here prints.  Strings are flint_malloc'd (flint_free). */
+ * Nothing here prints.  Strings are flint_malloc'd (flint_free).  The
+ * functions that return Arb balls are in iterate_norm.h, so that this
+ * header does not need Arb's (the explorer's screens include it). */
 #ifndef NILSTEP_ITERATE_H
 #define NILSTEP_ITERATE_H
 
-#include <arb.h>
 #include "endo.h"
 #include "layer.h"
 #include "nq.h"
@@ -120,10 +121,9 @@ void iterate_point_clear(iterate_point_t p);
 /* Describes x = alpha^n(w). */
 void iterate_point_set(iterate_point_t p, const iterate_map_t M, const fmpz *x, ulong n);
 
-/* The homogeneous norm as a certified ball at precision prec. */
-void iterate_point_norm(arb_t out, const iterate_point_t p, slong prec);
-/* N(p)^(1/n) at precision prec; n = 0 gives an indeterminate ball. */
-void iterate_point_root(arb_t out, const iterate_point_t p, slong prec);
+/* N(p)^(1/n) as a double, the midpoint of the ball at 64 bits (for
+ * pictures); NaN for n = 0.  The certified balls: iterate_norm.h. */
+double iterate_point_root_d(const iterate_point_t p);
 
 /* Certified decimals with `digits` significant digits (spectrum.h's
  * rule: every digit shown is right; exact 0 prints "0"), computing with
@@ -131,9 +131,5 @@ void iterate_point_root(arb_t out, const iterate_point_t p, slong prec);
  * returns NULL for n = 0. */
 char *iterate_point_norm_str(const iterate_point_t p, slong digits);
 char *iterate_point_root_str(const iterate_point_t p, slong digits);
-/* The same for any ball-valued quantity recomputed by fn at rising
- * precision (fn(out, ctx, prec)). */
-char *iterate_decimal_str(void (*fn)(arb_t, const void *, slong), const void *ctx,
-                          slong digits);
 
 #endif

@@ -423,7 +423,8 @@ static void norm_of_known_iterate_should_be_exact(void **state)
     iterate_point_set(p, M, x, 300);
     fmpz_t six;
     fmpz_init(six);
-    fmpz_ui_pow_ui(six, 6, 300);
+    fmpz_set_ui(six, 6);
+    fmpz_pow_ui(six, six, 300);
     assert_true(fmpz_cmpabs(p->layers[1].coords, six) == 0);
     assert_int_equal(p->layers[1].digits, 234); /* 300 log10 6 = 233.4 */
     char *root = iterate_point_root_str(p, 12);

@@ -5,7 +5,12 @@
 #     of quoted includes in src/ and ui/ has no cycle;
 #   - a file calls no function defined in a file of a higher layer (so no
 #     screen calls back into the dispatcher explorer.c);
-# Needs NILSTEP_SOURCE_DIR.
+#   - the screens, the prompt and the frame see no Arb, Acb or Calcium
+#     header and not src/analysis.h, directly or through another header
+#     (the compiler's own list of included files, with the flags of
+#     compile_commands.json): they read the analysis through
+#     src/analysis_view.h only.
+# Needs NILSTEP_SOURCE_DIR and NILSTEP_BUILD_DIR.
 set -u
 src=${NILSTEP_SOURCE_DIR:-$(cd "$(dirname "$0")/.." && pwd)}
 build=${NILSTEP_BUILD_DIR:-$src/build}
@@ -13,9 +18,9 @@ PY=/usr/bin/python3
 [[ -x $PY ]] || { echo "skip: no /usr/bin/python3"; exit 77; }
 
 exec "$PY" - "$src" "$build" <<'EOF'
-import os, re, sys
+import json, os, re, shlex, subprocess, sys
 
-src = sys.argv[1]
+src, build = sys.argv[1], sys.argv[2]
 ui = os.path.join(src, "ui")
 problems = []
 
@@ -115,9 +120,54 @@ for f, t in texts.items():
         if re.search(r"\b" + re.escape(name) + r"\s*\(", t):
             problems.append(f"ui/{f} (layer {lf}) calls {name}() of ui/{g} (layer {lg})")
 
+# ---- the screens, the prompt and the frame see no Arb, Acb or Calcium
+# header and not the analysis itself (analysis.h), only its read-only view
+# (analysis_view.h)
+cc_json = os.path.join(build, "compile_commands.json")
+if not os.path.exists(cc_json):
+    print(f"skip: {cc_json} not found (configure the build first)")
+    sys.exit(77)
+heavy = re.compile(r"(^|/)(arb|acb|arf|mag|arb_[a-z_]*|acb_[a-z_]*)\.h$|/calcium/|/src/analysis\.h$")
+checked = 0
+for e in json.load(open(cc_json)):
+    path = os.path.realpath(e["file"])
+    base = os.path.basename(path)
+    if os.path.dirname(path) != os.path.realpath(ui):
+        continue
+    if not (base.startswith("screen_") or base in ("prompt.c", "frame.c")):
+        continue
+    args = e["arguments"] if "arguments" in e else shlex.split(e["command"])
+    out = []
+    skip = False
+    for a in args:
+        if skip:
+            skip = False
+            continue
+        if a == "-o":
+            skip = True
+            continue
+        if a == "-c" or a.startswith("-MD") or a.startswith("-MF") or a.startswith("-MT") or a.startswith("-MQ"):
+            if a in ("-MF", "-MT", "-MQ"):
+                skip = True
+            continue
+        out.append(a)
+    r = subprocess.run(out + ["-M"], cwd=e["directory"], capture_output=True, text=True)
+    if r.returncode != 0:
+        problems.append(f"ui/{base}: the compiler could not list its headers: {r.stderr.strip()[:300]}")
+        continue
+    checked += 1
+    deps = r.stdout.replace("\\\n", " ").split()
+    bad = sorted({d for d in deps if heavy.search(d)})
+    if bad:
+        problems.append(f"ui/{base} sees {', '.join(os.path.basename(b) for b in bad[:4])}"
+                        f"{' ...' if len(bad) > 4 else ''}")
+if checked == 0:
+    problems.append("no screen found in compile_commands.json: fix this test")
+
 for p in problems:
     print("FAIL:", p)
 if problems:
     sys.exit(1)
-print(f"ui layers: {len(files)} files, {len(defined)} functions")
+print(f"ui layers: {len(files)} files, {len(defined)} functions, "
+      f"{checked} files checked for Arb, Acb, Calcium and analysis.h")
 EOF

@@ -19,7 +19,7 @@
 
 #include <stddef.h>
 
-#include "analysis.h"
+#include "analysis_view.h"
 #include "lineedit.h"
 #include "pres.h"
 #include "session.h"

@@ -192,11 +192,13 @@ static int derived_map(analysis_t A, const char *power, const char *then,
         }
     }
     if (then) {
-        slong X = A->nq->pres->gens->n;
+        analysis_view_t V;
+        analysis_get_view(V, A);
+        slong X = V->pres->gens->n;
         expr_struct *im = flint_malloc(FLINT_MAX(X, 1) * sizeof(expr_struct));
         for (slong x = 0; x < X; x++)
             expr_init(im + x);
-        st = pres_parse_map(im, A->nq->pres, then, 1, 1, err);
+        st = pres_parse_map(im, V->pres, then, 1, 1, err);
         if (st == NS_OK)
             st = analysis_compose_endo(E, A, im, pp, err);
         for (slong x = 0; x < X; x++)

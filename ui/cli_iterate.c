@@ -8,7 +8,7 @@
 #include <unistd.h>
 #include "analysis.h"
 #include "cli.h"
-#include "iterate.h"
+#include "iterate_norm.h"
 #include "session.h"
 #include "spectrum.h"
 #include "strbuf.h"
@@ -219,11 +219,10 @@ static void emit_step(strbuf_t b, iter_out *o, const nq_t Q, const char *elt_tex
 
 /* Iterates one element: w0 is the element, printed at n = 0, every, 2 every,
  * ... and always at steps.  Returns NS_OK or the status that stopped it. */
-static ns_status run_element(iter_out *o, iterate_map_t M, const nq_t Q, wordlen_t ball,
+static ns_status run_element(iter_out *o, iterate_map_t M, const nq_t Q, slong n, wordlen_t ball,
                              const char *elt_text, const fmpz *w0, ulong steps, ulong every,
                              iter_maxroot *mx, const ns_progress_t *pp, nserr_t err)
 {
-    slong n = Q->pcp->n;
     fmpz *x = _fmpz_vec_init(FLINT_MAX(n, 1));
     _fmpz_vec_set(x, w0, n);
     iterate_point_t p;
@@ -390,6 +389,7 @@ int cli_iterate(int argc, char **argv)
     int have_ball = 0;
     expr_struct *ex = NULL;
     fmpz *w0 = NULL;
+    slong n = 0; /* pc generators, once the quotient is there */
     iter_maxroot mx = {0, NULL, NULL, NULL};
     slong nel = 0;
     char **names = NULL;
@@ -489,8 +489,10 @@ int cli_iterate(int argc, char **argv)
         status = 1;
         goto done;
     }
-    const nq_struct *Q = A->nq;
-    slong n = Q->pcp->n;
+    analysis_view_t V;
+    analysis_get_view(V, A);
+    const nq_struct *Q = V->quotient;
+    n = V->npc;
     w0 = _fmpz_vec_init(FLINT_MAX(nel * n, 1));
     for (slong e = 0; e < nel; e++) {
         st = nq_eval(Q, w0 + e * n, ex + e, pp, err);
@@ -516,25 +518,25 @@ int cli_iterate(int argc, char **argv)
 
     strbuf_t copy;
     strbuf_init(copy);
-    iter_out o = {fmt, A->growth_str ? A->growth_str : "", Q->class_reached, 1, 1,
+    iter_out o = {fmt, A->growth_str ? A->growth_str : "", V->class_reached, 1, 1,
                   fmt == FMT_JSON && nel == 1 ? copy : NULL};
     if (fmt == FMT_JSON) {
         printf("{\"growth_rate\": \"%s\", \"growth_reason\": ", o.growth);
         strbuf_t b;
         strbuf_init(b);
         strbuf_put_json_str(b, A->growth_reason ? A->growth_reason : "");
-        printf("%s, \"class\": %ld, \"elements\": [", b->s, (long)Q->class_reached);
+        printf("%s, \"class\": %ld, \"elements\": [", b->s, (long)V->class_reached);
         strbuf_clear(b);
     } else if (fmt == FMT_CSV) {
         printf("element,n,word_length,norm,norm_root,growth_rate");
-        for (slong j = 1; j <= Q->class_reached; j++)
+        for (slong j = 1; j <= V->class_reached; j++)
             printf(",digits_%ld", (long)j);
         printf(",normal_word\n");
     } else {
         printf("growth rate %s\n(%s)\n\n", o.growth, A->growth_reason ? A->growth_reason : "");
     }
     for (slong e = 0; e < nel && st == NS_OK; e++)
-        st = run_element(&o, M, Q, ball, names[e], w0 + e * n, S, K, &mx, pp, err);
+        st = run_element(&o, M, Q, n, ball, names[e], w0 + e * n, S, K, &mx, pp, err);
     if (ps.shown)
         fputs("\r\033[K", stderr);
     if (st != NS_OK) {
@@ -593,7 +595,7 @@ done:
     free(mx.n);
     free(mx.have);
     if (w0)
-        _fmpz_vec_clear(w0, FLINT_MAX(nel * A->nq->pcp->n, 1));
+        _fmpz_vec_clear(w0, FLINT_MAX(nel * n, 1));
     if (have_ball)
         wordlen_clear(ball);
     if (ex) {

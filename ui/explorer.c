@@ -16,6 +16,7 @@
 #include <time.h>
 #include <unistd.h>
 
+#include "analysis.h"
 #include "app.h"
 #include "frame.h"
 #include "screens.h"
@@ -707,11 +708,13 @@ static void explorer_do_group(explorer_app *app)
         snprintf(app->group_problem, sizeof app->group_problem, "map not analysed: %s", err->msg);
         app_status(app, 1, "map not analysed: %s", err->msg);
     } else {
+        analysis_view_t V;
+        analysis_get_view(V, B);
         app->group_problem[0] = '\0';
         if (nreset)
             app_status(app, 0, "class %ld: Hirsch length %ld; %d image%s no longer parse%s: "
                                "reset to the identity (u undoes)",
-                       (long)cls, (long)B->nq->hirsch_length, nreset, nreset == 1 ? "" : "s",
+                       (long)cls, (long)V->hirsch_length, nreset, nreset == 1 ? "" : "s",
                        nreset == 1 ? "s" : "");
         else {
             char how[64] = "";
@@ -719,7 +722,7 @@ static void explorer_do_group(explorer_app *app)
                 snprintf(how, sizeof how, " (%s class %ld)",
                          cls > old_cls ? "extended from" : "prefix of", (long)old_cls);
             app_status(app, 0, "class %ld: Hirsch length %ld%s%s", (long)cls,
-                       (long)B->nq->hirsch_length, how, changed && !hist ? " (u undoes)" : "");
+                       (long)V->hirsch_length, how, changed && !hist ? " (u undoes)" : "");
         }
     }
     pres_set(app->pres, G);

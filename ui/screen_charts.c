@@ -21,9 +21,10 @@ static double num(const char *s)
     return s ? strtod(s, NULL) : 0.0;
 }
 
-char **screen_charts_eigen_rows(const explorer_app *app, const analysis_layer_struct *L, int w,
-                                int h, int *nrows)
+char **screen_charts_eigen_rows(const explorer_app *app, slong j, int w, int h, int *nrows)
 {
+    analysis_layer_view_t L;
+    analysis_get_layer_view(L, app->A, j);
     *nrows = 0;
     if (L->nev <= 0 || w < 8 || h < 3)
         return NULL;
@@ -32,9 +33,7 @@ char **screen_charts_eigen_rows(const explorer_app *app, const analysis_layer_st
     if (re == NULL || im == NULL)
         abort();
     for (slong k = 0; k < L->nev; k++) {
-        acb_srcptr z = spectrum_eigenvalue(L->spectrum, k);
-        re[k] = z ? arf_get_d(arb_midref(acb_realref(z)), ARF_RND_NEAR) : 0;
-        im[k] = z ? arf_get_d(arb_midref(acb_imagref(z)), ARF_RND_NEAR) : 0;
+        analysis_get_eigenvalue_d(re + k, im + k, app->A, j, k);
     }
     plot_canvas c;
     plot_canvas_init(&c, w, h, !app->utf8);
@@ -60,7 +59,8 @@ char **screen_charts_eigen_rows(const explorer_app *app, const analysis_layer_st
 void screen_bounds_draw(explorer_app *app)
 {
     app_draw_header(app, "bounds chart");
-    const analysis_struct *A = app->A;
+    analysis_view_t A;
+    analysis_get_view(A, app->A);
     if (!A->has_group || !A->has_map || !A->valid) {
         paint_text(2, 1, COLS - 2, ROLE_ERROR, "No well-defined map: no bounds to draw.");
         app_draw_hints(app, screen_bounds_keys());
@@ -73,7 +73,9 @@ void screen_bounds_draw(explorer_app *app)
         abort();
     double gr = num(A->growth_str), up = num(A->upper_bound_str), vmax = up;
     for (int j = 0; j < n; j++) {
-        v[j] = num(A->layers[j].root_bound_str);
+        analysis_layer_view_t L;
+        analysis_get_layer_view(L, app->A, j);
+        v[j] = num(L->root_bound_str);
         if (v[j] > vmax)
             vmax = v[j];
     }

@@ -27,7 +27,8 @@ static void full_int(paint_lines *t, const char *label, const fmpz_t v)
 
 static void full_build(explorer_app *app, paint_lines *t)
 {
-    const analysis_struct *A = app->A;
+    analysis_view_t A;
+    analysis_get_view(A, app->A);
     const char *arrow = app->utf8 ? "\xE2\x86\xA6" : "->";
     paint_lines_add(t, ROLE_HEADING, "Title");
     paint_lines_add(t, ROLE_NORMAL, "  %s", app->title);
@@ -50,7 +51,8 @@ static void full_build(explorer_app *app, paint_lines *t)
     }
     if (A->has_group && app->vm->sel_layer < (size_t)A->nlayers) {
         slong j = (slong)app->vm->sel_layer;
-        const analysis_layer_struct *L = A->layers + j;
+        analysis_layer_view_t L;
+        analysis_get_layer_view(L, app->A, j);
         paint_lines_add(t, ROLE_HEADING, "Selected layer %ld: %s", (long)(j + 1),
                         L->group_str ? L->group_str : "?");
         if (A->has_map && A->valid && L->rho_str) {
@@ -60,8 +62,8 @@ static void full_build(explorer_app *app, paint_lines *t)
             full_int(t, "det M", L->det);
             full_int(t, "det(I - M)", L->det_i_minus);
         }
-        for (slong k = 0; k < L->layer->free_rank; k++)
-            paint_lines_add(t, ROLE_NORMAL, "  e%ld = %s", (long)(k + 1), L->layer->basis[k]);
+        for (slong k = 0; k < L->free_rank; k++)
+            paint_lines_add(t, ROLE_NORMAL, "  e%ld = %s", (long)(k + 1), L->basis[k]);
         paint_lines_add(t, ROLE_NORMAL, "%s", "");
     }
     if (!A->has_map) {

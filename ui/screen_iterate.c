@@ -133,13 +133,8 @@ static void record(screen_iterate_state *s)
     iterate_point_set(p, s->M, s->x, s->at);
     long i = s->npts++;
     s->root[i] = NAN;
-    if (s->at > 0) {
-        arb_t r;
-        arb_init(r);
-        iterate_point_root(r, p, 64);
-        s->root[i] = arf_get_d(arb_midref(r), ARF_RND_NEAR);
-        arb_clear(r);
-    }
+    if (s->at > 0)
+        s->root[i] = iterate_point_root_d(p);
     char buf[256];
     size_t k = 0;
     buf[0] = '\0';
@@ -173,7 +168,8 @@ static void run_start(explorer_app *app, const char *text, slong gen, int keep)
 {
     screen_iterate_state *s = state_of(app);
     run_clear(s);
-    const analysis_struct *A = app->A;
+    analysis_view_t A;
+    analysis_get_view(A, app->A);
     if (!A->has_group || !A->has_map || !A->valid) {
         snprintf(s->msg, sizeof s->msg, "no well-defined map to iterate%s%.700s",
                  app->group_problem[0] ? ": " : "", app->group_problem);
@@ -183,11 +179,11 @@ static void run_start(explorer_app *app, const char *text, slong gen, int keep)
     nserr_init(err);
     expr_t e;
     expr_init(e);
-    const nq_struct *Q = A->nq;
-    s->npc = Q->pcp->n;
+    const nq_struct *Q = A->quotient;
+    s->npc = A->npc;
     s->x = _fmpz_vec_init(FLINT_MAX(s->npc, 1));
     s->have = 1; /* from here on run_clear frees M, x */
-    if (expr_parse(e, text, 1, 1, Q->pres->gens, err) != NS_OK ||
+    if (expr_parse(e, text, 1, 1, A->pres->gens, err) != NS_OK ||
         nq_eval(Q, s->x, e, NULL, err) != NS_OK ||
         iterate_map_set(s->M, Q, A->endo, NULL, err) != NS_OK) {
         snprintf(s->msg, sizeof s->msg, "%d:%d: %.600s", err->line, err->col, err->msg);
@@ -320,8 +316,10 @@ void screen_iterate_draw(explorer_app *app)
         paint_text(2, 1, COLS - 2, s->msg[0] ? ROLE_ERROR : ROLE_NORMAL,
                    s->msg[0] ? s->msg : "no run: e types an element, Left/Right pick a generator");
     } else {
+        analysis_view_t A;
+        analysis_get_view(A, app->A);
         paint_textf(y++, 1, COLS - 2, ROLE_HEADING, "%s^n(%s), n = 0..%ld   growth rate %s", alpha,
-                    s->word, s->steps, app->A->growth_str ? app->A->growth_str : "?");
+                    s->word, s->steps, A->growth_str ? A->growth_str : "?");
         int table_rows = (LINES - 6) / 2 - 1;
         if (table_rows < 3)
             table_rows = 3;

@@ -58,13 +58,15 @@ static void detail_matrix(paint_lines *t, const fmpz_mat_t M)
 
 static void detail_build(explorer_app *app, paint_lines *t)
 {
-    const analysis_struct *A = app->A;
+    analysis_view_t A;
+    analysis_get_view(A, app->A);
     if (!A->has_group || app->vm->sel_layer >= (size_t)A->nlayers) {
         paint_lines_add(t, ROLE_ERROR, "No layer to show.");
         return;
     }
     slong j = (slong)app->vm->sel_layer + 1;
-    const analysis_layer_struct *L = A->layers + j - 1;
+    analysis_layer_view_t L;
+    analysis_get_layer_view(L, app->A, j - 1);
     const char *rho = sym(app, "\xCF\x81", "rho");
     const char *gam = sym(app, "\xCE\xB3", "gamma");
 
@@ -72,33 +74,33 @@ static void detail_build(explorer_app *app, paint_lines *t)
                     gam, (long)(j + 1), sym(app, "\xE2\x89\x85", "="),
                     L->group_str ? L->group_str : "?");
     /* every pc generator of the layer is accounted for */
-    long dep = (long)(L->layer->count - L->layer->free_rank - L->layer->ntors);
+    long dep = (long)(L->count - L->free_rank - L->ntors);
     paint_lines_add(t, ROLE_NORMAL,
                     "  %ld pc generator%s: %ld for the free part, %ld for torsion factors, "
                     "%ld dependent",
-                    (long)L->layer->count, L->layer->count == 1 ? "" : "s",
-                    (long)L->layer->free_rank, (long)L->layer->ntors, dep);
+                    (long)L->count, L->count == 1 ? "" : "s",
+                    (long)L->free_rank, (long)L->ntors, dep);
     if (dep > 0)
         paint_lines_add(
             t, ROLE_DIM,
             "  (dependent: the layer's relations write %s through the other pc generators,"
             " so %s nothing to the group)",
             dep == 1 ? "it" : "each of them", dep == 1 ? "it adds" : "they add");
-    if (L->layer->ntors > 0 && L->layer->pc_labels) {
+    if (L->ntors > 0 && L->pc_labels) {
         /* the torsion is only visible on the pc generators: name them */
         char names[512] = "";
         size_t k = 0;
-        for (slong g = 0; g < L->layer->count && k + 2 < sizeof names; g++)
+        for (slong g = 0; g < L->count && k + 2 < sizeof names; g++)
             k += (size_t)snprintf(names + k, sizeof names - k, "%s%s", g ? ", " : "",
-                                  L->layer->pc_labels[g]);
+                                  L->pc_labels[g]);
         paint_lines_add(t, ROLE_NORMAL, "  pc generators of the layer: %s", names);
     }
     paint_lines_add(t, ROLE_NORMAL, "%s", "");
     paint_lines_add(t, ROLE_HEADING, "Basis of the free part, as commutators");
-    if (L->layer->free_rank == 0)
+    if (L->free_rank == 0)
         paint_lines_add(t, ROLE_NORMAL, "  (no free part)");
-    for (slong k = 0; k < L->layer->free_rank; k++)
-        paint_lines_add(t, ROLE_NORMAL, "  e%ld = %s", (long)(k + 1), L->layer->basis[k]);
+    for (slong k = 0; k < L->free_rank; k++)
+        paint_lines_add(t, ROLE_NORMAL, "  e%ld = %s", (long)(k + 1), L->basis[k]);
     paint_lines_add(t, ROLE_NORMAL, "%s", "");
 
     if (!A->has_map) {
@@ -116,11 +118,11 @@ static void detail_build(explorer_app *app, paint_lines *t)
     }
     paint_lines_add(t, ROLE_HEADING, "Matrix M%ld (column k holds the image of e_k)", (long)j);
     detail_matrix(t, L->matrix);
-    if (L->layer->ntors > 0) {
+    if (L->ntors > 0) {
         paint_lines_add(t, ROLE_NORMAL, "%s", "");
         paint_lines_add(t, ROLE_HEADING,
                         "Action on the layer's %ld pc generators, torsion included",
-                        (long)L->layer->count);
+                        (long)L->count);
         detail_matrix(t, L->action);
     }
     paint_lines_add(t, ROLE_NORMAL, "%s", "");
@@ -165,7 +167,7 @@ static void detail_build(explorer_app *app, paint_lines *t)
                         "  entropy of this layer: sum of log|%s| over |%s| > 1 = %s", lam, lam,
                         L->entropy_str);
     int npic = 0; /* the eigenvalues in the complex plane (screen_charts.c) */
-    char **pic = screen_charts_eigen_rows(app, L, 36, 9, &npic);
+    char **pic = screen_charts_eigen_rows(app, j - 1, 36, 9, &npic);
     if (npic > 0) {
         paint_lines_add(t, ROLE_NORMAL, "%s", "");
         paint_lines_add(t, ROLE_HEADING, "Eigenvalues in the complex plane");

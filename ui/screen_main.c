@@ -45,7 +45,7 @@ static const char *sym(const explorer_app *app, const char *utf8, const char *as
     return app->utf8 ? utf8 : ascii;
 }
 
-static int map_valid(const analysis_struct *A)
+static int map_valid(const analysis_view_struct *A)
 {
     return A->has_group && A->has_map && A->valid;
 }
@@ -92,29 +92,33 @@ static void keep_in_view(int *top, int sel, int rows, int n)
 /* Every pc generator of the quotient is one of: a generator of a free
  * part, of a torsion factor, or dependent (the layer's relations express it
  * through the others: an invariant factor 1). */
-static void pc_accounting(const analysis_struct *A, long *free_, long *tors, long *dep)
+static void pc_accounting(const explorer_app *app, long *free_, long *tors, long *dep)
 {
+    analysis_view_t A;
+    analysis_get_view(A, app->A);
     *free_ = *tors = *dep = 0;
     for (slong j = 0; j < A->nlayers; j++) {
-        const analysis_layer_struct *L = A->layers + j;
-        *free_ += (long)L->layer->free_rank;
-        *tors += (long)L->layer->ntors;
-        *dep += (long)(L->layer->count - L->layer->free_rank - L->layer->ntors);
+        analysis_layer_view_t L;
+        analysis_get_layer_view(L, app->A, j);
+        *free_ += (long)L->free_rank;
+        *tors += (long)L->ntors;
+        *dep += (long)(L->count - L->free_rank - L->ntors);
     }
 }
 
 static void draw_group(explorer_app *app)
 {
-    const analysis_struct *A = app->A;
+    analysis_view_t A;
+    analysis_get_view(A, app->A);
     paint_text(1, 0, 9, ROLE_HEADING, "Group");
     paint_text(1, 9, COLS - 9, ROLE_NORMAL, app->group_text);
     if (A->has_group) {
         char extra[160] = "", parts[160];
-        if (A->nq->stabilised && A->nq->class_reached < app->cls)
+        if (A->stabilised && A->class_reached < app->cls)
             snprintf(extra, sizeof extra, "   series stable from class %ld",
-                     (long)A->nq->class_reached);
+                     (long)A->class_reached);
         long fr, to, de;
-        pc_accounting(A, &fr, &to, &de);
+        pc_accounting(app, &fr, &to, &de);
         int k = snprintf(parts, sizeof parts, "%ld free", fr);
         if (to)
             k += snprintf(parts + k, sizeof parts - (size_t)k, ", %ld torsion", to);
@@ -122,7 +126,7 @@ static void draw_group(explorer_app *app)
             snprintf(parts + k, sizeof parts - (size_t)k, ", %ld dependent", de);
         paint_textf(2, 9, COLS - 9, ROLE_NORMAL,
                     "class %ld   Hirsch length %ld   %ld pc generators (%s)%s", (long)app->cls,
-                    (long)A->nq->hirsch_length, (long)A->nq->pcp->n, parts, extra);
+                    (long)A->hirsch_length, (long)A->npc, parts, extra);
     } else {
         paint_textf(2, 9, COLS - 9, ROLE_NORMAL, "class %ld   (quotient not computed)",
                     (long)app->cls);
@@ -131,7 +135,8 @@ static void draw_group(explorer_app *app)
 
 static void draw_images(explorer_app *app, int y0, int rows)
 {
-    const analysis_struct *A = app->A;
+    analysis_view_t A;
+    analysis_get_view(A, app->A);
     viewmodel_struct *vm = app->vm;
     int x = paint_text(y0 - 1, 0, COLS, ROLE_HEADING, "Images of the generators");
     if (vm->ngens > (size_t)rows)
@@ -168,7 +173,9 @@ static void draw_images(explorer_app *app, int y0, int rows)
 static void table_header(explorer_app *app, int y)
 {
     int x = paint_text(y - 1, 0, COLS, ROLE_HEADING, "Layers of the lower central series");
-    if (app->A->has_group && !app->A->layers_torsion_free)
+    analysis_view_t A;
+    analysis_get_view(A, app->A);
+    if (A->has_group && !A->layers_torsion_free)
         paint_text(y - 1, x, COLS - x, ROLE_DIM, "  (t: the layer has torsion)");
     paint_fill(y, 0, COLS, ROLE_NORMAL);
     paint_text(y, COL_J, W_J, ROLE_HEADING, "  j");
@@ -203,7 +210,8 @@ static void integer_cell(explorer_app *app, int y, int x, int w, paint_role role
 
 static void draw_table(explorer_app *app, int y0, int rows)
 {
-    const analysis_struct *A = app->A;
+    analysis_view_t A;
+    analysis_get_view(A, app->A);
     table_header(app, y0);
     if (!A->has_group) {
         paint_text(y0 + 1, 2, COLS - 2, ROLE_ERROR, "No quotient to show.");
@@ -219,7 +227,8 @@ static void draw_table(explorer_app *app, int y0, int rows)
         slong j = app->table_top + r; /* 0-based */
         if (j >= A->nlayers)
             break;
-        const analysis_layer_struct *L = A->layers + j;
+        analysis_layer_view_t L;
+        analysis_get_layer_view(L, app->A, j);
         int y = y0 + 1 + r, sel = (size_t)j == app->vm->sel_layer;
         paint_role role = sel ? ROLE_SELECTED : ROLE_NORMAL;
         if (sel)
@@ -227,7 +236,7 @@ static void draw_table(explorer_app *app, int y0, int rows)
         paint_text(y, 0, 2, role, sel ? "> " : "  ");
         paint_textf(y, COL_J, W_J, role, "%3ld", (long)(j + 1));
         paint_text(y, COL_LAYER, W_LAYER - 1, role, L->group_str ? L->group_str : "?");
-        if (L->layer->ntors > 0) /* a torsion row: its torsion goes to T or to Gc/T */
+        if (L->ntors > 0) /* a torsion row: its torsion goes to T or to Gc/T */
             paint_text(y, COL_J + W_J, 1, sel ? role : ROLE_MARKER, "t");
         if (valid && L->rho_str) {
             number_cell(y, COL_RHO, W_RHO, role, L->rho_str, A->upper_layer == j + 1 ? "U" : NULL);
@@ -241,12 +250,12 @@ static void draw_table(explorer_app *app, int y0, int rows)
             paint_text(y, COL_DET, W_DET, role, "-");
             paint_text(y, COL_DIM, W_DIM, role, "-");
         }
-        if (COLS > COL_BASIS + 10 && L->layer->basis && L->layer->free_rank > 0) {
+        if (COLS > COL_BASIS + 10 && L->basis && L->free_rank > 0) {
             char basis[512] = "";
             size_t k = 0;
-            for (slong b = 0; b < L->layer->free_rank && k + 2 < sizeof basis; b++)
+            for (slong b = 0; b < L->free_rank && k + 2 < sizeof basis; b++)
                 k += (size_t)snprintf(basis + k, sizeof basis - k, "%s%s", b ? ", " : "",
-                                      L->layer->basis[b]);
+                                      L->basis[b]);
             paint_text(y, COL_BASIS, COLS - COL_BASIS, sel ? role : ROLE_DIM, basis);
         }
     }
@@ -306,7 +315,8 @@ static void draw_items(explorer_app *app, int y, int x, int w, inv_item *it, int
 
 static void draw_bounds_and_invariants(explorer_app *app, int y)
 {
-    const analysis_struct *A = app->A;
+    analysis_view_t A;
+    analysis_get_view(A, app->A);
     char lo[64], up[64], gr[64];
     numfmt_decimal(lo, sizeof lo, A->lower_bound_str, SIG_DIGITS);
     numfmt_decimal(up, sizeof up, A->upper_bound_str, SIG_DIGITS);
@@ -314,8 +324,11 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
     const char *le = sym(app, "\xE2\x89\xA4", "<=");
     int x = paint_text(y, 0, COLS, ROLE_HEADING, "Growth  ");
     int free_parts = 0;
-    for (slong j = 0; j < A->nlayers; j++)
-        free_parts |= A->layers[j].layer->free_rank > 0;
+    for (slong j = 0; j < A->nlayers; j++) {
+        analysis_layer_view_t L;
+        analysis_get_layer_view(L, app->A, j);
+        free_parts |= L->free_rank > 0;
+    }
     if (dec_le(A->lower_bound_str, A->growth_str) && dec_le(A->growth_str, A->upper_bound_str)) {
         x += paint_text(y, x, COLS - x, ROLE_MARKER, "L ");
         x += paint_textf(y, x, COLS - x, ROLE_NUMBER, "%s", lo);
@@ -343,32 +356,32 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
     int hx = paint_text(y + 2, 0, COLS, ROLE_HEADING, "Invariants");
     if (!A->layers_torsion_free) {
         /* T and the layers of Gc/T on the heading line */
-        const torsion_struct *T = A->tors;
         char line[256];
         size_t k = 0;
-        char *o = fmpz_get_str(NULL, 10, T->order), os[64];
+        char *o = fmpz_get_str(NULL, 10, A->tors_order), os[64];
         numfmt_integer(os, sizeof os, o, 40, !app->utf8);
         k += (size_t)snprintf(line, sizeof line, "   T: order %s", os);
         flint_free(o);
-        for (slong t = 0; T->abelian && t < T->ninv && k + 40 < sizeof line; t++) {
-            char *d = fmpz_get_str(NULL, 10, T->inv + t), ds[40];
+        for (slong t = 0; A->tors_abelian && t < A->tors_ninv && k + 40 < sizeof line; t++) {
+            char *d = fmpz_get_str(NULL, 10, A->tors_inv + t), ds[40];
             numfmt_integer(ds, sizeof ds, d, 20, !app->utf8);
             k += (size_t)snprintf(line + k, sizeof line - k, "%sZ/%s", t ? " + " : " = ", ds);
             flint_free(d);
         }
         k += (size_t)snprintf(line + k, sizeof line - k, "%s   Gc/T:",
-                              T->finite ? " (Gc finite)" : "");
+                              A->tors_finite ? " (Gc finite)" : "");
         for (slong j = 0; j < A->nlayers && k + 24 < sizeof line; j++) {
-            const analysis_layer_struct *L = A->layers + j;
-            slong nt = j < T->nlayers ? T->q_ntors[j] : 0;
+            analysis_layer_view_t L;
+            analysis_get_layer_view(L, app->A, j);
+            slong nt = L->q_ntors;
             k += (size_t)snprintf(line + k, sizeof line - k, "%s ", j ? "," : "");
-            if (L->layer->free_rank)
-                k += (size_t)snprintf(line + k, sizeof line - k, L->layer->free_rank > 1 ? "Z^%ld" : "Z",
-                                      (long)L->layer->free_rank);
+            if (L->free_rank)
+                k += (size_t)snprintf(line + k, sizeof line - k, L->free_rank > 1 ? "Z^%ld" : "Z",
+                                      (long)L->free_rank);
             if (nt)
                 k += (size_t)snprintf(line + k, sizeof line - k, "%s+tors",
-                                      L->layer->free_rank ? "" : "0");
-            if (!L->layer->free_rank && !nt)
+                                      L->free_rank ? "" : "0");
+            if (!L->free_rank && !nt)
                 k += (size_t)snprintf(line + k, sizeof line - k, "0");
         }
         paint_text(y + 2, hx, COLS - hx, ROLE_DIM, line);
@@ -400,11 +413,11 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
         if (!A->layers_torsion_free) {
             it[0].label = "on Gc/T: Lefschetz";
             it[2].label = "on Gc: Reidemeister";
-            if (A->tmap->fixed_defined)
-                it[n++] = (inv_item){"Fix", fmpz_get_str(NULL, 10, A->tmap->fixed_elements), NULL};
-            if (A->tmap->fixed_classes_defined)
+            if (A->fixed_defined)
+                it[n++] = (inv_item){"Fix", fmpz_get_str(NULL, 10, A->fixed_elements), NULL};
+            if (A->fixed_classes_defined)
                 it[n++] = (inv_item){"fixed classes",
-                                     fmpz_get_str(NULL, 10, A->tmap->fixed_classes), NULL};
+                                     fmpz_get_str(NULL, 10, A->fixed_classes), NULL};
         }
         draw_items(app, y + 4, 2, COLS, it, n);
         for (int k = 0; k < n; k++)
@@ -439,8 +452,9 @@ static void draw_bounds_and_invariants(explorer_app *app, int y)
 int screen_main_failure_lines(const explorer_app *app, slong k, paint_lines *t, int full)
 {
     /* full: under a line that already names the relation, indented */
-    const char *rel = full ? " " : app->A->fail_relator[k], *ind = full ? "    " : "  ";
-    const analysis_struct *A = app->A;
+    analysis_view_t A;
+    analysis_get_view(A, app->A);
+    const char *rel = full ? " " : A->fail_relator[k], *ind = full ? "    " : "  ";
     const analysis_failure_struct *f = A->failures + k;
     const char *alpha = sym(app, "\xCE\xB1", "alpha");
     const char *to = sym(app, "\xE2\x86\xA6", "->");
@@ -469,7 +483,8 @@ int screen_main_failure_lines(const explorer_app *app, slong k, paint_lines *t, 
 
 static void draw_failures(explorer_app *app, int y)
 {
-    const analysis_struct *A = app->A;
+    analysis_view_t A;
+    analysis_get_view(A, app->A);
     paint_textf(y, 0, COLS, ROLE_ERROR,
                 "Not well defined: %ld relation%s fail%s on the class-%ld quotient (v: in full).",
                 (long)A->nfail, A->nfail == 1 ? "" : "s", A->nfail == 1 ? "s" : "",
@@ -490,7 +505,8 @@ static void draw_failures(explorer_app *app, int y)
 
 void screen_main_draw(explorer_app *app)
 {
-    const analysis_struct *A = app->A;
+    analysis_view_t A;
+    analysis_get_view(A, app->A);
     app_draw_header(app, app->title);
     draw_group(app);
     int img_y, ni, tab_y, nt;
@@ -551,7 +567,9 @@ static int act_image_next(explorer_app *app)
 
 static int act_detail(explorer_app *app)
 {
-    if (!app->A->has_group || app->vm->nlayers == 0) {
+    analysis_view_t A;
+    analysis_get_view(A, app->A);
+    if (!A->has_group || app->vm->nlayers == 0) {
         app_status(app, 1, "no layers to show");
         return ACT_REDRAW;
     }
@@ -584,7 +602,8 @@ static int act_identity_image(explorer_app *app)
  * already the forced one sets it (an image edit: u undoes it). */
 static int act_forced_image(explorer_app *app)
 {
-    const analysis_struct *A = app->A;
+    analysis_view_t A;
+    analysis_get_view(A, app->A);
     if (!A->has_map || A->valid || !A->failures) {
         app_status(app, 1, "no failing relation forces an image");
         return ACT_REDRAW;

@@ -52,13 +52,12 @@ void screen_iterate_set_word(explorer_app *app, const char *text);
 void screen_iterate_check_word(explorer_app *app, const char *text);
 
 /* The bounds chart and the eigenvalue picture (screen_charts.c); the rows
- * of the picture for layer L in w x h cells plus a legend line (*nrows of
+ * of the picture for layer j + 1 in w x h cells plus a legend line (*nrows of
  * them; free each and the array with free()), NULL when there is nothing
  * to draw. */
 void screen_bounds_draw(explorer_app *app);
 const ui_keymap *screen_bounds_keys(void);
-char **screen_charts_eigen_rows(const explorer_app *app, const analysis_layer_struct *L, int w,
-                                int h, int *nrows);
+char **screen_charts_eigen_rows(const explorer_app *app, slong j, int w, int h, int *nrows);
 
 /* Draws the prompt over the bottom of the frame. */
 void prompt_draw(explorer_app *app);
