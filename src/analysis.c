@@ -3,6 +3,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include "analysis.h"
+#include "charpoly.h"
 #include "elim.h"
 #include "strbuf.h"
 
@@ -377,6 +378,19 @@ static char *arb_str(const arb_t x)
     return s ? s : strbuf_dup_str("(not certified)");
 }
 
+/* 1 when layer j >= 2 of the quotient is layer j of a free nilpotent group
+ * (a presentation without relators) and its matrix has the dimension of
+ * Witt's formula, so that charpoly_free_lie applies to the layer-1 matrix. */
+static int free_group_layer(const analysis_t A, slong j)
+{
+    if (j < 2 || A->nq->pres->nrels != 0 || j > A->nq->class_reached)
+        return 0;
+    const fmpz_mat_struct *M1 = A->layers[0].matrix, *M = A->layers[j - 1].matrix;
+    slong r = A->nq->pres->gens->n;
+    return fmpz_mat_nrows(M1) == r && fmpz_mat_ncols(M1) == r
+           && fmpz_mat_nrows(M) == charpoly_witt_rank(r, j);
+}
+
 /* Matrices and spectra of every layer (valid map). */
 static ns_status analyse_layers(analysis_t A, const ns_progress_t *progress, nserr_t err)
 {
@@ -406,7 +420,16 @@ static ns_status analyse_layers(analysis_t A, const ns_progress_t *progress, nse
             st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
             break;
         }
-        st = spectrum_compute_progress(L->spectrum, L->matrix, progress, e2);
+        if (free_group_layer(A, j)) {
+            /* a free group: Brandt's formula from layer 1 (charpoly.h) */
+            fmpz_poly_t cp;
+            fmpz_poly_init(cp);
+            st = charpoly_free_lie(cp, A->layers[0].matrix, j, progress, e2);
+            if (st == NS_OK)
+                st = spectrum_set_charpoly(L->spectrum, cp, e2);
+            fmpz_poly_clear(cp);
+        } else
+            st = spectrum_compute_progress(L->spectrum, L->matrix, progress, e2);
         if (st != NS_OK) {
             nserr_set(err, st, 0, 0, "layer %ld: %s", (long)j, e2->msg);
             break;

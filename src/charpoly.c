@@ -262,3 +262,132 @@ ns_status charpoly_compute(fmpz_poly_t cp, const fmpz_mat_t M, slong threads,
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     return NS_OK;
 }
+
+/* Moebius function of n >= 1 by trial division. */
+static int moebius(slong n)
+{
+    int mu = 1;
+    for (slong p = 2; p * p <= n; p++)
+        if (n % p == 0) {
+            n /= p;
+            if (n % p == 0)
+                return 0;
+            mu = -mu;
+        }
+    return n > 1 ? -mu : mu;
+}
+
+slong charpoly_witt_rank(slong r, slong n)
+{
+    if (r < 0 || n < 1)
+        return -1;
+    fmpz_t s, t;
+    fmpz_init(s);
+    fmpz_init(t);
+    for (slong d = 1; d <= n; d++)
+        if (n % d == 0 && moebius(d) != 0) {
+            fmpz_set_si(t, r);
+            fmpz_pow_ui(t, t, (ulong)(n / d));
+            if (moebius(d) > 0)
+                fmpz_add(s, s, t);
+            else
+                fmpz_sub(s, s, t);
+        }
+    fmpz_divexact_si(s, s, n);
+    slong res = fmpz_cmp_si(s, CHARPOLY_FREE_LIE_MAX_DIM) > 0 ? -1 : fmpz_get_si(s);
+    fmpz_clear(s);
+    fmpz_clear(t);
+    return res;
+}
+
+ns_status charpoly_free_lie(fmpz_poly_t cp, const fmpz_mat_t A, slong n,
+                            const ns_progress_t *progress, nserr_t err)
+{
+    slong r = fmpz_mat_nrows(A);
+    fmpz_poly_zero(cp);
+    if (r != fmpz_mat_ncols(A))
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "charpoly: the matrix is %ld x %ld, not square",
+                         (long)r, (long)fmpz_mat_ncols(A));
+    if (n < 1)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0, "charpoly: layer %ld of a free Lie ring",
+                         (long)n);
+    slong D = charpoly_witt_rank(r, n);
+    if (D < 0)
+        return nserr_set(err, NS_ERR_LIMIT, 0, 0,
+                         "charpoly: layer %ld of the free Lie ring of rank %ld has more than %ld "
+                         "dimensions", (long)n, (long)r, (long)CHARPOLY_FREE_LIE_MAX_DIM);
+    if (D == 0) {
+        fmpz_poly_one(cp);
+        return NS_OK;
+    }
+    if (ns_progress_report(progress, NULL, -1.0))
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+
+    /* t[m] = tr A^m for m = 0 .. nD by Newton's identities on A's own
+       characteristic polynomial x^r + a_(r-1) x^(r-1) + ... + a_0 */
+    slong N = n * D;
+    fmpz_poly_t chi;
+    fmpz_poly_init(chi);
+    fmpz_mat_charpoly(chi, A);
+    fmpz *t = _fmpz_vec_init(N + 1);
+    fmpz_set_si(t + 0, r);
+    for (slong m = 1; m <= N; m++) {
+        for (slong i = 1; i <= FLINT_MIN(m - 1, r); i++)
+            fmpz_submul(t + m, fmpz_poly_get_coeff_ptr(chi, r - i), t + m - i);
+        if (m <= r)
+            fmpz_submul_ui(t + m, fmpz_poly_get_coeff_ptr(chi, r - m), (ulong)m);
+    }
+    fmpz_poly_clear(chi);
+
+    /* q[k] = tr L_n(A)^k, k = 1 .. D (Brandt) */
+    fmpz *q = _fmpz_vec_init(D + 1);
+    fmpz_t x;
+    fmpz_init(x);
+    for (slong k = 1; k <= D; k++) {
+        for (slong d = 1; d <= n; d++) {
+            int mu = n % d == 0 ? moebius(d) : 0;
+            if (mu == 0)
+                continue;
+            fmpz_pow_ui(x, t + k * d, (ulong)(n / d));
+            if (mu > 0)
+                fmpz_add(q + k, q + k, x);
+            else
+                fmpz_sub(q + k, q + k, x);
+        }
+        fmpz_divexact_si(q + k, q + k, n);
+    }
+    _fmpz_vec_clear(t, N + 1);
+
+    /* Newton: k e_k = sum_{i=1}^k (-1)^(i-1) e_(k-i) q_i; the coefficient
+       of x^(D-k) is (-1)^k e_k */
+    fmpz *e = _fmpz_vec_init(D + 1);
+    fmpz_one(e + 0);
+    int cancelled = 0;
+    for (slong k = 1; k <= D && !cancelled; k++) {
+        for (slong i = 1; i <= k; i++) {
+            if (i % 2)
+                fmpz_addmul(e + k, e + k - i, q + i);
+            else
+                fmpz_submul(e + k, e + k - i, q + i);
+        }
+        fmpz_divexact_si(e + k, e + k, k);
+        if ((k & 15) == 0)
+            cancelled = ns_progress_report(progress, NULL, -1.0);
+    }
+    if (!cancelled) {
+        fmpz_poly_fit_length(cp, D + 1);
+        for (slong k = 0; k <= D; k++) {
+            if (k % 2)
+                fmpz_neg(x, e + k);
+            else
+                fmpz_set(x, e + k);
+            fmpz_poly_set_coeff_fmpz(cp, D - k, x);
+        }
+    }
+    fmpz_clear(x);
+    _fmpz_vec_clear(q, D + 1);
+    _fmpz_vec_clear(e, D + 1);
+    if (cancelled)
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+    return NS_OK;
+}

@@ -63,4 +63,33 @@ slong charpoly_num_primes(const fmpz_mat_t M);
 ns_status charpoly_compute(fmpz_poly_t cp, const fmpz_mat_t M, slong threads,
                            const ns_progress_t *progress, nserr_t err);
 
+/* The layers of a free nilpotent group need no multimodular work at all.
+ * Layer n of the free group F of rank r is the degree-n part L_n of the
+ * free Lie ring on Z^r (W. Magnus, "Ueber Beziehungen zwischen hoeheren
+ * Kommutatoren", J. reine angew. Math. 177, 1937; E. Witt, "Treue
+ * Darstellung Liescher Ringe", same volume), functorially: an endomorphism
+ * with matrix A on F/[F,F] induces L_n(A) on gamma_n/gamma_(n+1), so over Q
+ * the layer matrix is conjugate to L_n(A).  Its power sums follow from
+ * Brandt's character formula (H. Brandt, "The free Lie ring and Lie
+ * representations of the full linear group", Trans. AMS 56, 1944):
+ *   tr L_n(A)^k = tr L_n(A^k) = (1/n) sum_{d | n} mu(d) (tr A^(kd))^(n/d),
+ * a polynomial identity in the entries of A (true on the dense set of
+ * diagonalisable invertible A, hence for all A).  The traces tr A^m come
+ * from the recurrence of A's own characteristic polynomial, and the
+ * coefficients from the power sums by Newton's identities, exactly in
+ * integers: no coefficient bound is involved.
+ *
+ * cp := det(xI - L_n(A)) for a square r x r integer A and n >= 1, of
+ * degree Witt's (1/n) sum_{d | n} mu(d) r^(n/d).  progress (may be NULL) is
+ * polled once per coefficient; a nonzero answer stops with
+ * NS_ERR_CANCELLED and cp = 0.  NS_ERR_LIMIT when that degree exceeds
+ * CHARPOLY_FREE_LIE_MAX_DIM. */
+#define CHARPOLY_FREE_LIE_MAX_DIM 1000000
+ns_status charpoly_free_lie(fmpz_poly_t cp, const fmpz_mat_t A, slong n,
+                            const ns_progress_t *progress, nserr_t err);
+
+/* Witt's rank (1/n) sum_{d | n} mu(d) r^(n/d) of L_n on Z^r, or -1 when it
+ * exceeds CHARPOLY_FREE_LIE_MAX_DIM. */
+slong charpoly_witt_rank(slong r, slong n);
+
 #endif

@@ -159,6 +159,8 @@ static void compute_entropy(spectrum_t S)
     arb_clear(t);
 }
 
+static ns_status spectrum_finish(spectrum_t S, nserr_t err);
+
 ns_status spectrum_compute(spectrum_t S, const fmpz_mat_t M, nserr_t err)
 {
     return spectrum_compute_progress(S, M, NULL, err);
@@ -167,9 +169,8 @@ ns_status spectrum_compute(spectrum_t S, const fmpz_mat_t M, nserr_t err)
 ns_status spectrum_compute_progress(spectrum_t S, const fmpz_mat_t M,
                                     const ns_progress_t *progress, nserr_t err)
 {
-    slong d, nf, k, i, n;
-    ns_status st = NS_OK;
-    fmpz_t one;
+    slong d;
+    ns_status st;
 
     spectrum_reset(S);
     if (fmpz_mat_nrows(M) != fmpz_mat_ncols(M))
@@ -185,6 +186,28 @@ ns_status spectrum_compute_progress(spectrum_t S, const fmpz_mat_t M,
         spectrum_reset(S);
         return st;
     }
+    return spectrum_finish(S, err);
+}
+
+ns_status spectrum_set_charpoly(spectrum_t S, const fmpz_poly_t cp, nserr_t err)
+{
+    spectrum_reset(S);
+    if (fmpz_poly_length(cp) == 0 || !fmpz_is_one(fmpz_poly_lead(cp)))
+        return nserr_set(err, NS_ERR_INPUT, 0, 0,
+                         "spectrum: a characteristic polynomial is monic");
+    S->dim = fmpz_poly_degree(cp);
+    fmpz_poly_set(S->charpoly, cp);
+    return spectrum_finish(S, err);
+}
+
+/* Everything after the characteristic polynomial S->charpoly of degree
+ * S->dim. */
+static ns_status spectrum_finish(spectrum_t S, nserr_t err)
+{
+    slong d = S->dim, nf, k, i, n;
+    ns_status st = NS_OK;
+    fmpz_t one;
+
     fmpz_poly_get_coeff_fmpz(S->det, S->charpoly, 0);
     if (d % 2 != 0)
         fmpz_neg(S->det, S->det);

@@ -1007,6 +1007,38 @@ static void maps_given_as_values(void **state)
     analysis_clear(A);
 }
 
+/* On a free group the analysis takes each layer's characteristic polynomial
+ * from layer 1 by Brandt's formula (src/charpoly.h); it must be that of the
+ * layer matrix it shows, by FLINT's fmpz_mat_charpoly (independent), also
+ * after a power and for a map that is singular on layer 1. */
+static void free_group_charpolys_are_those_of_the_matrices(void **state)
+{
+    (void)state;
+    static const char *maps[] = {"a -> a^2 b, b -> a b c, c -> b c",
+                                 "a -> a b^2, b -> a b^2, c -> c [a,b]", "a -> b, b -> c, c -> a"};
+    for (int m = 0; m < 3; m++) {
+        analysis_t A;
+        analysis_init(A);
+        set_group(A, "<a, b, c | >", 5);
+        set_map(A, maps[m]);
+        fmpz_poly_t cp;
+        fmpz_poly_init(cp);
+        for (slong j = 0; j < A->nlayers; j++) {
+            const analysis_layer_struct *L = A->layers + j;
+            slong d = fmpz_mat_nrows(L->matrix);
+            fmpz_poly_zero(cp);
+            fmpz_mat_charpoly(cp, L->matrix);
+            assert_int_equal(fmpz_poly_degree(cp), d);
+            for (slong k = 0; k <= d; k++)
+                if (!fmpz_equal(L->charpoly + k, fmpz_poly_get_coeff_ptr(cp, k)))
+                    fail_msg("map %d, layer %ld: coefficient %ld differs", m, (long)(j + 1),
+                             (long)k);
+        }
+        fmpz_poly_clear(cp);
+        analysis_clear(A);
+    }
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -1024,6 +1056,7 @@ int main(void)
         cmocka_unit_test(validity_fails_in_abelianisation),
         cmocka_unit_test(failure_forced_image_heisenberg),
         cmocka_unit_test(maps_given_as_values),
+        cmocka_unit_test(free_group_charpolys_are_those_of_the_matrices),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

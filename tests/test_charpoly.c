@@ -13,6 +13,10 @@
 #include <flint/fmpz_vec.h>
 
 #include "charpoly.h"
+#include "endo.h"
+#include "layer.h"
+#include "nq.h"
+#include "pres.h"
 #include "testutil.h"
 
 static int setup(void **state)
@@ -145,6 +149,114 @@ static void non_square_is_an_input_error(void **state)
     fmpz_poly_clear(a);
 }
 
+/* Witt's ranks of the free Lie ring (E. Witt 1937), values from the
+ * formula worked by hand: rank 2: 2, 1, 2, 3, 6, 9, 18, 30; rank 3 at
+ * degree 8: 810. */
+static void witt_rank_matches_the_formula(void **state)
+{
+    (void)state;
+    static const slong r2[] = {2, 1, 2, 3, 6, 9, 18, 30};
+    for (slong n = 1; n <= 8; n++)
+        assert_int_equal(charpoly_witt_rank(2, n), r2[n - 1]);
+    assert_int_equal(charpoly_witt_rank(3, 8), 810);
+    assert_int_equal(charpoly_witt_rank(0, 3), 0);
+    assert_int_equal(charpoly_witt_rank(1, 1), 1);
+    assert_int_equal(charpoly_witt_rank(1, 2), 0);
+    assert_int_equal(charpoly_witt_rank(2, 64), -1); /* beyond the limit */
+}
+
+/* The map "a_i -> w_i" on free(r) at class c: its layer matrices, read by
+ * nilstep's own quotient and endomorphism code, against Brandt's route from
+ * the layer-1 matrix alone; each layer's characteristic polynomial is
+ * FLINT's fmpz_mat_charpoly of the layer matrix (independent of both). */
+static void check_free_layers(const char *group, slong c, const char *map)
+{
+    pres_t P;
+    nq_t Q;
+    endo_t E;
+    nserr_t err;
+    pres_init(P);
+    nq_init(Q);
+    endo_init(E);
+    nserr_init(err);
+    assert_int_equal(pres_parse(P, group, 1, 1, err), NS_OK);
+    assert_int_equal(nq_compute(Q, P, c, NULL, err), NS_OK);
+    slong ng = P->gens->n;
+    expr_struct *im = flint_malloc(sizeof(expr_struct) * ng);
+    for (slong i = 0; i < ng; i++)
+        expr_init(im + i);
+    assert_int_equal(pres_parse_map(im, P, map, 1, 1, err), NS_OK);
+    assert_int_equal(endo_set(E, Q, im, NULL, err), NS_OK);
+    fmpz_mat_t act, M1, M;
+    fmpz_poly_t a, b;
+    fmpz_mat_init(act, 0, 0);
+    fmpz_mat_init(M1, 0, 0);
+    fmpz_mat_init(M, 0, 0);
+    fmpz_poly_init(a);
+    fmpz_poly_init(b);
+    layer_ensure_coords(Q->layers + 0);
+    endo_layer_matrices(act, M1, E, Q->layers + 0);
+    for (slong j = Q->nlayers + 1; j <= c; j++) /* the series stabilised early */
+        assert_int_equal(charpoly_witt_rank(ng, j), 0);
+    for (slong j = 1; j <= Q->nlayers; j++) {
+        layer_ensure_coords(Q->layers + j - 1);
+        endo_layer_matrices(act, M, E, Q->layers + j - 1);
+        assert_int_equal(charpoly_witt_rank(ng, j), fmpz_mat_nrows(M));
+        assert_int_equal(charpoly_free_lie(a, M1, j, NULL, err), NS_OK);
+        fmpz_poly_zero(b);
+        fmpz_mat_charpoly(b, M);
+        if (!fmpz_poly_equal(a, b))
+            fail_msg("%s class %ld, %s: layer %ld differs from fmpz_mat_charpoly", group,
+                     (long)c, map, (long)j);
+    }
+    fmpz_poly_clear(a);
+    fmpz_poly_clear(b);
+    fmpz_mat_clear(act);
+    fmpz_mat_clear(M1);
+    fmpz_mat_clear(M);
+    for (slong i = 0; i < ng; i++)
+        expr_clear(im + i);
+    flint_free(im);
+    endo_clear(E);
+    nq_clear(Q);
+    pres_clear(P);
+}
+
+static void free_lie_route_agrees_with_the_layer_matrices(void **state)
+{
+    (void)state;
+    check_free_layers("free(2)", 7, "a -> a^2 b, b -> a b");
+    check_free_layers("free(2)", 6, "a -> a b^-1 a, b -> b^3 [a,b]");
+    check_free_layers("free(2)", 6, "a -> a^2 b^2, b -> a b");   /* singular on layer 1 */
+    check_free_layers("free(2)", 5, "a -> a, b -> 1");           /* a projection */
+    check_free_layers("free(3)", 4, "a -> a^2 b, b -> a b c, c -> b c");
+    check_free_layers("free(3)", 4, "a -> b, b -> c, c -> a^-1"); /* finite order */
+    check_free_layers("free(1)", 3, "a -> a^-5");                 /* layers 2, 3 vanish */
+}
+
+static void free_lie_cancel_and_bad_input(void **state)
+{
+    (void)state;
+    fmpz_mat_t A;
+    fmpz_poly_t a;
+    nserr_t err;
+    int calls = 0;
+    ns_progress_t p = {stop_at_once, &calls};
+    fmpz_mat_init(A, 2, 2);
+    fmpz_poly_init(a);
+    nserr_init(err);
+    fmpz_mat_one(A);
+    assert_int_equal(charpoly_free_lie(a, A, 6, &p, err), NS_ERR_CANCELLED);
+    assert_true(fmpz_poly_is_zero(a));
+    assert_int_equal(charpoly_free_lie(a, A, 0, NULL, err), NS_ERR_INPUT);
+    assert_int_equal(charpoly_free_lie(a, A, 64, NULL, err), NS_ERR_LIMIT);
+    fmpz_mat_clear(A);
+    fmpz_mat_init(A, 2, 3);
+    assert_int_equal(charpoly_free_lie(a, A, 2, NULL, err), NS_ERR_INPUT);
+    fmpz_mat_clear(A);
+    fmpz_poly_clear(a);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -152,6 +264,9 @@ int main(void)
         cmocka_unit_test(bound_is_sound_and_near_tight_for_the_identity),
         cmocka_unit_test(cancel_stops_with_cancelled),
         cmocka_unit_test(non_square_is_an_input_error),
+        cmocka_unit_test(witt_rank_matches_the_formula),
+        cmocka_unit_test(free_lie_route_agrees_with_the_layer_matrices),
+        cmocka_unit_test(free_lie_cancel_and_bad_input),
     };
     return cmocka_run_group_tests(tests, setup, NULL);
 }

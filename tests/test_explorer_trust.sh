@@ -282,10 +282,14 @@ wait_for "EXIT=0"
 
 # ---------------------------------------------------------------------------
 current="Esc keeps the images and numbers; progress names the stage (items 6, 7)"
+# Up to class 7 the group is free nilpotent of rank 3; its relator of weight
+# 8 keeps the analysis on the general route for the layer spectra (a free
+# presentation would take Brandt's formula, src/charpoly.h, too quickly to
+# press Esc during it).
 cat >"$tmp/free3.nilstep" <<'END'
 nilstep session 1
 title   Free nilpotent, rank 3, class 7
-group   <a, b, c>
+group   <a, b, c | [a,b,a,b,a,b,a,b]>
 class   7
 map     a -> b, b -> a, c -> c
 END
