@@ -115,29 +115,54 @@ void layer_ensure_coords(const layer_t Lc)
         fmpz_mat_one(L->phi);
         fmpz_mat_one(L->sigma);
     } else if (r > 0) {
-        /* U rel^T = H with H's last count - f rows zero: those rows of U
-         * span the integer kernel and, U being unimodular, extend to a
-         * basis; the matching columns of U^-1 are a right inverse. */
+        /* Only the columns where rel is nonzero (its support S, s of them)
+         * take part: a column outside S is a free generator on its own
+         * (phi and sigma are the unit vector there), so the transform and
+         * its inverse are s x s instead of count x count.  On S:
+         * U rel_S^T = H with H's last s - f rows zero (rel has rank f:
+         * each row has its relative order at its own generator and
+         * entries only at later ones); those rows of U span the integer
+         * kernel of rel_S and, U being unimodular, extend to a basis; the
+         * matching columns of U^-1 are a right inverse.  The basis lists
+         * the columns outside S in order, then the kernel vectors of S. */
+        slong *sup = flint_malloc(cnt * sizeof(slong));
+        slong s = 0, a = 0;
+        for (slong b = 0; b < cnt; b++) {
+            int in = 0;
+            for (slong i = 0; i < f && !in; i++)
+                in = !fmpz_is_zero(fmpz_mat_entry(L->rel, i, b));
+            if (in)
+                sup[s++] = b;
+            else {
+                fmpz_one(fmpz_mat_entry(L->phi, a, b));
+                fmpz_one(fmpz_mat_entry(L->sigma, b, a));
+                a++;
+            }
+        }
         fmpz_mat_t A, H, U, V;
         fmpz_t den;
-        fmpz_mat_init(A, cnt, f);
-        fmpz_mat_init(H, cnt, f);
-        fmpz_mat_init(U, cnt, cnt);
-        fmpz_mat_init(V, cnt, cnt);
+        fmpz_mat_init(A, s, f);
+        fmpz_mat_init(H, s, f);
+        fmpz_mat_init(U, s, s);
+        fmpz_mat_init(V, s, s);
         fmpz_init(den);
-        fmpz_mat_transpose(A, L->rel);
+        for (slong i = 0; i < f; i++)
+            for (slong b = 0; b < s; b++)
+                fmpz_set(fmpz_mat_entry(A, b, i), fmpz_mat_entry(L->rel, i, sup[b]));
         fmpz_mat_hnf_transform(H, U, A);
         fmpz_mat_inv(V, den, U);
-        for (slong a = 0; a < r; a++)
-            for (slong b = 0; b < cnt; b++) {
-                fmpz_set(fmpz_mat_entry(L->phi, a, b), fmpz_mat_entry(U, f + a, b));
-                fmpz_mul(fmpz_mat_entry(L->sigma, b, a), fmpz_mat_entry(V, b, f + a), den);
+        for (slong k = f; k < s; k++, a++)
+            for (slong b = 0; b < s; b++) {
+                fmpz_set(fmpz_mat_entry(L->phi, a, sup[b]), fmpz_mat_entry(U, k, b));
+                fmpz_mul(fmpz_mat_entry(L->sigma, sup[b], a), fmpz_mat_entry(V, b, k), den);
             }
+        NS_ASSERT(a == r);
         fmpz_clear(den);
         fmpz_mat_clear(A);
         fmpz_mat_clear(H);
         fmpz_mat_clear(U);
         fmpz_mat_clear(V);
+        flint_free(sup);
     }
     L->basis = flint_malloc(FLINT_MAX(r, 1) * sizeof(char *));
     fmpz *v = _fmpz_vec_init(FLINT_MAX(cnt, 1));

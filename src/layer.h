@@ -14,9 +14,13 @@
  * free_rank) is a right inverse (phi sigma = I) from the inverse transform:
  * the free-part basis vector k is the layer element sigma[:,k], labelled
  * basis[k].  When the layer has no finite generator both are the identity
- * and the basis is the layer's own pc generators.  These coordinates cost
- * a dense Hermite form and inverse for layers with finite generators, so
- * they are computed on first use (layer_ensure_coords), once. */
+ * and the basis is the layer's own pc generators.  Otherwise every pc
+ * generator outside the support of rel (the columns where it is nonzero)
+ * is a basis element on its own, listed first in order, and the Hermite
+ * form with transform and its inverse are taken on the support only, so
+ * their cost follows the relations, not the layer (1450 pc generators in
+ * layer 7 of the genus-2 surface group, 10 of them in the support).  They
+ * are computed on first use (layer_ensure_coords), once. */
 #ifndef NILSTEP_LAYER_H
 #define NILSTEP_LAYER_H
 

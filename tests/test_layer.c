@@ -276,6 +276,48 @@ static void trivial_layer(void **state)
     nq_clear(Q);
 }
 
+/* Layers whose finite generators touch only part of the layer (the
+ * coordinates are then computed on the support of the relation block
+ * alone): <a, b, c | a^2 b^4> at class 2 (layer 1 is Z^2 + Z/2 with c
+ * untouched: a unit coordinate of its own), and the genus-2 surface group
+ * at class 6, whose layer 6 has 442 pc generators for free rank 440
+ * (Labute's formula, J. Algebra 14, 1970, gives 440). */
+static void coordinates_on_the_support_of_the_relations(void **state)
+{
+    (void)state;
+    nq_t Q;
+    nq_init(Q);
+    compute_quotient(Q, "<a, b, c | a^2 b^4>", 2);
+    const layer_struct *L = Q->layers;
+    assert_int_equal(L->free_rank, 2);
+    assert_int_equal(L->ntors, 1);
+    check_coordinates(L, "Z^2 + Z/2");
+    check_coordinates(Q->layers + 1, "layer 2");
+    /* c's pc generator is a basis element on its own */
+    slong kc = -1;
+    for (slong k = 0; k < L->count; k++)
+        if (strcmp(L->pc_labels[k], "c") == 0)
+            kc = k;
+    assert_true(kc >= 0);
+    slong hits = 0;
+    for (slong a = 0; a < L->free_rank; a++)
+        if (!fmpz_is_zero(fmpz_mat_entry(L->phi, a, kc))) {
+            hits++;
+            assert_true(fmpz_is_pm1(fmpz_mat_entry(L->phi, a, kc)));
+            for (slong b = 0; b < L->count; b++)
+                assert_true(b == kc || fmpz_is_zero(fmpz_mat_entry(L->sigma, b, a)));
+        }
+    assert_int_equal(hits, 1);
+    nq_clear(Q);
+
+    nq_init(Q);
+    compute_quotient(Q, "surface(2)", 6);
+    for (slong j = 0; j < Q->nlayers; j++)
+        check_coordinates(Q->layers + j, "surface(2)");
+    assert_int_equal(Q->layers[5].free_rank, 440);
+    nq_clear(Q);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -285,6 +327,7 @@ int main(void)
         cmocka_unit_test(free_layers_are_their_pc_generators),
         cmocka_unit_test(reduce_and_trivial_in_z6),
         cmocka_unit_test(trivial_layer),
+        cmocka_unit_test(coordinates_on_the_support_of_the_relations),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
