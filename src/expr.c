@@ -75,8 +75,18 @@ expr_node *expr_node_new(expr_kind kind, int line, int col)
     fmpz_init(n->exp);
     n->nkids = 0;
     n->kids = NULL;
+    n->nsyl = 0;
+    n->syl = NULL;
     n->line = line;
     n->col = col;
+    return n;
+}
+
+expr_node *expr_node_new_run(expr_syl *syl, slong nsyl, int line, int col)
+{
+    expr_node *n = expr_node_new(EXPR_RUN, line, col);
+    n->syl = syl;
+    n->nsyl = nsyl;
     return n;
 }
 
@@ -116,6 +126,7 @@ void expr_node_free(expr_node *n)
             if (x->kids[i] != NULL)
                 node_stack_push(&st, x->kids[i]);
         flint_free(x->kids);
+        flint_free(x->syl);
         fmpz_clear(x->exp);
         flint_free(x);
     }
@@ -134,6 +145,11 @@ static expr_node *node_copy_shallow(const expr_node *src)
         d->kids = flint_malloc(sizeof(expr_node *) * src->nkids);
         for (slong i = 0; i < src->nkids; i++)
             d->kids[i] = NULL;
+    }
+    if (src->nsyl > 0) {
+        d->syl = flint_malloc(sizeof(expr_syl) * src->nsyl);
+        memcpy(d->syl, src->syl, sizeof(expr_syl) * src->nsyl);
+        d->nsyl = src->nsyl;
     }
     return d;
 }
@@ -751,9 +767,101 @@ static ns_status parse_factor(expr_node **out, parser *p, int depth)
     return NS_OK;
 }
 
+/* The letters of a product gathered into one EXPR_RUN (see expr.h). */
+typedef struct {
+    expr_syl *v;
+    slong n, cap;
+    int line, col; /* of the first letter */
+} run_buf;
+
+/* If f is a letter or a letter to a power that fits a syllable, the
+ * syllable; else 0. */
+static int node_get_syl(expr_syl *out, const expr_node *f)
+{
+    const expr_node *g = f;
+
+    if (f->kind == EXPR_POW) {
+        if (f->param >= 0 || f->nkids != 1 || !fmpz_fits_si(f->exp))
+            return 0;
+        slong e = fmpz_get_si(f->exp);
+        if (e <= INT32_MIN || e > INT32_MAX)
+            return 0;
+        out->exp = (int32_t)e;
+        g = f->kids[0];
+    } else {
+        out->exp = EXPR_SYL_BARE;
+    }
+    if (g->kind != EXPR_GEN || g->nkids != 0 || g->gen < 0 || g->gen > INT32_MAX)
+        return 0;
+    out->gen = (int32_t)g->gen;
+    return 1;
+}
+
+static void run_buf_add(run_buf *r, expr_syl x, int line, int col)
+{
+    if (r->n == 0) {
+        r->line = line;
+        r->col = col;
+    }
+    if (r->n == r->cap) {
+        r->cap = r->cap ? 2 * r->cap : 8;
+        r->v = flint_realloc(r->v, sizeof(expr_syl) * r->cap);
+    }
+    r->v[r->n++] = x;
+}
+
+/* Hands the gathered letters to the product's kids: one syllable goes back
+ * to the node the parser built for it (a letter, or a power of a letter at
+ * the letter's position), several become one run. */
+static void run_buf_flush(run_buf *r, kid_list *k)
+{
+    expr_node *n;
+
+    if (r->n == 0)
+        return;
+    if (r->n == 1) {
+        expr_node *g = expr_node_new(EXPR_GEN, r->line, r->col);
+        g->gen = r->v[0].gen;
+        if (r->v[0].exp == EXPR_SYL_BARE) {
+            n = g;
+        } else {
+            n = expr_node_new(EXPR_POW, r->line, r->col);
+            fmpz_set_si(n->exp, r->v[0].exp);
+            expr_node_add_kid(n, g);
+        }
+        flint_free(r->v);
+    } else {
+        /* exact size: a run may hold millions of letters */
+        n = expr_node_new_run(flint_realloc(r->v, sizeof(expr_syl) * r->n), r->n, r->line,
+                              r->col);
+    }
+    kid_list_add(k, n);
+    r->v = NULL;
+    r->n = r->cap = 0;
+}
+
+/* Adds one factor of a product (never an EXPR_MUL) to the kids; takes f. */
+static void add_factor(kid_list *k, run_buf *r, expr_node *f)
+{
+    expr_syl x;
+
+    if (node_get_syl(&x, f)) {
+        run_buf_add(r, x, f->line, f->col);
+        expr_node_free(f);
+    } else if (f->kind == EXPR_RUN) {
+        for (slong i = 0; i < f->nsyl; i++)
+            run_buf_add(r, f->syl[i], f->line, f->col);
+        expr_node_free(f);
+    } else {
+        run_buf_flush(r, k);
+        kid_list_add(k, f);
+    }
+}
+
 static ns_status parse_word(expr_node **out, parser *p, int flags, int depth)
 {
     kid_list k = {NULL, 0, 0};
+    run_buf r = {NULL, 0, 0, 0, 0};
     ns_status st;
 
     *out = NULL;
@@ -762,7 +870,7 @@ static ns_status parse_word(expr_node **out, parser *p, int flags, int depth)
         expr_tok_kind kind = p->s->tok.kind;
 
         if (kind == EXPR_TOK_STAR) {
-            if (k.n == 0) {
+            if (k.n == 0 && r.n == 0) {
                 st = err_unexpected(p);
                 goto fail;
             }
@@ -785,13 +893,14 @@ static ns_status parse_word(expr_node **out, parser *p, int flags, int depth)
         if (f->kind == EXPR_MUL) {
             /* "(a b) c" is the product a b c: splice instead of nesting. */
             for (slong i = 0; i < f->nkids; i++)
-                kid_list_add(&k, f->kids[i]);
+                add_factor(&k, &r, f->kids[i]);
             f->nkids = 0;
             expr_node_free(f);
         } else {
-            kid_list_add(&k, f);
+            add_factor(&k, &r, f);
         }
     }
+    run_buf_flush(&r, &k);
     if (k.n == 0) {
         char d[80];
         _expr_tok_describe(d, sizeof d, &p->s->tok);
@@ -807,6 +916,7 @@ static ns_status parse_word(expr_node **out, parser *p, int flags, int depth)
     return NS_OK;
 
 fail:
+    flint_free(r.v);
     kid_list_free(&k);
     return st;
 }
@@ -872,7 +982,28 @@ static int needs_parens(const expr_node *n, int ctx)
         return 0;
     if (n->kind == EXPR_MUL)
         return n->nkids >= 2; /* one kid prints in this context itself */
+    if (n->kind == EXPR_RUN) /* as the product or the power it stands for */
+        return n->nsyl >= 2 || (n->nsyl == 1 && n->syl[0].exp != EXPR_SYL_BARE);
     return n->kind == EXPR_POW || n->kind == EXPR_CONJ;
+}
+
+/* The letters of a run as a product prints them: "a b^-2 c^1". */
+static void put_run(strbuf_t b, const expr_node *n, const names_t g)
+{
+    char num[16];
+
+    for (slong i = 0; i < n->nsyl; i++) {
+        expr_syl x = n->syl[i];
+        if (i > 0)
+            strbuf_puts(b, " ");
+        strbuf_puts(b, x.gen >= 0 && x.gen < g->n ? g->name[x.gen] : "?");
+        if (x.exp != EXPR_SYL_BARE) {
+            snprintf(num, sizeof num, "^%d", (int)x.exp);
+            strbuf_puts(b, num);
+        }
+    }
+    if (n->nsyl == 0)
+        strbuf_puts(b, "1");
 }
 
 typedef struct {
@@ -959,6 +1090,10 @@ char *expr_node_get_str(const expr_node *root, const names_t g)
                 else
                     PUSH(n->kids[0], CTX_WORD);
                 break;
+            case EXPR_RUN:
+                put_run(b, n, g);
+                done = 1;
+                break;
             }
             if (!done)
                 continue;
@@ -992,8 +1127,9 @@ char *expr_node_get_str(const expr_node *root, const names_t g)
                 if (next < n->nkids) {
                     int spaced = 0;
                     for (slong i = 0; i < n->nkids; i++)
-                        if (n->kids[i] != NULL && n->kids[i]->kind == EXPR_MUL &&
-                            n->kids[i]->nkids >= 2)
+                        if (n->kids[i] != NULL &&
+                            ((n->kids[i]->kind == EXPR_MUL && n->kids[i]->nkids >= 2) ||
+                             n->kids[i]->kind == EXPR_RUN))
                             spaced = 1;
                     strbuf_puts(b, spaced ? ", " : ",");
                     st[top].next = next;
@@ -1086,6 +1222,11 @@ void expr_exponent_sums(fmpz *sums, const expr_t e, slong ngens)
             case EXPR_CONJ:
                 if (x->nkids >= 1)
                     PUSH_M(x->kids[0], m);
+                break;
+            case EXPR_RUN:
+                for (slong i = 0; i < x->nsyl; i++)
+                    if (x->syl[i].gen >= 0 && x->syl[i].gen < ngens)
+                        fmpz_addmul_si(sums + x->syl[i].gen, m, expr_syl_exp(x->syl[i]));
                 break;
             case EXPR_COMM:
             case EXPR_ONE:

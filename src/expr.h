@@ -2,10 +2,15 @@
  *
  * A word is kept as a tree (products, powers with fmpz exponents,
  * left-normed commutators, conjugates) rather than expanded into letters,
- * so that a^(10^50) or [a,b]^1000 cost nothing until evaluated.  Evaluation in
+ * so that a^(10^50) or [a,b]^1000 cost nothing until evaluated.  A stretch
+ * of plain letters and small powers (a b a^-2 b ...) is one EXPR_RUN node
+ * holding 8 bytes per letter, so that a relator of millions of letters costs
+ * a few bytes per input byte instead of a node per letter.  Evaluation in
  * a polycyclic presentation lives in pcp.h (pcp_eval_expr). */
 #ifndef NILSTEP_EXPR_H
 #define NILSTEP_EXPR_H
+
+#include <stdint.h>
 
 #include <flint/flint.h>
 #include <flint/fmpz.h>
@@ -18,8 +23,26 @@ typedef enum {
     EXPR_POW,   /* kids[0]^exp, exp any integer (negative = inverse) */
     EXPR_COMM,  /* left-normed [k0,k1,...,k(n-1)], nkids >= 2;
                    [x,y] = x^-1 y^-1 x y, [x,y,z] = [[x,y],z] */
-    EXPR_CONJ   /* kids[0]^kids[1] = kids[1]^-1 kids[0] kids[1] */
+    EXPR_CONJ,  /* kids[0]^kids[1] = kids[1]^-1 kids[0] kids[1] */
+    EXPR_RUN    /* product of syllables syl[0] ... syl[nsyl-1], nsyl >= 2,
+                   no kids: the compact form of a product of letters and
+                   powers of letters with exponents that fit in 32 bits */
 } expr_kind;
+
+/* One syllable of an EXPR_RUN: generator gen to the power exp.  exp is
+ * EXPR_SYL_BARE for a letter written without '^' (exponent 1; "a" and
+ * "a^1" print differently), any other int32_t value is the exponent. */
+typedef struct {
+    int32_t gen;
+    int32_t exp;
+} expr_syl;
+#define EXPR_SYL_BARE INT32_MIN
+
+/* The exponent of a syllable as a number (1 for a bare letter). */
+static inline int32_t expr_syl_exp(expr_syl s)
+{
+    return s.exp == EXPR_SYL_BARE ? 1 : s.exp;
+}
 
 typedef struct expr_node_struct {
     expr_kind kind;
@@ -30,7 +53,10 @@ typedef struct expr_node_struct {
                                         parameter number param; -1 elsewhere */
     slong nkids;
     struct expr_node_struct **kids;  /* owned */
-    int line, col;                   /* where the node starts in the source */
+    slong nsyl;                      /* EXPR_RUN only; 0 elsewhere */
+    expr_syl *syl;                   /* EXPR_RUN only, owned (flint_malloc) */
+    int line, col;                   /* where the node starts in the source
+                                        (an EXPR_RUN: its first letter) */
 } expr_node;
 
 /* A whole word; owns its tree.  root == NULL never happens after a
@@ -51,6 +77,8 @@ void expr_swap(expr_t a, expr_t b);
  * expr_node_free, expr_node_copy and the printers walk the tree without
  * recursion, so trees of any depth are safe. */
 expr_node *expr_node_new(expr_kind kind, int line, int col);
+/* An EXPR_RUN node that takes over syl (nsyl >= 2 entries, flint_malloc'd). */
+expr_node *expr_node_new_run(expr_syl *syl, slong nsyl, int line, int col);
 expr_node *expr_node_copy(const expr_node *n);
 void expr_node_free(expr_node *n);
 void expr_node_add_kid(expr_node *parent, expr_node *kid);
@@ -95,6 +123,13 @@ slong names_find(const names_t g, const char *name, size_t len);
  * runs to the end of the line; blanks and line breaks may stand between any
  * two tokens.  Brackets and parentheses nest at most EXPR_MAX_DEPTH deep
  * (NS_ERR_LIMIT beyond that, so parsing never recurses without bound).
+ *
+ * Trees: two or more neighbouring factors of a product that are letters or
+ * letters to an integer power fitting in 32 bits (other than -2^31) become
+ * one EXPR_RUN node, also across parentheses ("(a b) c" is one run of three);
+ * a lone such factor stays EXPR_GEN or EXPR_POW of EXPR_GEN.  Other factors
+ * keep their own nodes, and a product that mixes both is an EXPR_MUL whose
+ * kids include the runs.
  *
  * Positions: lines and columns are 1-based; a column counts Unicode code
  * points (a tab is one column), so that messages match what editors show

@@ -754,6 +754,31 @@ int pcp_eval_expr(pcp_work_t W, fmpz *out, const expr_node *e, const fmpz *image
         _fmpz_vec_clear(x, n);
         break;
     }
+    case EXPR_RUN: {
+        /* the same products as an EXPR_MUL of its letters would give */
+        fmpz *acc = _fmpz_vec_init(n);
+        fmpz *x = _fmpz_vec_init(n);
+        fmpz_t ex;
+        fmpz_init(ex);
+        for (slong k = 0; k < e->nsyl && !W->overflow; k++) {
+            const fmpz *img = images + (slong)e->syl[k].gen * n;
+            const fmpz *f = img;
+            if (e->syl[k].exp != EXPR_SYL_BARE) {
+                fmpz_set_si(ex, e->syl[k].exp);
+                pcp_elt_pow(W, x, img, ex);
+                f = x;
+            }
+            if (k == 0)
+                _fmpz_vec_set(acc, f, n);
+            else
+                pcp_elt_mul(W, acc, acc, f);
+        }
+        _fmpz_vec_set(out, acc, n);
+        fmpz_clear(ex);
+        _fmpz_vec_clear(acc, n);
+        _fmpz_vec_clear(x, n);
+        break;
+    }
     }
     return W->overflow;
 }

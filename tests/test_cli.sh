@@ -545,6 +545,18 @@ else
     ok
 fi
 expect_usage "--max-memory takes" "bad --max-memory" report --max-memory 12Q --group '<a>' --class 1
+# The same 8 MB session (4,000,000 letters) fits in 128 MiB: a word keeps a
+# few bytes per letter (it took 37 per input byte, a node per letter, and
+# over 600 MiB in all).  Layer 1 is the abelianisation Z^2/<(N, N)> =
+# Z + Z/N with N = 2,000,000 (Smith form of the exponent-sum row, by hand).
+run report --max-memory 128M "$big"
+if [[ $rc != 0 ]]; then
+    fail "8 MB session under --max-memory 128M: exit status $rc (stderr: ${err:0:300})"
+elif [[ $out != *"    1  Z + Z/2000000 "* ]]; then
+    fail "8 MB session: layer 1 is not Z + Z/2000000: ${out: -600}"
+else
+    ok
+fi
 expect_status 0 "a small job under a generous --max-memory" \
     report --max-memory 2G --group 'free(2)' --class 3
 # The address-space limit of the shell (ulimit -v) is named too; not under

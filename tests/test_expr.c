@@ -9,6 +9,7 @@
  *
  * Random tests print their seed; NILSTEP_SEED replays one, NILSTEP_ITER
  * multiplies the number of cases. */
+#include <malloc.h>
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
@@ -252,14 +253,47 @@ static void parse_should_build_flat_products_and_keep_big_exponents(void **state
     (void)state;
 
     expr_init(e);
+    /* the letters a, b, c (across the parentheses) are one run; the power
+     * too big for a syllable keeps its own node with the fmpz exponent */
     parse_ok(e, "a (b c) a^123456789012345678901234567890");
     assert_int_equal(e->root->kind, EXPR_MUL);
-    assert_int_equal(e->root->nkids, 4);
-    assert_int_equal(e->root->kids[3]->kind, EXPR_POW);
+    assert_int_equal(e->root->nkids, 2);
+    assert_int_equal(e->root->kids[0]->kind, EXPR_RUN);
+    assert_int_equal(e->root->kids[0]->nsyl, 3);
+    assert_int_equal(e->root->kids[0]->syl[2].gen, 2);
+    assert_int_equal(e->root->kids[1]->kind, EXPR_POW);
     fmpz_init(big);
     fmpz_set_str(big, "123456789012345678901234567890", 10);
-    assert_true(fmpz_equal(e->root->kids[3]->exp, big));
+    assert_true(fmpz_equal(e->root->kids[1]->exp, big));
     fmpz_clear(big);
+
+    /* syllables: bare letters, small exponents (also written "(n)"), the
+     * largest 32-bit ones; -2^31 and beyond are fmpz powers */
+    parse_ok(e, "a b^-2 c^(3) a^1 b^0 c^2147483647 a^-2147483647");
+    assert_int_equal(e->root->kind, EXPR_RUN);
+    assert_int_equal(e->root->nsyl, 7);
+    assert_int_equal(e->root->syl[0].exp, EXPR_SYL_BARE);
+    assert_int_equal(expr_syl_exp(e->root->syl[0]), 1);
+    assert_int_equal(e->root->syl[1].exp, -2);
+    assert_int_equal(e->root->syl[2].exp, 3);
+    assert_int_equal(e->root->syl[3].exp, 1);
+    assert_int_equal(e->root->syl[4].exp, 0);
+    assert_int_equal(e->root->syl[5].exp, INT32_MAX);
+    assert_int_equal(e->root->syl[6].exp, -INT32_MAX);
+    parse_ok(e, "a b^-2147483648 c");
+    assert_int_equal(e->root->kind, EXPR_MUL);
+    assert_int_equal(e->root->nkids, 3);
+    assert_int_equal(e->root->kids[1]->kind, EXPR_POW);
+    /* a lone letter or power of a letter stays a node of its own */
+    parse_ok(e, "(a)^5");
+    assert_int_equal(e->root->kind, EXPR_POW);
+    assert_int_equal(e->root->kids[0]->kind, EXPR_GEN);
+    parse_ok(e, "[a,b] c^2 [a,c]");
+    assert_int_equal(e->root->kind, EXPR_MUL);
+    assert_int_equal(e->root->kids[1]->kind, EXPR_POW);
+    assert_int_equal(e->root->kids[1]->kids[0]->gen, 2);
+    assert_int_equal(e->root->kids[1]->line, 1);
+    assert_int_equal(e->root->kids[1]->col, 7);
 
     parse_ok(e, "a^-99999999999999999999999");
     assert_int_equal(e->root->kind, EXPR_POW);
@@ -446,11 +480,109 @@ static void parse_should_limit_nesting_depth(void **state)
         }
         w[n] = '\0';
         assert_int_equal(expr_parse(e, w, 1, 1, g, err), NS_OK);
-        assert_int_equal(e->root->nkids, (slong)(n / 2));
+        assert_int_equal(e->root->kind, EXPR_RUN);
+        assert_int_equal(e->root->nsyl, (slong)(n / 2));
         free(w);
     }
     expr_clear(e);
     names_clear(g);
+}
+
+/* Bytes held through FLINT's allocator now and at most since the reset. */
+static long long mem_now, mem_peak;
+
+static void mem_count(long long d)
+{
+    mem_now += d;
+    if (mem_now > mem_peak)
+        mem_peak = mem_now;
+}
+
+static void *counting_malloc(size_t n)
+{
+    void *p = malloc(n);
+    mem_count((long long)malloc_usable_size(p));
+    return p;
+}
+
+static void *counting_calloc(size_t k, size_t n)
+{
+    void *p = calloc(k, n);
+    mem_count((long long)malloc_usable_size(p));
+    return p;
+}
+
+static void *counting_realloc(void *q, size_t n)
+{
+    long long before = q ? (long long)malloc_usable_size(q) : 0;
+    void *p = realloc(q, n);
+    /* a moved block was briefly held twice; count that for the peak */
+    if (p != q && q != NULL)
+        mem_count((long long)malloc_usable_size(p));
+    else
+        mem_count((long long)malloc_usable_size(p) - before);
+    if (p != q && q != NULL)
+        mem_count(-before);
+    return p;
+}
+
+static void counting_free(void *p)
+{
+    if (p != NULL)
+        mem_count(-(long long)malloc_usable_size(p));
+    free(p);
+}
+
+/* A word of millions of letters (a session of 12 MB once took 37 bytes of
+ * tree per input byte, a node per letter): the tree holds at most 5 bytes
+ * per input byte, parsing needs at most 13 at its peak, a copy (as the
+ * quotient keeps one) costs the same again, and both print back as given.
+ * Bounds of our own, from the 8-byte syllable of expr.h; the text has 3
+ * letters per 8 bytes ("a b c a " at 2 bytes per letter is the densest). */
+static void parse_should_cost_few_bytes_per_input_byte(void **state)
+{
+    names_t g;
+    nserr_t err;
+    expr_t e, f;
+    size_t n = 4000000;
+    char *w = malloc(n + 1);
+    (void)state;
+
+    for (size_t i = 0; i < n; i += 8)
+        memcpy(w + i, i % 16 ? "b^-20 c " : "a b c a ", 8);
+    w[n - 1] = '\0'; /* the last blank */
+    make_names(g, abc, 3);
+    nserr_init(err);
+    expr_init(e);
+    expr_init(f);
+    __flint_set_memory_functions(counting_malloc, counting_calloc, counting_realloc,
+                                 counting_free);
+    mem_now = mem_peak = 0;
+    assert_int_equal(expr_parse(e, w, 1, 1, g, err), NS_OK);
+    long long held = mem_now, peak = mem_peak;
+    mem_peak = mem_now;
+    expr_set(f, e);
+    long long copy = mem_now - held, copy_peak = mem_peak - held;
+    __flint_set_memory_functions(malloc, calloc, realloc, free);
+    print_message("parse: %.2f bytes held, %.2f at the peak; copy: %.2f, %.2f at the peak "
+                  "(per input byte)\n",
+                  (double)held / (double)n, (double)peak / (double)n, (double)copy / (double)n,
+                  (double)copy_peak / (double)n);
+    assert_true(held <= 5 * (long long)n);
+    assert_true(peak <= 13 * (long long)n);
+    assert_true(copy_peak <= 6 * (long long)n);
+    {
+        char *s = expr_get_str(f, g);
+        assert_int_equal(strlen(s), n - 1);
+        assert_memory_equal(s, w, n - 1);
+        flint_free(s);
+    }
+    /* freed through the counting allocator's malloc: no mixed heaps here,
+     * since every hook is the C library's own */
+    expr_clear(e);
+    expr_clear(f);
+    names_clear(g);
+    free(w);
 }
 
 /* ------------------------------------------------------------------------ */
@@ -478,7 +610,7 @@ static void print_should_use_minimal_parentheses(void **state)
 /* Random trees over a, b, c (small exponents when for_matrices). */
 static expr_node *random_node(int depth, int for_matrices)
 {
-    int kind = depth <= 0 ? (int)rng_range(0, 1) : (int)rng_range(0, 5);
+    int kind = depth <= 0 ? (int)rng_range(0, 1) : (int)rng_range(0, 6);
     expr_node *n;
 
     switch (kind) {
@@ -516,11 +648,25 @@ static expr_node *random_node(int depth, int for_matrices)
         for (long i = rng_range(2, 3); i > 0; i--)
             expr_node_add_kid(n, random_node(depth - 1, for_matrices));
         return n;
-    default:
+    case 5:
         n = expr_node_new(EXPR_CONJ, 0, 0);
         expr_node_add_kid(n, random_node(depth - 1, for_matrices));
         expr_node_add_kid(n, random_node(depth - 1, for_matrices));
         return n;
+    default: {
+        slong k = rng_range(2, 4);
+        expr_syl *v = flint_malloc(sizeof(expr_syl) * k);
+        for (slong i = 0; i < k; i++) {
+            v[i].gen = (int32_t)rng_range(0, for_matrices ? 1 : 2);
+            if (rng_range(0, 2) == 0)
+                v[i].exp = EXPR_SYL_BARE;
+            else if (for_matrices || rng_range(0, 3) != 0)
+                v[i].exp = (int32_t)rng_range(-3, 3);
+            else
+                v[i].exp = rng_range(0, 1) ? INT32_MAX : -INT32_MAX;
+        }
+        return expr_node_new_run(v, k, 0, 0);
+    }
     }
 }
 
@@ -765,6 +911,7 @@ int main(void)
         cmocka_unit_test(parse_should_reject_chained_carets),
         cmocka_unit_test(parse_should_reject_stray_numbers_and_characters),
         cmocka_unit_test(parse_should_limit_nesting_depth),
+        cmocka_unit_test(parse_should_cost_few_bytes_per_input_byte),
         cmocka_unit_test(print_should_use_minimal_parentheses),
         cmocka_unit_test(print_then_parse_should_be_stable_on_random_words),
         cmocka_unit_test(exponent_sums_should_follow_the_definitions),

@@ -1027,6 +1027,24 @@ static void ut_eval(fmpz_mat_t out, const expr_node *e, const fmpz_mat_struct *g
         fmpz_mat_clear(t);
         break;
     }
+    case EXPR_RUN: {
+        fmpz_mat_t acc;
+        fmpz_t ex;
+        fmpz_mat_init(acc, 4, 4);
+        fmpz_mat_init(x, 4, 4);
+        fmpz_init(ex);
+        fmpz_mat_one(acc);
+        for (slong k = 0; k < e->nsyl; k++) {
+            fmpz_set_si(ex, expr_syl_exp(e->syl[k]));
+            ut_pow(x, gens + e->syl[k].gen, ex);
+            fmpz_mat_mul(acc, acc, x);
+        }
+        fmpz_mat_set(out, acc);
+        fmpz_mat_clear(acc);
+        fmpz_mat_clear(x);
+        fmpz_clear(ex);
+        break;
+    }
     }
 }
 

@@ -601,7 +601,7 @@ static void map_should_read_one_image_per_generator(void **state)
     s = pres_get_map_str(f.img, f.p);
     assert_string_equal(s, "a -> a^2 b, b -> b a");
     flint_free(s);
-    assert_int_equal(f.img[1].root->kind, EXPR_MUL);
+    assert_int_equal(f.img[1].root->kind, EXPR_RUN); /* b a: one run of letters */
 
     /* line breaks separate images as well as commas do */
     assert_int_equal(pres_parse_map(f.img, f.p, "a -> a^2 b  # first\n  b -> [a,b] b\n", 1, 1, err),

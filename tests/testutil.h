@@ -208,6 +208,22 @@ static inline void eval_in_matrices(fmpz_mat_t out, const expr_node *n, const fm
         fmpz_mat_mul(u, t, x);
         fmpz_mat_mul(out, u, y);
         break;
+    case EXPR_RUN:
+        fmpz_mat_one(x);
+        for (slong i = 0; i < n->nsyl; i++) {
+            slong e = expr_syl_exp(n->syl[i]);
+            fmpz_mat_set(y, gens + n->syl[i].gen);
+            if (e < 0) {
+                mat_inv_unimodular(t, y);
+                fmpz_mat_swap(y, t);
+                e = -e;
+            }
+            fmpz_mat_pow(u, y, (ulong)e);
+            fmpz_mat_mul(t, x, u);
+            fmpz_mat_swap(x, t);
+        }
+        fmpz_mat_set(out, x);
+        break;
     }
     fmpz_mat_clear(x);
     fmpz_mat_clear(y);
