@@ -489,13 +489,14 @@ void iterate_point_clear(iterate_point_t p)
         _fmpz_vec_clear(L->torsion, FLINT_MAX(L->ntors, 1));
     }
     flint_free(p->layers);
-    if (p->sqnorm)
-        _fmpz_vec_clear(p->sqnorm, FLINT_MAX(p->nlayers, 1));
     iterate_point_init(p);
 }
 
 /* Decimal digits of |x|; 1 for 0.  The bit length brackets log10 |x|;
- * only when a power of ten falls inside the bracket is it computed. */
+ * when a power of ten 10^hi falls inside the bracket, |x| is compared with
+ * it at 64 bits (Arb balls), and exactly only when the balls overlap (|x|
+ * within a relative 2^-60 or so of 10^hi): a describing step stays cheap
+ * however long the coordinates grow. */
 static slong decimal_digits(const iterate_map_struct *M, const fmpz_t x)
 {
     if (fmpz_is_zero(x))
@@ -505,7 +506,18 @@ static slong decimal_digits(const iterate_map_struct *M, const fmpz_t x)
     slong lo = (slong)((double)(b - 1) * l2 - 1e-9), hi = (slong)((double)b * l2 + 1e-9);
     if (lo == hi)
         return lo + 1;
-    /* 10^hi may lie in the bracket: compare */
+    arb_t ax, p10;
+    arb_init(ax);
+    arb_init(p10);
+    arb_set_round_fmpz(ax, x, 64);
+    arb_abs(ax, ax);
+    arb_ui_pow_ui(p10, 10, (ulong)hi, 64);
+    int ge = arb_ge(ax, p10) ? 1 : arb_lt(ax, p10) ? 0 : -1;
+    arb_clear(ax);
+    arb_clear(p10);
+    if (ge >= 0)
+        return ge ? hi + 1 : hi;
+    /* 10^hi may lie in the bracket: compare exactly */
     iterate_map_struct *C = (iterate_map_struct *)M; /* a cache: M is logically const */
     if (C->pow10_k != hi) {
         fmpz_ui_pow_ui(C->pow10, 10, (ulong)hi);
@@ -523,7 +535,6 @@ void iterate_point_set(iterate_point_t p, const iterate_map_t M, const fmpz *x, 
     _fmpz_vec_set(p->elt, x, M->n);
     p->nlayers = M->nlayers;
     p->layers = flint_calloc(FLINT_MAX(M->nlayers, 1), sizeof(iterate_layer_struct));
-    p->sqnorm = _fmpz_vec_init(FLINT_MAX(M->nlayers, 1));
     fmpz_t big;
     fmpz_init(big);
     for (slong j = 0; j < M->nlayers; j++) {
@@ -559,7 +570,6 @@ void iterate_point_set(iterate_point_t p, const iterate_map_t M, const fmpz *x, 
         for (slong a = 0; a < r; a++) {
             if (fmpz_cmpabs(P->coords + a, big) > 0)
                 fmpz_abs(big, P->coords + a);
-            fmpz_addmul(p->sqnorm + j, P->coords + a, P->coords + a);
         }
         for (slong a = 0; a < P->ntors; a++)
             if (fmpz_cmpabs(P->torsion + a, big) > 0)
@@ -571,18 +581,30 @@ void iterate_point_set(iterate_point_t p, const iterate_map_t M, const fmpz *x, 
 
 void iterate_point_norm(arb_t out, const iterate_point_t p, slong prec)
 {
-    arb_t t;
+    /* from the coordinates rounded to prec + 16 bits: squaring them
+     * exactly would cost more than the step itself once they are long,
+     * and the balls keep the result certified */
+    arb_t t, v;
     arb_init(t);
+    arb_init(v);
     arb_zero(out);
     for (slong j = 0; j < p->nlayers; j++) {
-        if (fmpz_is_zero(p->sqnorm + j))
+        const iterate_layer_struct *L = p->layers + j;
+        arb_zero(t);
+        for (slong a = 0; a < L->free_rank; a++) {
+            if (fmpz_is_zero(L->coords + a))
+                continue;
+            arb_set_round_fmpz(v, L->coords + a, prec + 16);
+            arb_addmul(t, v, v, prec + 16);
+        }
+        if (arb_is_zero(t))
             continue;
-        /* ||v||^(1/w) = (||v||^2)^(1/(2w)) */
-        arb_set_round_fmpz(t, p->sqnorm + j, prec + 16);
-        arb_root_ui(t, t, 2 * (ulong)p->layers[j].weight, prec);
+        /* ||v||^(1/w) = (||v||^2)^(1/(2w)); t > 0 here */
+        arb_root_ui(t, t, 2 * (ulong)L->weight, prec);
         arb_add(out, out, t, prec);
     }
     arb_clear(t);
+    arb_clear(v);
 }
 
 void iterate_point_root(arb_t out, const iterate_point_t p, slong prec)

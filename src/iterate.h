@@ -111,7 +111,6 @@ typedef struct {
     fmpz *elt;      /* alpha^n(w) as an exponent vector */
     slong nlayers;
     iterate_layer_struct *layers;
-    fmpz *sqnorm;   /* nlayers: ||v_j||^2, exact */
 } iterate_point_struct;
 typedef iterate_point_struct iterate_point_t[1];
 

@@ -438,6 +438,53 @@ static void norm_of_known_iterate_should_be_exact(void **state)
     nq_clear(Q);
 }
 
+static void digits_should_be_exact_at_powers_of_ten(void **state)
+{
+    (void)state;
+    /* On Z^2, a -> a^10, b -> a^9 b: alpha^n(a) = a^(10^n) and alpha^n(b) =
+     * a^(10^n - 1) b, so the layer-1 coordinates sit at and just below every
+     * power of ten, where a digit count from the bit length alone is
+     * ambiguous.  The reference is the length of the decimal string. */
+    nq_t Q;
+    nq_init(Q);
+    compute_quotient(Q, "<a, b | [a,b]>", 1);
+    endo_t E;
+    endo_init(E);
+    assert_true(set_map(E, Q, "a -> a^10, b -> a^9 b"));
+    iterate_map_t M;
+    iterate_map_init(M);
+    nserr_t err;
+    nserr_init(err);
+    assert_int_equal(iterate_map_set(M, Q, E, NULL, err), NS_OK);
+    slong n = Q->pcp->n;
+    fmpz *x = _fmpz_vec_init(2 * n);
+    eval_word(x, Q, "a");
+    eval_word(x + n, Q, "b");
+    iterate_point_t p;
+    iterate_point_init(p);
+    fmpz_t big;
+    fmpz_init(big);
+    for (ulong k = 1; k <= 400; k++)
+        for (int w = 0; w < 2; w++) {
+            assert_int_equal(iterate_map_advance(M, x + w * n, 1, NULL, err), NS_OK);
+            iterate_point_set(p, M, x + w * n, k);
+            fmpz_zero(big);
+            for (slong a = 0; a < p->layers[0].free_rank; a++)
+                if (fmpz_cmpabs(p->layers[0].coords + a, big) > 0)
+                    fmpz_abs(big, p->layers[0].coords + a);
+            char *s = fmpz_get_str(NULL, 10, big);
+            assert_int_equal(p->layers[0].digits, (slong)strlen(s));
+            assert_int_equal(p->layers[0].digits, w == 0 ? (slong)k + 1 : (slong)k);
+            flint_free(s);
+        }
+    fmpz_clear(big);
+    iterate_point_clear(p);
+    _fmpz_vec_clear(x, 2 * n);
+    iterate_map_clear(M);
+    endo_clear(E);
+    nq_clear(Q);
+}
+
 static void word_length_in_z3_should_be_one_norm(void **state)
 {
     (void)state;
@@ -546,6 +593,7 @@ int main(void)
         cmocka_unit_test(torus_iterates_should_be_matrix_powers),
         cmocka_unit_test(free_class2_second_layer_should_be_exterior_square),
         cmocka_unit_test(norm_of_known_iterate_should_be_exact),
+        cmocka_unit_test(digits_should_be_exact_at_powers_of_ten),
         cmocka_unit_test(word_length_in_z3_should_be_one_norm),
         cmocka_unit_test(word_length_should_stop_at_the_budget),
         cmocka_unit_test(word_length_should_resume_after_a_cancel),
