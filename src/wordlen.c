@@ -15,37 +15,75 @@ static ulong hash_key(const slong *k, slong n)
 size_t wordlen_memory(const wordlen_t B)
 {
     return (size_t)B->alloc * ((size_t)B->n * sizeof(slong) + sizeof(int)) +
-           (size_t)B->nslot * sizeof(ulong);
+           (size_t)(B->nslot + B->old_nslot) * sizeof(ulong);
 }
 
-/* Index of key k in the ball, or -1; *where gets the free slot otherwise. */
-static slong find(const wordlen_t B, const slong *k, ulong *where)
+/* Index of key k in the table slot (nslot entries), or -1. */
+static slong find_in(const wordlen_t B, const ulong *slot, ulong nslot, const slong *k)
 {
-    if (B->nslot == 0)
+    if (nslot == 0)
         return -1;
-    ulong m = B->nslot - 1, h = hash_key(k, B->n) & m;
-    while (B->slot[h]) {
-        ulong idx = B->slot[h] - 1;
+    ulong m = nslot - 1, h = hash_key(k, B->n) & m;
+    while (slot[h]) {
+        ulong idx = slot[h] - 1;
         if (memcmp(B->elts + idx * B->n, k, (size_t)B->n * sizeof(slong)) == 0)
             return (slong)idx;
         h = (h + 1) & m;
     }
-    if (where)
-        *where = h;
     return -1;
 }
 
-static void rehash(wordlen_t B, ulong nslot)
+/* Index of key k in the ball, or -1.  While the table is being doubled the
+ * elements not yet moved are found in the old one. */
+static slong find(const wordlen_t B, const slong *k)
 {
-    flint_free(B->slot);
+    slong idx = find_in(B, B->slot, B->nslot, k);
+    if (idx < 0 && B->old_slot)
+        idx = find_in(B, B->old_slot, B->old_nslot, k);
+    return idx;
+}
+
+/* Enters element idx (not yet in the table) into the current table. */
+static void put(wordlen_t B, ulong idx)
+{
+    ulong m = B->nslot - 1, h = hash_key(B->elts + idx * B->n, B->n) & m;
+    while (B->slot[h])
+        h = (h + 1) & m;
+    B->slot[h] = idx + 1;
+}
+
+/* Moves up to `steps` elements of the old table into the new one and frees
+ * the old table when all are moved.  Doubling the table at once would
+ * stall one slice of the search for as long as re-entering the whole ball
+ * takes (about 100 ms at a million elements); spread over the inserts that
+ * follow, four per insert, it is done long before the next doubling (a
+ * whole ball's worth of inserts away), and no slice waits for it. */
+static void migrate(wordlen_t B, ulong steps)
+{
+    for (; B->old_slot && steps > 0; steps--) {
+        if (B->migrated == B->old_count) {
+            flint_free(B->old_slot);
+            B->old_slot = NULL;
+            B->old_nslot = 0;
+            break;
+        }
+        put(B, B->migrated++);
+    }
+}
+
+static void grow_table(wordlen_t B, ulong nslot)
+{
+    migrate(B, B->old_count + 1); /* a doubling still under way (never in
+                                     practice: see migrate) */
+    B->old_slot = B->slot;
+    B->old_nslot = B->nslot;
+    B->old_count = B->count - 1; /* the new element is entered by add */
+    B->migrated = 0;
     B->nslot = nslot;
     B->slot = flint_calloc(nslot, sizeof(ulong));
-    ulong m = nslot - 1;
-    for (ulong i = 0; i < B->count; i++) {
-        ulong h = hash_key(B->elts + i * B->n, B->n) & m;
-        while (B->slot[h])
-            h = (h + 1) & m;
-        B->slot[h] = i + 1;
+    if (B->old_nslot == 0) {
+        flint_free(B->old_slot);
+        B->old_slot = NULL;
     }
 }
 
@@ -58,7 +96,10 @@ static int add(wordlen_t B, const slong *k, int d)
         alloc = FLINT_MAX(2 * alloc, 64);
     if (2 * (B->count + 1) > nslot)
         nslot = FLINT_MAX(2 * nslot, 128);
-    size_t need = (size_t)alloc * (n * sizeof(slong) + sizeof(int)) + (size_t)nslot * sizeof(ulong);
+    /* a doubling keeps the old table until everything is moved */
+    size_t old = nslot != B->nslot ? B->nslot : B->old_nslot;
+    size_t need = (size_t)alloc * (n * sizeof(slong) + sizeof(int)) +
+                  ((size_t)nslot + old) * sizeof(ulong);
     if (need > B->budget)
         return 1;
     if (alloc != B->alloc) {
@@ -69,13 +110,10 @@ static int add(wordlen_t B, const slong *k, int d)
     memcpy(B->elts + B->count * n, k, n * sizeof(slong));
     B->dist[B->count] = d;
     B->count++;
-    if (nslot != B->nslot) {
-        rehash(B, nslot);
-    } else {
-        ulong where = 0;
-        find(B, k, &where);
-        B->slot[where] = B->count;
-    }
+    if (nslot != B->nslot)
+        grow_table(B, nslot);
+    put(B, B->count - 1);
+    migrate(B, 4);
     return 0;
 }
 
@@ -119,6 +157,7 @@ void wordlen_clear(wordlen_t B)
     flint_free(B->elts);
     flint_free(B->dist);
     flint_free(B->slot);
+    flint_free(B->old_slot);
     memset(B, 0, sizeof(wordlen_struct));
 }
 
@@ -162,7 +201,7 @@ int wordlen_grow(wordlen_t B, const ns_progress_t *progress)
                 B->stop_reason = "coordinates beyond machine integers";
                 break;
             }
-            if (find(B, key, NULL) >= 0)
+            if (find(B, key) >= 0)
                 continue;
             if (add(B, key, d)) {
                 B->stopped = 1;
@@ -211,7 +250,7 @@ slong wordlen_lookup(const wordlen_t B, const fmpz *g)
             key[k] = fmpz_get_si(g + k);
     }
     if (fits) {
-        slong idx = find(B, key, NULL);
+        slong idx = find(B, key);
         if (idx >= 0)
             res = B->dist[idx];
     }

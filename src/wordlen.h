@@ -34,6 +34,10 @@ typedef struct {
     /* open-addressing hash of indices + 1 into elts */
     ulong *slot;
     ulong nslot;        /* power of 2 */
+    /* while the table is being doubled: the old table, the elements it
+     * holds (indices < old_count) and how many are moved (wordlen.c) */
+    ulong *old_slot;
+    ulong old_nslot, old_count, migrated;
     slong complete_radius; /* every element of length <= this is in the ball */
     ulong sphere_start;    /* first element of the sphere complete_radius */
     ulong sphere_end;      /* ... and one past its last (when expanding) */
