@@ -102,6 +102,9 @@ void elim_init(elim_t E, slong ncols)
     fmpz_init(E->mod);
     E->npend = E->apend = 0;
     E->pend = NULL;
+    E->defer = 0;
+    E->nkept = E->akept = 0;
+    E->kept = NULL;
     E->piv = flint_malloc(FLINT_MAX(ncols, 1) * sizeof(elim_row_struct));
     for (slong c = 0; c < ncols; c++)
         row_init(E->piv + c);
@@ -118,6 +121,9 @@ void elim_clear(elim_t E)
     for (slong k = 0; k < E->apend; k++)
         row_clear(E->pend + k);
     flint_free(E->pend);
+    for (slong k = 0; k < E->akept; k++)
+        row_clear(E->kept + k);
+    flint_free(E->kept);
     fmpz_clear(E->mod);
     flint_free(E->piv);
 }
@@ -240,9 +246,33 @@ static void insert_row(elim_t E)
     fmpz_clear(y);
 }
 
+/* Appends a slot for a kept row and returns it (empty). */
+static elim_row_struct *push_kept(elim_t E)
+{
+    if (E->nkept == E->akept) {
+        slong na = FLINT_MAX(16, 2 * E->akept);
+        E->kept = flint_realloc(E->kept, na * sizeof(elim_row_struct));
+        for (slong k = E->akept; k < na; k++)
+            row_init(E->kept + k);
+        E->akept = na;
+    }
+    return E->kept + E->nkept++;
+}
+
+/* Inserts E->tmp[0] and whatever the insertion queues. */
+static void insert_with_pending(elim_t E)
+{
+    insert_row(E);
+    while (E->npend) {
+        E->npend--;
+        row_swap(E->tmp, E->pend + E->npend);
+        insert_row(E);
+    }
+}
+
 void elim_add_dense(elim_t E, const fmpz *row)
 {
-    elim_row_struct *r = E->tmp;
+    elim_row_struct *r = E->defer ? push_kept(E) : E->tmp;
     slong k = 0;
     for (slong c = 0; c < E->ncols; c++)
         if (!fmpz_is_zero(row + c))
@@ -257,12 +287,84 @@ void elim_add_dense(elim_t E, const fmpz *row)
             fmpz_set(r->val + r->len, row + c);
             r->len++;
         }
-    insert_row(E);
-    while (E->npend) {
-        E->npend--;
-        row_swap(E->tmp, E->pend + E->npend);
-        insert_row(E);
+    if (!E->defer)
+        insert_with_pending(E);
+}
+
+void elim_defer(elim_t E)
+{
+    FLINT_ASSERT(fmpz_is_zero(E->mod));
+    E->defer = 1;
+}
+
+/* Inserts the kept rows in the order of idx (a copy each: the kept rows
+ * stay for a second pass).  Returns 1 when progress asked to stop. */
+static int insert_kept(elim_t E, const slong *idx, const ns_progress_t *progress)
+{
+    for (slong k = 0; k < E->nkept; k++) {
+        if (progress && ns_progress_report(progress, NULL, -1.0))
+            return 1;
+        row_set(E->tmp, E->kept + idx[k]);
+        insert_with_pending(E);
     }
+    return 0;
+}
+
+/* The order of the sparsest-first pass: by length, ties by position. */
+static int kept_before(const elim_row_struct *kept, slong x, slong y)
+{
+    return kept[x].len != kept[y].len ? kept[x].len < kept[y].len : x < y;
+}
+
+static void sort_by_len(slong *idx, slong n, const elim_row_struct *kept)
+{
+    /* a bottom-up merge sort: qsort has no context argument in C17 */
+    slong *tmp = flint_malloc(FLINT_MAX(n, 1) * sizeof(slong));
+    for (slong w = 1; w < n; w *= 2) {
+        for (slong lo = 0; lo < n; lo += 2 * w) {
+            slong mid = FLINT_MIN(lo + w, n), hi = FLINT_MIN(lo + 2 * w, n);
+            slong i = lo, j = mid, k = lo;
+            while (i < mid && j < hi)
+                tmp[k++] = kept_before(kept, idx[j], idx[i]) ? idx[j++] : idx[i++];
+            while (i < mid)
+                tmp[k++] = idx[i++];
+            while (j < hi)
+                tmp[k++] = idx[j++];
+        }
+        memcpy(idx, tmp, n * sizeof(slong));
+    }
+    flint_free(tmp);
+}
+
+int elim_flush(elim_t E, const ns_progress_t *progress)
+{
+    if (!E->defer)
+        return 0;
+    E->defer = 0;
+    slong n = E->nkept;
+    slong *idx = flint_malloc(FLINT_MAX(n, 1) * sizeof(slong));
+    for (slong k = 0; k < n; k++)
+        idx[k] = k;
+    sort_by_len(idx, n, E->kept);
+    int stop = insert_kept(E, idx, progress);
+    int units = 1;
+    for (slong c = 0; c < E->ncols && units; c++)
+        if (E->piv[c].len && !fmpz_is_one(E->piv[c].val))
+            units = 0;
+    if (!stop && !units) {
+        for (slong c = 0; c < E->ncols; c++)
+            row_clear(E->piv + c);
+        for (slong k = 0; k < n; k++)
+            idx[k] = k;
+        stop = insert_kept(E, idx, progress);
+    }
+    flint_free(idx);
+    for (slong k = 0; k < E->akept; k++)
+        row_clear(E->kept + k);
+    flint_free(E->kept);
+    E->kept = NULL;
+    E->nkept = E->akept = 0;
+    return stop;
 }
 
 void elim_quotient_init(elim_quotient_t Q)

@@ -33,6 +33,9 @@ typedef struct {
     fmpz_t mod;           /* 0, or m with m Z^ncols inside the lattice */
     slong npend, apend;   /* rows queued for insertion (modular mode) */
     elim_row_struct *pend;
+    int defer;            /* 1: elim_add_dense keeps rows for elim_flush */
+    slong nkept, akept;   /* rows kept, in the order they were added */
+    elim_row_struct *kept;
 } elim_struct;
 typedef elim_struct elim_t[1];
 
@@ -49,6 +52,22 @@ void elim_set_modulus(elim_t E, const fmpz_t m);
 
 /* Adds the row (dense, ncols entries) to the lattice. */
 void elim_add_dense(elim_t E, const fmpz *row);
+
+/* Deferred insertion (not with a modulus): after elim_defer, elim_add_dense
+ * only keeps a sparse copy of each row, and elim_flush inserts the kept
+ * rows, sparsest first.  On the tail relations of the nilpotent quotient
+ * algorithm that order keeps the echelon rows short and their entries
+ * small (free(2) class 12: 0.06 s instead of 2.7 s).  The pivots do not
+ * depend on the order (they are the Hermite form's), and when every pivot
+ * is 1 neither does the quotient (the survivors are then a basis of the
+ * free group Z^ncols / L); otherwise elim_flush inserts the rows again in
+ * the order they were added, so that the relation block of the torsion
+ * survivors is exactly what direct insertion gives.  The pivots and the
+ * quotient must be read only after elim_flush.  elim_flush polls progress
+ * (may be NULL) between rows and returns 1 when it asked to stop (E then
+ * holds part of the lattice), else 0. */
+void elim_defer(elim_t E);
+int elim_flush(elim_t E, const ns_progress_t *progress);
 
 /* The pivot at column c (0 when there is none, m in modular mode);
  * positive. */

@@ -385,6 +385,8 @@ static ns_status step_tail_relations(step_struct *S, const nq_t Q, pcp_work_t W,
         abelian_exponent(m, Q->pcp);
         if (!fmpz_is_zero(m))
             elim_set_modulus(S->L, m);
+        else
+            elim_defer(S->L); /* sparsest rows first (elim.h) */
         fmpz_clear(m);
     }
     if (progress_stage(prog, c + 1, "consistency", 0.3))
@@ -426,7 +428,7 @@ static ns_status step_quotient(step_struct *S, const ns_progress_t *prog, nserr_
 {
     if (progress_stage(prog, S->c + 1, "elimination", 0.9))
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
-    if (elim_get_quotient_progress(S->q, S->L, prog))
+    if (elim_flush(S->L, prog) || elim_get_quotient_progress(S->q, S->L, prog))
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     if (progress_stage(prog, S->c + 1, "new presentation", 0.95))
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");

@@ -495,6 +495,63 @@ static void row_order_does_not_matter(void **state)
     }
 }
 
+/* elim_defer / elim_flush (elim.h): the deferred, sparsest-first insertion
+ * gives the pivots of direct insertion (the Hermite form's) and exactly its
+ * quotient: survivors, orders, relation block and column expressions, also
+ * when some pivot is not 1 (then elim_flush inserts in the original order
+ * again).  Checked against direct insertion and against FLINT's Smith form
+ * (check_quotient); both kinds of lattice occur. */
+static void deferred_insertion_is_direct_insertion(void **state)
+{
+    (void)state;
+    slong unimodular = 0, torsion = 0;
+    for (slong it = 0; it < iters(300); it++) {
+        slong m = rng_range(1, 9), n = rng_range(1, 8);
+        fmpz_mat_t A;
+        fmpz_mat_init(A, m, n);
+        rnd_matrix(A);
+        if (it % 2)
+            /* unit-heavy rows, as the tail relations of free groups are */
+            for (slong i = 0; i < m; i++)
+                for (slong j = 0; j < n; j++)
+                    fmpz_set_si(fmpz_mat_entry(A, i, j),
+                                (slong[]){0, 0, 0, 1, -1, 2}[rng_next() % 6]);
+        elim_t E, F;
+        elim_quotient_t Q, R;
+        elim_init(E, n);
+        elim_init(F, n);
+        elim_quotient_init(Q);
+        elim_quotient_init(R);
+        add_rows(E, A);
+        elim_defer(F);
+        add_rows(F, A);
+        assert_int_equal(elim_flush(F, NULL), 0);
+        int units = 1;
+        for (slong c = 0; c < n; c++) {
+            assert_true(fmpz_equal(elim_pivot(E, c), elim_pivot(F, c)));
+            if (!fmpz_is_zero(elim_pivot(E, c)) && !fmpz_is_one(elim_pivot(E, c)))
+                units = 0;
+        }
+        unimodular += units;
+        torsion += !units;
+        elim_get_quotient(Q, E);
+        elim_get_quotient(R, F);
+        check_quotient(A, F, R);
+        assert_int_equal(Q->nsurv, R->nsurv);
+        if (Q->nsurv) {
+            assert_memory_equal(Q->surv, R->surv, (size_t)Q->nsurv * sizeof(slong));
+            assert_true(_fmpz_vec_equal(Q->order, R->order, Q->nsurv));
+            assert_true(_fmpz_vec_equal(Q->rel, R->rel, Q->nsurv * Q->nsurv));
+            assert_true(_fmpz_vec_equal(Q->expr, R->expr, n * Q->nsurv));
+        }
+        elim_quotient_clear(Q);
+        elim_quotient_clear(R);
+        elim_clear(E);
+        elim_clear(F);
+        fmpz_mat_clear(A);
+    }
+    assert_true(unimodular > 0 && torsion > 0);
+}
 
 static int stop_now(void *ctx, const char *stage, double fraction)
 {
@@ -639,6 +696,7 @@ int main(void)
         cmocka_unit_test(pivots_match_hnf),
         cmocka_unit_test(expressions_kill_exactly_the_lattice),
         cmocka_unit_test(row_order_does_not_matter),
+        cmocka_unit_test(deferred_insertion_is_direct_insertion),
         cmocka_unit_test(modular_mode_is_the_lattice_plus_m_zn),
     };
     return cmocka_run_group_tests(tests, setup_seed, NULL);
