@@ -271,18 +271,26 @@ static int work_tick(pcp_work_t W)
     return W->overflow;
 }
 
-/* Moves the nonzero entries of u beyond i into a word and zeroes them. */
-static void take_tail(pcw_t T, fmpz *u, slong i, slong n)
+/* Moves the nonzero entries u_k, i < k < end, into a word and zeroes them.
+ * Callers pass end = commute_from[i]: the entries from there on commute
+ * with a_i and with every generator of weight >= weight(a_i) (their
+ * weights add up to more than maxweight), so they may stay where they are
+ * while a_i and anything beyond it is collected in front of them. */
+static void take_tail(pcw_t T, fmpz *u, slong i, slong end)
 {
     pcw_zero(T);
-    for (slong k = i + 1; k < n; k++)
+    for (slong k = i + 1; k < end; k++)
         if (!fmpz_is_zero(u + k)) {
             pcw_push(T, k, u + k);
             fmpz_zero(u + k);
         }
 }
 
-/* u := u * w^q for a word w and integer q. */
+/* Exponents up to this size are handled by plain collection; larger ones
+ * by the polynomial route when the presentation allows it. */
+#define PCP_SMALL_BITS 4
+
+/* u := u * w^q for a word w, its inverse winv and an integer q. */
 static void collect_word_pow(pcp_work_t W, fmpz *u, const pcw_t w, const pcw_t winv,
                              const fmpz_t q)
 {
@@ -306,16 +314,33 @@ static void collect_word_pow(pcp_work_t W, fmpz *u, const pcw_t w, const pcw_t w
         fmpz_clear(xq);
         return;
     }
-    slong n = W->P->n;
+    slong n = W->P->n, g0 = w->gen[0];
     fmpz *x = _fmpz_vec_init(n);
     pcw_t t;
     pcw_init(t);
-    pcw_get_vec(x, n, w);
-    pcp_elt_pow(W, x, x, q);
-    pcw_set_vec(t, x, n);
+    if (fmpz_bits(q) <= PCP_SMALL_BITS) {
+        /* w^q for small q by collecting w (or w^-1) |q| times into 1:
+         * cheaper than squaring, and everything stays in generators >=
+         * g0, so only that part of x is read and zeroed */
+        slong r = fmpz_get_si(q);
+        const pcw_struct *v = r > 0 ? w : winv;
+        for (r = FLINT_ABS(r); r > 0 && !W->overflow; r--)
+            pcp_collect_word(W, x, v);
+        pcw_zero(t);
+        for (slong k = g0; k < n; k++)
+            if (!fmpz_is_zero(x + k)) {
+                pcw_push(t, k, x + k);
+                fmpz_zero(x + k);
+            }
+        flint_free(x); /* every entry is zero again */
+    } else {
+        pcw_get_vec(x, n, w);
+        pcp_elt_pow(W, x, x, q);
+        pcw_set_vec(t, x, n);
+        _fmpz_vec_clear(x, n);
+    }
     pcp_collect_word(W, u, t);
     pcw_clear(t);
-    _fmpz_vec_clear(x, n);
 }
 
 /* u_i += e, carrying through the power relation of a finite a_i.  Entries
@@ -332,7 +357,7 @@ static void add_power(pcp_work_t W, fmpz *u, slong i, const fmpz_t e)
     fmpz_init(q);
     pcw_init(T);
     fmpz_fdiv_qr(q, u + i, u + i, m);
-    take_tail(T, u, i, P->n);
+    take_tail(T, u, i, P->commute_from[i]);
     collect_word_pow(W, u, P->pow + i, P->powinv + i, q);
     pcp_collect_word(W, u, T);
     pcw_clear(T);
@@ -418,9 +443,6 @@ static slong first_nonzero(const fmpz *u, slong n)
     return f;
 }
 
-/* Exponents up to this size are handled by plain collection; larger ones
- * by the polynomial route when the presentation allows it. */
-#define PCP_SMALL_BITS 4
 
 /* out := y^(a_i^e) for y in the subgroup of generators > i (y is a vector
  * of length n with zeros up to i), by the automorphisms
@@ -540,7 +562,7 @@ void pcp_collect_gen(pcp_work_t W, fmpz *u, slong i, const fmpz_t e)
     /* u = head a_i^(u_i) T, and T a_i^e = a_i^e T^(a_i^e). */
     pcw_t T;
     pcw_init(T);
-    take_tail(T, u, i, n);
+    take_tail(T, u, i, cf);
     add_power(W, u, i, e);
     if (fmpz_is_pm1(e)) {
         int neg = fmpz_sgn(e) < 0;
