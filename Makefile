@@ -5,7 +5,10 @@
 #   make deps       install missing Debian packages (.ci/install-deps)
 #   make build      configure (once) and build into $(BUILD)
 #   make demo       build, then open the terminal explorer
-#   make test       build, then run the whole test suite with ctest
+#   make test       build, then run the test suite with ctest (all but the
+#                   tests labelled slow)
+#   make test-slow  build, then run the slow tests (label slow: deep
+#                   reference checks such as free(2) at class 13)
 #   make bench      build, then build and run the benchmarks
 #   make asan       test suite under AddressSanitizer/UBSan in $(ASAN_BUILD),
 #                   built with clang when installed (ASAN_CC=...)
@@ -34,7 +37,7 @@ PREFIX ?=
 # Keep make's "Entering directory" chatter out of CMake's build output.
 MAKEFLAGS += --no-print-directory
 
-.PHONY: all deps build demo test bench asan fuzz install clean
+.PHONY: all deps build demo test test-slow bench asan fuzz install clean
 
 all: build
 
@@ -50,7 +53,10 @@ demo: build
 	./$(BUILD)/nilstep
 
 test: build
-	cd $(BUILD) && $(CTEST) --output-on-failure -j $(JOBS)
+	cd $(BUILD) && $(CTEST) --output-on-failure -j $(JOBS) -LE slow
+
+test-slow: build
+	cd $(BUILD) && $(CTEST) --output-on-failure -j $(JOBS) -L slow
 
 bench: build
 	$(CMAKE) --build $(BUILD) --target bench
@@ -63,7 +69,7 @@ asan: deps
 	cd $(ASAN_BUILD) && \
 	    ASAN_OPTIONS=detect_leaks=1 \
 	    UBSAN_OPTIONS=print_stacktrace=1:halt_on_error=1 \
-	    $(CTEST) --output-on-failure -j $(JOBS)
+	    $(CTEST) --output-on-failure -j $(JOBS) -LE slow
 
 fuzz: deps
 	@bash .ci/install-deps --fuzz

@@ -244,19 +244,22 @@ static void formulas_match_known_values(void **state)
 {
     (void)state;
     /* [Witt], rank 2: 2, 1, 2, 3, 6, 9, 18, 30, 56, 99 (the classical table
-     * of dimensions of the free Lie algebra on two generators). */
-    static const slong w2[] = {2, 1, 2, 3, 6, 9, 18, 30, 56, 99};
-    /* [Witt], rank 3: 3, 3, 8, 18, 48, 116. */
-    static const slong w3[] = {3, 3, 8, 18, 48, 116};
+     * of dimensions of the free Lie algebra on two generators), then 186,
+     * 335, 630 (the numbers of binary Lyndon words of length 11..13,
+     * OEIS A001037; from memory). */
+    static const slong w2[] = {2, 1, 2, 3, 6, 9, 18, 30, 56, 99, 186, 335, 630};
+    /* [Witt], rank 3: 3, 3, 8, 18, 48, 116, then 312, 810 (ternary Lyndon
+     * words of length 7, 8, OEIS A027376; from memory). */
+    static const slong w3[] = {3, 3, 8, 18, 48, 116, 312, 810};
     /* [Labute], genus 2: 4, 5, 16, 45, 144. */
     static const slong l2[] = {4, 5, 16, 45, 144};
     fmpz_t v;
     fmpz_init(v);
-    for (ulong n = 1; n <= 10; n++) {
+    for (ulong n = 1; n <= 13; n++) {
         witt_rank(v, 2, n);
         assert_true(fmpz_equal_si(v, w2[n - 1]));
     }
-    for (ulong n = 1; n <= 6; n++) {
+    for (ulong n = 1; n <= 8; n++) {
         witt_rank(v, 3, n);
         assert_true(fmpz_equal_si(v, w3[n - 1]));
     }
@@ -890,6 +893,23 @@ static void witt_free_rank3_class8(void **state)
     nq_clear(Q);
 }
 
+/* Witt (1937) at class 13 of free(2): 1377 pc generators, the deepest
+ * target of the benchmarks.  Ranks 2, 1, 2, 3, 6, 9, 18, 30, 56, 99, 186,
+ * 335, 630 (formulas_match_known_values guards the formula itself).  Long
+ * (seconds in a release build, minutes under the sanitizers): it runs as
+ * `test_nq --slow`, the ctest test test_nq_slow with the label slow, which
+ * `make test` and `make asan` leave out and `make test-slow` runs. */
+static void witt_free_rank2_class13(void **state)
+{
+    (void)state;
+    nq_t Q;
+    nq_init(Q);
+    compute_quotient(Q, "<a, b>", 13);
+    check_free_layers(Q, 13, witt_rank, 2, "free group of rank 2 [Witt]");
+    assert_int_equal(Q->pcp->n, 1377);
+    nq_clear(Q);
+}
+
 /* Layer invariants as counts of 2, 4 and 8 (all layers are finite 2-groups
  * here): {n2, n4, n8} per layer. */
 static void check_two_group_layers(const char *text, slong c, const slong (*want)[3])
@@ -1063,8 +1083,14 @@ static void limit_refuses_before_the_work(void **state)
     pres_clear(p);
 }
 
-int main(void)
+int main(int argc, char **argv)
 {
+    if (argc > 1 && strcmp(argv[1], "--slow") == 0) {
+        const struct CMUnitTest slow[] = {
+            cmocka_unit_test(witt_free_rank2_class13),
+        };
+        return cmocka_run_group_tests(slow, NULL, NULL);
+    }
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(set_class_is_compute),
         cmocka_unit_test(witt_free_rank3_class8),
