@@ -1088,15 +1088,22 @@ static ns_status save_in_place(const char *target, const char *text, nserr_t err
 
 ns_status session_save(const session_t s, const char *path, nserr_t err)
 {
-    char *tmp, *text, *target;
-    struct stat old;
-    int fd, e = 0, exists;
-    size_t n;
-
     if (!has_text(s->group.text))
         return nserr_set(err, NS_ERR_INPUT, 0, 0, "the session has no group to save");
     if (s->cls < 1)
         return nserr_set(err, NS_ERR_INPUT, 0, 0, "the session has no class to save");
+    char *text = session_get_str(s);
+    ns_status st = session_save_text(text, path, err);
+    flint_free(text);
+    return st;
+}
+
+ns_status session_save_text(const char *text, const char *path, nserr_t err)
+{
+    char *tmp, *target;
+    struct stat old;
+    int fd, e = 0, exists;
+    size_t n;
 
     target = resolve_links(path, &e);
     if (target == NULL)
@@ -1108,10 +1115,8 @@ ns_status session_save(const session_t s, const char *path, nserr_t err)
         flint_free(target);
         return st;
     }
-    text = session_get_str(s);
     if (exists && old.st_nlink > 1) {
         ns_status st = save_in_place(target, text, err);
-        flint_free(text);
         flint_free(target);
         return st;
     }
@@ -1121,7 +1126,6 @@ ns_status session_save(const session_t s, const char *path, nserr_t err)
     if (fd < 0) {
         e = errno;
         flint_free(tmp);
-        flint_free(text);
         ns_status st = io_error(err, "cannot create a temporary file for", target, e);
         flint_free(target);
         return st;
@@ -1134,7 +1138,6 @@ ns_status session_save(const session_t s, const char *path, nserr_t err)
         unlink(tmp);
         flint_free(tmp);
         ns_status st = save_in_place(target, text, err);
-        flint_free(text);
         flint_free(target);
         return st;
     }
@@ -1146,7 +1149,6 @@ ns_status session_save(const session_t s, const char *path, nserr_t err)
     n = strlen(text);
     if (e == 0)
         e = write_all(fd, text, n);
-    flint_free(text);
     if (e == 0 && fsync(fd) != 0)
         e = errno;
     if (close(fd) != 0 && e == 0)

@@ -136,6 +136,14 @@ char *session_get_str(const session_t s);
  * (NS_ERR_INPUT). */
 ns_status session_save(const session_t s, const char *path, nserr_t err);
 
+/* Writes text (NUL-terminated) to path exactly as session_save writes a
+ * session: links followed, atomic through a temporary sibling, owner,
+ * group and mode kept, in place for a file with several hard links, and
+ * on failure the old file untouched and err naming the file and the
+ * system's reason.  For the other files the program writes (the
+ * explorer's exports); nothing checks that text is a session. */
+ns_status session_save_text(const char *text, const char *path, nserr_t err);
+
 /* Files that interrupted saves of path left next to the file it names
  * (after following symbolic links): "NAME.tmp-XXXXXX" (a new version,
  * possibly incomplete) and "NAME.old-XXXXXX" (the content before an

@@ -73,4 +73,82 @@ wait_for "saved $HOME/saved.nilstep"
 keys q
 wait_for "EXIT=0"
 
+# ---------------------------------------------------------------------------
+current="x exports the report and a layer's matrix (issue 9, item 15)"
+start 100 30
+wait_for "2.618033988 U"
+# an image changed and the class raised (an extended quotient): what is
+# exported is the session on screen, not the file it came from
+keys e C-u
+type_text "a^3 b"
+keys Enter
+wait_for "image of a applied"
+keys +
+wait_for "class 4   Hirsch length" 60
+for kind in t:txt j:json l:tex; do
+    keys x
+    wait_for "t text report"
+    keys "${kind%%:*}"
+    wait_for "file untitled.${kind#*:}"       # the name offered
+    keys C-u
+    type_text "r.${kind#*:}"
+    keys Enter
+    wait_for "wrote the " 30
+    wait_for "to $tmp/r.${kind#*:}"
+done
+# no silent overwrite: the question, and "n" leaves the file as it was
+cp "$tmp/r.txt" "$tmp/r.txt.before"
+echo "keep me" >"$tmp/keep.txt"
+keys x t C-u
+type_text "keep.txt"
+keys Enter
+wait_for "The file exists"
+keys n
+wait_for "not written: the file exists"
+[[ "$(cat "$tmp/keep.txt")" == "keep me" ]] || fail "keep.txt was overwritten without a yes"
+keys Enter
+wait_for "The file exists"
+keys y
+wait_for "wrote the text report to $tmp/keep.txt"
+cmp -s "$tmp/keep.txt" "$tmp/r.txt" || fail "y did not replace keep.txt with the report"
+# an error names the file and the reason, and keeps the prompt
+keys x j C-u
+type_text "no/such/dir/r.json"
+keys Enter
+wait_for "not written"
+wait_for "no/such/dir/r.json"
+screen | grep -q "No such file or" || fail "the reason is not given"
+keys Escape
+# the matrix of layer 1: a -> a^3 b, b -> a b abelianised, columns (3,1)
+# and (1,1) (by hand)
+keys g x m
+wait_for "file untitled-M1.txt"
+keys Enter
+wait_for "wrote matrix M1 to $tmp/untitled-M1.txt"
+got=$(grep -v '^#' "$tmp/untitled-M1.txt")
+[[ "$got" == $'3 1\n1 1' ]] || fail "matrix M1 reads '$got', not rows '3 1' and '1 1'"
+# the same layer's matrix from the layer detail, layer 2, against the JSON report
+keys j Enter
+wait_for "Matrix M2"
+keys x m Enter
+wait_for "wrote matrix M2"
+keys Escape
+keys w C-u
+type_text "s.nilstep"
+keys Enter
+wait_for "saved s.nilstep"
+for f in txt:text json:json tex:latex; do
+    "$NILSTEP_BINARY" report --format "${f#*:}" "$tmp/s.nilstep" >"$tmp/cli.${f%%:*}"
+    cmp -s "$tmp/cli.${f%%:*}" "$tmp/r.${f%%:*}" ||
+        fail "the exported ${f#*:} report differs from nilstep report of the saved session: $(diff "$tmp/cli.${f%%:*}" "$tmp/r.${f%%:*}" | head -5)"
+done
+/usr/bin/python3 - "$tmp/cli.json" "$tmp/untitled-M2.txt" <<'EOF2' || fail "matrix M2 differs from the JSON report's"
+import json, sys
+want = json.load(open(sys.argv[1]))["map"]["layers"][1]["matrix"]
+got = [[int(x) for x in l.split()] for l in open(sys.argv[2]) if not l.startswith("#")]
+sys.exit(0 if got == want else 1)
+EOF2
+keys q
+wait_for "EXIT=0"
+
 finish

@@ -643,6 +643,42 @@ static void save_should_replace_the_file_and_leave_no_temporary(void **state)
     session_clear(t);
 }
 
+/* session_save_text, the writer the explorer's exports share with
+ * session_save: any text, the same atomic replace, errors naming the file. */
+static void save_text_should_write_any_text_atomically(void **state)
+{
+    nserr_t err;
+    char *dir = make_temp_dir(), path[4200], *got;
+    struct stat st;
+    (void)state;
+
+    nserr_init(err);
+    snprintf(path, sizeof path, "%s/report.json", dir);
+    assert_int_equal(session_save_text("{\"not\": \"a session\"}\n", path, err), NS_OK);
+    got = read_file(path);
+    assert_string_equal(got, "{\"not\": \"a session\"}\n");
+    free(got);
+    assert_int_equal(stat(path, &st), 0);
+    assert_int_equal(st.st_mode & 0777, 0644);
+    /* replacing keeps the mode and leaves no temporary file */
+    assert_int_equal(chmod(path, 0640), 0);
+    assert_int_equal(session_save_text("second\n", path, err), NS_OK);
+    got = read_file(path);
+    assert_string_equal(got, "second\n");
+    free(got);
+    assert_int_equal(stat(path, &st), 0);
+    assert_int_equal(st.st_mode & 0777, 0640);
+    assert_int_equal(count_entries(dir), 1);
+    /* a missing directory: the message names the file and the reason */
+    snprintf(path, sizeof path, "%s/no/such/dir/m.txt", dir);
+    assert_int_equal(session_save_text("x\n", path, err), NS_ERR_IO);
+    assert_non_null(strstr(err->msg, path));
+    assert_non_null(strstr(err->msg, strerror(ENOENT)));
+    assert_int_equal(count_entries(dir), 1);
+    remove_tree(dir);
+    free(dir);
+}
+
 static void save_should_fail_cleanly_and_keep_the_old_file(void **state)
 {
     session_t s;
@@ -1053,6 +1089,7 @@ int main(void)
         cmocka_unit_test(save_should_work_for_the_longest_names),
         cmocka_unit_test(save_should_fail_cleanly_at_the_file_size_limit),
         cmocka_unit_test(leftovers_should_be_recognised),
+        cmocka_unit_test(save_text_should_write_any_text_atomically),
         cmocka_unit_test(kill_while_saving_should_leave_a_whole_file),
         cmocka_unit_test(failed_parse_should_leave_the_session_unchanged),
         cmocka_unit_test(get_str_should_keep_the_leading_comment_block),

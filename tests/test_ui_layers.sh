@@ -28,7 +28,7 @@ problems = []
 LAYERS = [
     # 0: tools that know nothing of the explorer's state
     {"lineedit", "numfmt", "plot", "paint", "viewmodel", "memlimit", "recovery", "defaults",
-     "filepath"},
+     "filepath", "export"},
     # 1: the explorer's state and what every screen shares
     {"app", "frame"},
     # 2: the screens and the prompt (sideways calls among them are allowed)

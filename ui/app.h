@@ -35,7 +35,8 @@ enum {
     ACT_SAVE = 16,  /* write the session to app->path */
     ACT_QUIT = 32,
     ACT_RESTORE = 64, /* take the recovery copy (app->recovered) */
-    ACT_DISCARD = 128 /* remove the recovery copy */
+    ACT_DISCARD = 128, /* remove the recovery copy */
+    ACT_EXPORT = 256   /* write export_kind to app->pending_path (export.h) */
 };
 
 typedef enum {
@@ -58,7 +59,10 @@ typedef enum {
     PROMPT_CONFIRM_QUIT, /* unsaved changes: y quits */
     PROMPT_CONFIRM_OPEN, /* unsaved changes: y goes on to PROMPT_OPEN */
     PROMPT_RECOVER,      /* a recovery copy exists: r restores, d discards */
-    PROMPT_ITERATE       /* an element for the iterates screen */
+    PROMPT_ITERATE,      /* an element for the iterates screen */
+    PROMPT_EXPORT_KIND,  /* x: which report or the matrix (t j l m) */
+    PROMPT_EXPORT,       /* the file to export to */
+    PROMPT_CONFIRM_OVERWRITE /* the export file exists: y replaces it */
 } prompt_kind;
 
 /* Keys: a Unicode character is its code point; a curses function key
@@ -132,6 +136,9 @@ struct explorer_app_struct {
     char edit_msg[600]; /* parse result of the text being typed */
     int edit_ok;        /* 1: it parses */
     int edit_caret;     /* 1-based column of the error in the text, 0 none */
+    int export_kind;    /* what x writes: EXPORT_* (export.h) */
+    long export_layer;  /* the layer of a matrix export (1-based) */
+    char *export_typed; /* owned: the export file name as typed */
     char **cands;       /* file prompts: the names Tab found (filepath.h), */
     size_t ncands;      /* listed above the prompt until the text changes */
 

@@ -21,7 +21,9 @@
 #include "frame.h"
 #include "screens.h"
 #include "defaults.h"
+#include "export.h"
 #include "filepath.h"
+#include "report.h"
 #include "paint.h"
 #include "memlimit.h"
 #include "recovery.h"
@@ -913,6 +915,56 @@ static void explorer_do_save(explorer_app *app)
     nserr_clear(err);
 }
 
+/* Writes what the export prompt chose (app->export_kind) to pending_path,
+ * atomically as a session is saved.  A report is report_get_str of the
+ * analysis shown with the title the session would be saved with: the
+ * same text as `nilstep report` of that saved session.  A failure keeps
+ * the prompt open with the typed name, the file and the reason. */
+static void explorer_do_export(explorer_app *app)
+{
+    char *path = app->pending_path;
+    app->pending_path = NULL;
+    if (path == NULL)
+        return;
+    session_t s;
+    session_init(s);
+    explorer_build_session(app, s);
+    const char *title = s->title.text;
+    char *text = NULL;
+    const char *what = export_kind_name(app->export_kind, app->export_layer);
+    if (app->export_kind == EXPORT_MATRIX) {
+        text = export_matrix_text(app->A, (slong)app->export_layer, title);
+    } else if (app->A->has_group && app->A->has_map) {
+        report_format f = app->export_kind == EXPORT_JSON    ? REPORT_JSON
+                          : app->export_kind == EXPORT_LATEX ? REPORT_LATEX
+                                                             : REPORT_TEXT;
+        char *r = report_get_str(app->A, f, title);
+        text = explorer_strdup(r);
+        flint_free(r);
+    }
+    if (text == NULL) {
+        app_status(app, 1, "not written: there is no %s to write (%s)", what,
+                   app->group_problem[0] ? app->group_problem : "the map is not well defined");
+    } else {
+        nserr_t err;
+        nserr_init(err);
+        if (session_save_text(text, path, err) != NS_OK) {
+            prompt_open(app, PROMPT_EXPORT, app->export_typed ? app->export_typed : path);
+            snprintf(app->edit_msg, sizeof app->edit_msg, "not written: %s", err->msg);
+            app->edit_ok = 0;
+        } else {
+            /* a relative name with the directory it went to */
+            char cwd[4096];
+            int rel = path[0] != '/' && getcwd(cwd, sizeof cwd) != NULL;
+            app_status(app, 0, "wrote %s to %s%s%s", what, rel ? cwd : "", rel ? "/" : "", path);
+        }
+        nserr_clear(err);
+    }
+    free(text);
+    free(path);
+    session_clear(s);
+}
+
 /* ---- key dispatch ------------------------------------------------------ */
 
 static const ui_keymap *explorer_keymap(const explorer_app *app)
@@ -1105,6 +1157,8 @@ static void explorer_loop(explorer_app *app)
         }
         if (flags & ACT_SAVE)
             explorer_do_save(app);
+        if (flags & ACT_EXPORT)
+            explorer_do_export(app);
         if (flags & (ACT_OPEN | ACT_GROUP | ACT_MAP | ACT_SAVE | ACT_RESTORE))
             flags |= ACT_REDRAW;
         explorer_note_change(app);
@@ -1150,6 +1204,7 @@ static void explorer_app_clear(explorer_app *app)
     free(app->group_text);
     free(app->pending_group);
     free(app->pending_path);
+    free(app->export_typed);
     free(app->retry_group);
 }
 

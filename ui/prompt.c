@@ -8,9 +8,11 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include "app.h"
+#include "export.h"
 #include "filepath.h"
 #include "frame.h"
 #include "screens.h"
@@ -31,13 +33,13 @@ static char *prompt_strdup(const char *s)
 static int prompt_is_text(prompt_kind k)
 {
     return k == PROMPT_IMAGE || k == PROMPT_GROUP || k == PROMPT_TITLE || k == PROMPT_SAVE_AS ||
-           k == PROMPT_OPEN || k == PROMPT_ITERATE;
+           k == PROMPT_OPEN || k == PROMPT_ITERATE || k == PROMPT_EXPORT;
 }
 
 /* Prompts that take a file name: "~" expands, Tab completes. */
 static int prompt_is_path(prompt_kind k)
 {
-    return k == PROMPT_SAVE_AS || k == PROMPT_OPEN;
+    return k == PROMPT_SAVE_AS || k == PROMPT_OPEN || k == PROMPT_EXPORT;
 }
 
 static void prompt_drop_cands(explorer_app *app)
@@ -154,11 +156,16 @@ void prompt_check(explorer_app *app)
         screen_iterate_check_word(app, text);
         break;
     case PROMPT_SAVE_AS:
+    case PROMPT_EXPORT:
     case PROMPT_OPEN: {
         /* an empty name is not an error yet, only not ready: Enter beeps */
         char *full = filepath_expand(text);
         if (text[0] == '\0')
             snprintf(app->edit_msg, sizeof app->edit_msg, "type a file name (Tab completes)");
+        else if (app->prompt == PROMPT_EXPORT)
+            snprintf(app->edit_msg, sizeof app->edit_msg, "Enter writes %s to %s, Esc cancels",
+                     export_kind_name(app->export_kind, app->export_layer),
+                     strcmp(full, text) ? full : "this file");
         else if (strcmp(full, text) != 0) /* say where "~" leads */
             snprintf(app->edit_msg, sizeof app->edit_msg, "Enter %s %s, Esc cancels",
                      app->prompt == PROMPT_OPEN ? "opens" : "saves to", full);
@@ -271,6 +278,10 @@ static void prompt_label(explorer_app *app, char *label, size_t n, char *prefix,
         snprintf(label, n, "Open a session file");
         snprintf(prefix, pn, "file ");
         break;
+    case PROMPT_EXPORT:
+        snprintf(label, n, "Write %s to", export_kind_name(app->export_kind, app->export_layer));
+        snprintf(prefix, pn, "file ");
+        break;
     case PROMPT_ITERATE:
         snprintf(label, n, "Element to iterate (a word in the generators)");
         snprintf(prefix, pn, "w = ");
@@ -312,6 +323,38 @@ void prompt_draw(explorer_app *app)
                    app->prompt == PROMPT_CONFIRM_QUIT
                        ? "Quit without saving? y quits; any other key stays (then s saves)."
                        : "Open another file without saving? y goes on; any other key stays.");
+        return;
+    }
+    if (app->prompt == PROMPT_EXPORT_KIND || app->prompt == PROMPT_CONFIRM_OVERWRITE) {
+        paint_fill(LINES - 1, 0, COLS, ROLE_NORMAL);
+        paint_fill(y0 + 1, 0, COLS, ROLE_BAR);
+        if (app->prompt == PROMPT_CONFIRM_OVERWRITE) {
+            int hx = paint_text(LINES - 1, 0, COLS, ROLE_KEY, "y");
+            hx += paint_text(LINES - 1, hx, COLS - hx, ROLE_NORMAL, " replace it  ");
+            hx += paint_text(LINES - 1, hx, COLS - hx, ROLE_KEY, "other keys");
+            paint_text(LINES - 1, hx, COLS - hx, ROLE_NORMAL, " back to the name");
+            paint_text(y0 + 1, 1, COLS - 1, ROLE_BAR, "The file exists:");
+            prompt_paint_tail(app, y0 + 2, 1, COLS - 2, ROLE_MARKER,
+                              app->pending_path ? app->pending_path : "");
+            paint_text(y0 + 3, 1, COLS - 1, ROLE_NORMAL,
+                       "y replaces it; any other key goes back to the file name.");
+            return;
+        }
+        int hx = paint_text(LINES - 1, 0, COLS, ROLE_KEY, "t j l m");
+        hx += paint_text(LINES - 1, hx, COLS - hx, ROLE_NORMAL, " choose  ");
+        hx += paint_text(LINES - 1, hx, COLS - hx, ROLE_KEY, "other keys");
+        paint_text(LINES - 1, hx, COLS - hx, ROLE_NORMAL, " cancel");
+        paint_text(y0 + 1, 1, COLS - 1, ROLE_BAR,
+                   "Export to a file: the report as nilstep report writes it, or a matrix");
+        paint_text(y0 + 2, 1, COLS - 1, ROLE_NORMAL,
+                   "t text report   j JSON report   l LaTeX report");
+        if (app->A->has_map && app->A->valid)
+            paint_textf(y0 + 3, 1, COLS - 1, ROLE_NORMAL,
+                        "m matrix M%ld of the selected layer %ld (plain rows of integers)",
+                        app->export_layer, app->export_layer);
+        else
+            paint_text(y0 + 3, 1, COLS - 1, ROLE_DIM,
+                       "(no matrix: the map is not well defined on this quotient)");
         return;
     }
     app_draw_hints(app, prompt_keys());
@@ -356,11 +399,24 @@ void prompt_draw(explorer_app *app)
         if (cx >= px && cx < COLS)
             paint_text(y0 + 2, (int)cx, 1, ROLE_MARKER, "^");
     }
-    if (app->edit_ok) {
-        paint_text(y0 + 3, 1, COLS - 1, ROLE_GOOD, app->edit_msg);
+    /* the message; one that does not fit takes the row above too (no
+     * caret is drawn there then), so that a file name and a reason show */
+    char msg[sizeof app->edit_msg + 8];
+    snprintf(msg, sizeof msg, "%s%s", app->edit_ok ? "" : "error: ",
+             app->edit_ok ? app->edit_msg : app_error_text(app->edit_msg));
+    paint_role mrole = app->edit_ok ? ROLE_GOOD : ROLE_ERROR;
+    size_t mw = (size_t)(COLS - 2), mn = lineedit_utf8_ncols(msg);
+    if (mn > mw && app->edit_caret == 0) {
+        size_t cut = lineedit_utf8_offset(msg, mw), b = cut;
+        while (b > 0 && msg[b] != ' ')
+            b--;
+        if (b > 0)
+            cut = b;
+        paint_fill(y0 + 2, 0, COLS, ROLE_NORMAL);
+        paint_textf(y0 + 2, 1, (int)mw, mrole, "%.*s", (int)cut, msg);
+        paint_text(y0 + 3, 1, (int)mw, mrole, msg + cut + (msg[cut] == ' '));
     } else {
-        int w = paint_text(y0 + 3, 1, COLS - 1, ROLE_ERROR, "error: ");
-        paint_text(y0 + 3, 1 + w, COLS - 1 - w, ROLE_ERROR, app_error_text(app->edit_msg));
+        paint_text(y0 + 3, 1, (int)mw, mrole, msg);
     }
     curs_set(1);
     move(y0 + 1, px + (int)(cur - app->edit_scroll));
@@ -462,6 +518,41 @@ static int act_cancel(explorer_app *app)
 static int prompt_apply_kind(explorer_app *app, prompt_kind kind, const char *text,
                              const char *path);
 
+int prompt_act_export(explorer_app *app)
+{
+    const analysis_struct *A = app->A;
+    if (!A->has_group || !A->has_map) {
+        app_status(app, 1, "nothing to export: %s",
+                   app->group_problem[0] ? app->group_problem : "no map analysed");
+        return ACT_REDRAW;
+    }
+    app->export_layer = (long)app->vm->sel_layer + 1;
+    prompt_open(app, PROMPT_EXPORT_KIND, "");
+    return ACT_REDRAW;
+}
+
+/* Enter on the export file name: asks before replacing a file. */
+static int prompt_export_to(explorer_app *app, const char *text, const char *path)
+{
+    free(app->export_typed);
+    app->export_typed = prompt_strdup(text);
+    free(app->pending_path);
+    app->pending_path = prompt_strdup(path);
+    struct stat st;
+    if (stat(path, &st) == 0) {
+        if (!S_ISREG(st.st_mode)) {
+            prompt_open(app, PROMPT_EXPORT, text);
+            snprintf(app->edit_msg, sizeof app->edit_msg,
+                     "not written: '%s' is not a regular file", path);
+            app->edit_ok = 0;
+            return ACT_REDRAW;
+        }
+        app->prompt = PROMPT_CONFIRM_OVERWRITE;
+        return ACT_REDRAW;
+    }
+    return ACT_EXPORT | ACT_REDRAW;
+}
+
 static int act_apply(explorer_app *app)
 {
     const char *text = lineedit_get_text(app->edit);
@@ -521,6 +612,8 @@ static int prompt_apply_kind(explorer_app *app, prompt_kind kind, const char *te
         free(app->pending_path);
         app->pending_path = prompt_strdup(path);
         return ACT_SAVE | ACT_REDRAW;
+    case PROMPT_EXPORT:
+        return prompt_export_to(app, text, path);
     case PROMPT_ITERATE:
         screen_iterate_set_word(app, text);
         return ACT_REDRAW;
@@ -610,6 +703,32 @@ int prompt_key(explorer_app *app, int key)
         if (kind == PROMPT_CONFIRM_QUIT)
             return ACT_QUIT;
         prompt_open(app, PROMPT_OPEN, "");
+        return ACT_REDRAW;
+    }
+    if (app->prompt == PROMPT_EXPORT_KIND) {
+        app->prompt = PROMPT_NONE;
+        int k = key >= 'A' && key <= 'Z' ? key - 'A' + 'a' : key;
+        if (k == EXPORT_MATRIX && !(app->A->has_map && app->A->valid)) {
+            app_status(app, 1, "no matrix: the map is not well defined on this quotient");
+            return ACT_REDRAW;
+        }
+        if (k != EXPORT_TEXT && k != EXPORT_JSON && k != EXPORT_LATEX && k != EXPORT_MATRIX) {
+            app_status(app, 0, "cancelled: nothing exported");
+            return ACT_REDRAW;
+        }
+        app->export_kind = k;
+        char *name = export_suggest_name(app->path, k, app->export_layer);
+        prompt_open(app, PROMPT_EXPORT, name);
+        free(name);
+        return ACT_REDRAW;
+    }
+    if (app->prompt == PROMPT_CONFIRM_OVERWRITE) {
+        if (key == 'y' || key == 'Y') {
+            app->prompt = PROMPT_NONE;
+            return ACT_EXPORT | ACT_REDRAW;
+        }
+        prompt_open(app, PROMPT_EXPORT, app->export_typed ? app->export_typed : "");
+        snprintf(app->edit_msg, sizeof app->edit_msg, "not written: the file exists (type another name, or Enter then y replaces it)");
         return ACT_REDRAW;
     }
     if (!prompt_is_text(app->prompt))

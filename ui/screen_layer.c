@@ -294,6 +294,7 @@ static const ui_binding layer_bindings[] = {
     {'<', act_scroll_left, "< / >", "scroll wide lines (big matrices) left / right", "</> wide"},
     {'>', act_scroll_right, NULL, NULL, NULL},
     {'?', act_help, "?", "this help", "? help"},
+    {'x', prompt_act_export, "x", "export this layer's matrix (or the report) to a file", NULL},
 };
 
 static const ui_keymap layer_keymap = {"Layer detail", layer_bindings,

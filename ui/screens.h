@@ -67,6 +67,9 @@ int prompt_key(explorer_app *app, int key);
 void prompt_open(explorer_app *app, prompt_kind kind, const char *text);
 /* Parses the text being typed and sets edit_ok / edit_msg / edit_caret. */
 void prompt_check(explorer_app *app);
+/* The export key (x) of the main screen and the layer detail: asks what
+ * to write (a report or the selected layer's matrix), then where. */
+int prompt_act_export(explorer_app *app);
 /* The line editor's own keys, for the help screen. */
 const ui_keymap *prompt_keys(void);
 
