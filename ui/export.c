@@ -35,7 +35,7 @@ static void export_comment(strbuf_t b, const char *label, const char *text)
     strbuf_puts(b, "\n");
 }
 
-static void export_rows(strbuf_t b, const fmpz_mat_t M, const char *prefix)
+static void export_rows(strbuf_t b, const fmpz_mat_struct *M, const char *prefix)
 {
     for (slong r = 0; r < fmpz_mat_nrows(M); r++) {
         strbuf_puts(b, prefix);
@@ -50,31 +50,35 @@ static void export_rows(strbuf_t b, const fmpz_mat_t M, const char *prefix)
 
 char *export_matrix_text(const analysis_struct *A, slong j, const char *title)
 {
-    if (!A->has_group || !A->has_map || !A->valid || j < 1 || j > A->nlayers)
+    analysis_view_t V;
+    analysis_get_view(V, A);
+    if (!V->has_group || !V->has_map || !V->valid || j < 1 || j > V->nlayers)
         return NULL;
-    const analysis_layer_struct *L = A->layers + j - 1;
+    analysis_layer_view_t L;
+    analysis_get_layer_view(L, A, j - 1);
     strbuf_t b;
     strbuf_init(b);
     strbuf_printf(b, "# nilstep: matrix M%ld of the map on layer %ld (gamma_%ld/gamma_%ld = %s)\n",
                   (long)j, (long)j, (long)j, (long)(j + 1), L->group_str ? L->group_str : "?");
     if (title)
         export_comment(b, "title ", title);
-    char *pres = pres_get_str(A->nq->pres);
-    strbuf_printf(b, "# group %s, class %ld\n", pres, (long)A->class_requested);
+    char *pres = pres_get_str(V->pres);
+    strbuf_printf(b, "# group %s, class %ld\n", pres, (long)V->class_requested);
     flint_free(pres);
-    export_comment(b, "map   ", A->map_str);
+    export_comment(b, "map   ", V->map_str);
     strbuf_puts(b, "# basis of the free part:");
-    if (L->layer->free_rank == 0)
+    if (L->free_rank == 0)
         strbuf_puts(b, " none (the zero space: no rows follow)");
-    for (slong k = 0; k < L->layer->free_rank; k++)
-        strbuf_printf(b, "%s e%ld = %s", k ? "," : "", (long)(k + 1), L->layer->basis[k]);
+    for (slong k = 0; k < L->free_rank; k++)
+        strbuf_printf(b, "%s e%ld = %s", k ? "," : "", (long)(k + 1), L->basis[k]);
     strbuf_puts(b, "\n# column k holds the coordinates of the image of e_k\n");
-    if (L->layer->ntors > 0) {
+    if (L->ntors > 0 && L->action) {
         strbuf_printf(b, "# the action on the layer's %ld pc generators, torsion included:\n",
-                      (long)L->layer->count);
+                      (long)L->count);
         export_rows(b, L->action, "#   ");
     }
-    export_rows(b, L->matrix, "");
+    if (L->matrix)
+        export_rows(b, L->matrix, "");
     return export_take(b);
 }
 

@@ -6,7 +6,7 @@
 #ifndef NILSTEP_UI_EXPORT_H
 #define NILSTEP_UI_EXPORT_H
 
-#include "analysis.h"
+#include "analysis_view.h"
 
 /* The kinds of export, as the keys that choose them at the prompt. */
 enum { EXPORT_TEXT = 't', EXPORT_JSON = 'j', EXPORT_LATEX = 'l', EXPORT_MATRIX = 'm' };

@@ -348,7 +348,9 @@ void prompt_draw(explorer_app *app)
                    "Export to a file: the report as nilstep report writes it, or a matrix");
         paint_text(y0 + 2, 1, COLS - 1, ROLE_NORMAL,
                    "t text report   j JSON report   l LaTeX report");
-        if (app->A->has_map && app->A->valid)
+        analysis_view_t V;
+        analysis_get_view(V, app->A);
+        if (V->has_map && V->valid)
             paint_textf(y0 + 3, 1, COLS - 1, ROLE_NORMAL,
                         "m matrix M%ld of the selected layer %ld (plain rows of integers)",
                         app->export_layer, app->export_layer);
@@ -520,7 +522,8 @@ static int prompt_apply_kind(explorer_app *app, prompt_kind kind, const char *te
 
 int prompt_act_export(explorer_app *app)
 {
-    const analysis_struct *A = app->A;
+    analysis_view_t A;
+    analysis_get_view(A, app->A);
     if (!A->has_group || !A->has_map) {
         app_status(app, 1, "nothing to export: %s",
                    app->group_problem[0] ? app->group_problem : "no map analysed");
@@ -708,7 +711,9 @@ int prompt_key(explorer_app *app, int key)
     if (app->prompt == PROMPT_EXPORT_KIND) {
         app->prompt = PROMPT_NONE;
         int k = key >= 'A' && key <= 'Z' ? key - 'A' + 'a' : key;
-        if (k == EXPORT_MATRIX && !(app->A->has_map && app->A->valid)) {
+        analysis_view_t V;
+        analysis_get_view(V, app->A);
+        if (k == EXPORT_MATRIX && !(V->has_map && V->valid)) {
             app_status(app, 1, "no matrix: the map is not well defined on this quotient");
             return ACT_REDRAW;
         }
