@@ -202,7 +202,12 @@ keys '?'
 wait_for "undo the last change of an image"
 keys Space
 wait_for "Line editor"
-keys j j j j                       # the line editor's keys run past one page
+# the line editor's keys run past one page: scroll until Ctrl-U shows
+for ((i = 0; i < 20; i++)); do
+    screen | grep -qF "Ctrl-U" && break
+    keys j
+    sleep 0.1
+done
 wait_for "Ctrl-U"
 keys Escape
 wait_for "Images of the generators"
