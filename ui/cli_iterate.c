@@ -501,7 +501,7 @@ int cli_iterate(int argc, char **argv)
             goto done;
         }
     }
-    st = iterate_map_set(M, Q, A->endo, pp, err);
+    st = iterate_map_set(M, Q, V->endo, pp, err);
     if (st != NS_OK) {
         status = iter_error(err, where_map);
         goto done;
