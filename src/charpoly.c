@@ -2,11 +2,13 @@
  * and the reason this module exists are stated in charpoly.h. */
 #include <errno.h>
 #include <pthread.h>
+#include <stdatomic.h>
 #include <time.h>
 #include <unistd.h>
 
 #include <flint/nmod_mat.h>
 #include <flint/nmod_poly.h>
+#include <flint/nmod_vec.h>
 #include <flint/ulong_extras.h>
 #include <arb.h>
 
@@ -107,19 +109,141 @@ typedef struct {
     const mp_limb_t *primes;
     nmod_poly_struct *res; /* one per prime, initialised by the caller */
     slong nprimes, next, done;
-    int stop;
+    atomic_int stop;       /* read by the workers inside a prime, unlocked */
     pthread_mutex_t lock;
     pthread_cond_t cond;
 } job_struct;
 
-static void charpoly_mod(nmod_poly_t res, const fmpz_mat_t M, mp_limb_t p)
+/* Asked about every CHARPOLY_CHECK_WORK element operations inside one
+ * prime; nonzero stops the prime. */
+typedef int (*check_fn)(void *ctx);
+
+/* res := det(xI - A) for A over Z/pZ, p prime; A is overwritten.  The
+ * Hessenberg method (H. Cohen, A Course in Computational Algebraic Number
+ * Theory, GTM 138, Springer 1993, section 2.2.4): A is brought to upper
+ * Hessenberg form H by Gaussian similarity transforms, column by column,
+ * then p_m = det(xI - H_m) of the leading m x m blocks follows from
+ *   p_m = (x - h_mm) p_(m-1) - sum_(i<m) h_im (h_(i+1,i) ... h_(m,m-1)) p_(i-1).
+ * Ours rather than nmod_mat_charpoly because that call cannot be stopped
+ * (a 1344-dimensional layer takes close to a minute per prime there; this
+ * takes about a third of the time, bench_charpoly) — the arithmetic is
+ * FLINT's vector arithmetic.  Returns 1 when check asked to stop. */
+static int charpoly_mod_hessenberg(nmod_poly_t res, nmod_mat_t A, check_fn check, void *ctx)
+{
+    slong n = A->r, work = 0;
+    nmod_t mod = A->mod;
+    mp_limb_t **a = A->rows;
+    mp_ptr u = _nmod_vec_init(n + 1);
+    mp_ptr P;
+    int stopped = 0;
+
+#define CHARPOLY_CHECK_WORK (WORD(1) << 20)
+#define CHECK_AFTER(w)                                                       \
+    do {                                                                     \
+        work += (w);                                                         \
+        if (work >= CHARPOLY_CHECK_WORK) {                                   \
+            work = 0;                                                        \
+            if (check && check(ctx)) {                                       \
+                stopped = 1;                                                 \
+                goto done;                                                   \
+            }                                                                \
+        }                                                                    \
+    } while (0)
+
+    P = NULL;
+    for (slong j = 0; j + 2 < n; j++) {
+        slong i = j + 1;
+        CHECK_AFTER(n * (n - j) + (n - j) * (n - j));
+        while (i < n && a[i][j] == 0)
+            i++;
+        if (i == n)
+            continue; /* column j is already in Hessenberg form */
+        if (i != j + 1) { /* swap i and j + 1: rows, then columns */
+            mp_ptr t = a[i];
+            a[i] = a[j + 1];
+            a[j + 1] = t;
+            for (slong r = 0; r < n; r++) {
+                mp_limb_t x = a[r][i];
+                a[r][i] = a[r][j + 1];
+                a[r][j + 1] = x;
+            }
+        }
+        /* rows i -= u_i row j+1 clear column j below the subdiagonal;
+           then column j+1 += sum u_i column i completes the similarity
+           (entries left of column j are zero in every row involved) */
+        mp_limb_t inv = n_invmod(a[j + 1][j], mod.n);
+        int any = 0;
+        for (i = j + 2; i < n; i++) {
+            u[i] = 0;
+            if (a[i][j] == 0)
+                continue;
+            u[i] = n_mulmod2_preinv(a[i][j], inv, mod.n, mod.ninv);
+            _nmod_vec_scalar_addmul_nmod(a[i] + j, a[j + 1] + j, n - j, nmod_neg(u[i], mod), mod);
+            any = 1;
+        }
+        if (!any)
+            continue;
+        int limbs = _nmod_vec_dot_bound_limbs(n - j - 2, mod);
+        for (slong r = 0; r < n; r++) {
+            mp_limb_t s = _nmod_vec_dot(a[r] + j + 2, u + j + 2, n - j - 2, mod, limbs);
+            a[r][j + 1] = nmod_add(a[r][j + 1], s, mod);
+        }
+    }
+
+    /* p_m (degree m, m + 1 coefficients) at P + m (m + 1) / 2 */
+    P = _nmod_vec_init((n + 1) * (n + 2) / 2);
+#define POLY(m) (P + (m) * ((m) + 1) / 2)
+    POLY(0)[0] = 1;
+    for (slong m = 1; m <= n; m++) {
+        mp_ptr q = POLY(m), prev = POLY(m - 1);
+        mp_limb_t t = 1;
+        CHECK_AFTER(m * m / 2 + 1);
+        q[0] = 0;
+        for (slong k = 0; k < m; k++)
+            q[k + 1] = prev[k];
+        _nmod_vec_scalar_addmul_nmod(q, prev, m, nmod_neg(a[m - 1][m - 1], mod), mod);
+        for (slong i = m - 1; i >= 1 && t != 0; i--) {
+            t = n_mulmod2_preinv(t, a[i][i - 1], mod.n, mod.ninv);
+            mp_limb_t c = n_mulmod2_preinv(a[i - 1][m - 1], t, mod.n, mod.ninv);
+            if (c != 0)
+                _nmod_vec_scalar_addmul_nmod(q, POLY(i - 1), i, nmod_neg(c, mod), mod);
+        }
+    }
+    nmod_poly_fit_length(res, n + 1);
+    _nmod_vec_set(res->coeffs, POLY(n), n + 1);
+    res->length = n + 1;
+    _nmod_poly_normalise(res);
+#undef POLY
+#undef CHECK_AFTER
+done:
+    if (P != NULL)
+        _nmod_vec_clear(P);
+    _nmod_vec_clear(u);
+    return stopped;
+}
+
+/* res := det(xI - M) mod p; 1 when check stopped it (res then unset). */
+static int charpoly_mod(nmod_poly_t res, const fmpz_mat_t M, mp_limb_t p, check_fn check,
+                        void *ctx)
 {
     nmod_mat_t Mp;
     slong d = fmpz_mat_nrows(M);
     nmod_mat_init(Mp, d, d, p);
     fmpz_mat_get_nmod_mat(Mp, M);
-    nmod_mat_charpoly(res, Mp);
+    int stopped = charpoly_mod_hessenberg(res, Mp, check, ctx);
     nmod_mat_clear(Mp);
+    return stopped;
+}
+
+static int check_job_stop(void *ctx)
+{
+    job_struct *J = ctx;
+    return atomic_load_explicit(&J->stop, memory_order_relaxed) != 0;
+}
+
+static int check_progress(void *ctx)
+{
+    return ns_progress_report(ctx, NULL, -1.0);
 }
 
 static void *worker(void *arg)
@@ -131,7 +255,8 @@ static void *worker(void *arg)
         pthread_mutex_unlock(&J->lock);
         if (i < 0)
             break;
-        charpoly_mod(J->res + i, J->M, J->primes[i]);
+        if (charpoly_mod(J->res + i, J->M, J->primes[i], check_job_stop, J))
+            break;
         pthread_mutex_lock(&J->lock);
         J->done++;
         pthread_cond_signal(&J->cond);
@@ -231,8 +356,9 @@ ns_status charpoly_compute(fmpz_poly_t cp, const fmpz_mat_t M, slong threads,
         ;
     else if (threads <= 1) {
         for (slong i = 0; i < J.nprimes && !cancelled; i++) {
-            charpoly_mod(J.res + i, M, primes[i]);
-            if (i + 1 < J.nprimes)
+            cancelled = charpoly_mod(J.res + i, M, primes[i], progress ? check_progress : NULL,
+                                     (void *)progress);
+            if (!cancelled && i + 1 < J.nprimes)
                 cancelled = ns_progress_report(progress, NULL, -1.0);
         }
     } else {
@@ -248,11 +374,16 @@ ns_status charpoly_compute(fmpz_poly_t cp, const fmpz_mat_t M, slong threads,
         fmpz_t m;
         fmpz_init(m);
         fmpz_one(m);
-        for (slong i = 0; i < J.nprimes; i++) {
+        for (slong i = 0; i < J.nprimes && !cancelled; i++) {
             fmpz_poly_CRT_ui(cp, cp, m, J.res + i, 1);
             fmpz_mul_ui(m, m, primes[i]);
+            /* hundreds of primes of a large layer add up here too */
+            if ((i & 7) == 7)
+                cancelled = ns_progress_report(progress, NULL, -1.0);
         }
         fmpz_clear(m);
+        if (cancelled)
+            fmpz_poly_zero(cp);
     }
     for (slong i = 0; i < J.nprimes; i++)
         nmod_poly_clear(J.res + i);

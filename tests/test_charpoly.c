@@ -27,11 +27,12 @@ static int setup(void **state)
 
 /* A random d x d matrix: dense with small or large entries, sparse, or with
  * a few heavy rows, so that each of the three bounds is sometimes the
- * least. */
+ * least; or nilpotent, of low rank, or a permutation matrix, where the
+ * reduction to Hessenberg form meets zero pivots and split blocks. */
 static void random_matrix(fmpz_mat_t M)
 {
     slong d = fmpz_mat_nrows(M);
-    long shape = rng_range(0, 3);
+    long shape = rng_range(0, 6);
     fmpz_mat_zero(M);
     for (slong i = 0; i < d; i++)
         for (slong j = 0; j < d; j++) {
@@ -47,10 +48,34 @@ static void random_matrix(fmpz_mat_t M)
                 if (rng_range(0, 9) == 0)
                     fmpz_set_si(x, rng_range(-50, 50));
                 break;
-            default:
+            case 3:
                 fmpz_set_si(x, i % 5 == 0 ? rng_range(-100000, 100000) : rng_range(-1, 1));
+                break;
+            case 4: /* strictly upper triangular: charpoly x^d */
+                if (j > i && rng_range(0, 2) == 0)
+                    fmpz_set_si(x, rng_range(-9, 9));
+                break;
+            default: /* rows from a few random ones (rank <= 3) */
+                if (i < 3 || d <= 3)
+                    fmpz_set_si(x, rng_range(-5, 5));
+                else
+                    fmpz_set(x, fmpz_mat_entry(M, i % 3, j));
             }
         }
+    if (shape == 6) { /* a permutation matrix, rows in random order */
+        fmpz_mat_zero(M);
+        slong *perm = flint_malloc(sizeof(slong) * (d + 1));
+        for (slong i = 0; i < d; i++)
+            perm[i] = i;
+        for (slong i = d - 1; i > 0; i--) {
+            slong k = rng_range(0, i), t = perm[i];
+            perm[i] = perm[k];
+            perm[k] = t;
+        }
+        for (slong i = 0; i < d; i++)
+            fmpz_one(fmpz_mat_entry(M, i, perm[i]));
+        flint_free(perm);
+    }
     if (d > 0 && rng_range(0, 4) == 0) { /* a huge entry: multiword coefficients */
         fmpz_set_ui(fmpz_mat_entry(M, 0, d - 1), 1);
         fmpz_mul_2exp(fmpz_mat_entry(M, 0, d - 1), fmpz_mat_entry(M, 0, d - 1), 200);
@@ -133,6 +158,55 @@ static void cancel_stops_with_cancelled(void **state)
     }
     fmpz_mat_clear(M);
     fmpz_poly_clear(a);
+}
+
+static int count_polls(void *ctx, const char *stage, double fraction)
+{
+    (void)stage;
+    (void)fraction;
+    ++*(long *)ctx;
+    return 0;
+}
+
+static int stop_at_third(void *ctx, const char *stage, double fraction)
+{
+    (void)stage;
+    (void)fraction;
+    return ++*(long *)ctx >= 3;
+}
+
+/* One prime of a large layer once took close to a minute without a poll
+ * (nmod_mat_charpoly cannot be stopped): the hook is now also asked inside
+ * each prime, so there are many more polls than primes, and a stop asked
+ * there is obeyed. */
+static void polls_inside_each_prime(void **state)
+{
+    (void)state;
+    fmpz_mat_t M;
+    fmpz_poly_t a, b;
+    nserr_t err;
+    long calls = 0;
+    ns_progress_t count = {count_polls, &calls}, stop = {stop_at_third, &calls};
+    fmpz_mat_init(M, 200, 200);
+    fmpz_poly_init(a);
+    fmpz_poly_init(b);
+    nserr_init(err);
+    for (slong i = 0; i < 200; i++)
+        for (slong j = 0; j < 200; j++)
+            fmpz_set_si(fmpz_mat_entry(M, i, j), rng_range(-1, 1));
+    slong primes = charpoly_num_primes(M);
+    assert_int_equal(charpoly_compute(a, M, 1, &count, err), NS_OK);
+    if (calls <= 2 * primes)
+        fail_msg("%ld polls for %ld primes: none inside a prime", calls, (long)primes);
+    fmpz_mat_charpoly(b, M);
+    assert_true(fmpz_poly_equal(a, b));
+    calls = 0;
+    assert_int_equal(charpoly_compute(a, M, 1, &stop, err), NS_ERR_CANCELLED);
+    assert_int_equal(calls, 3);
+    assert_true(fmpz_poly_is_zero(a));
+    fmpz_mat_clear(M);
+    fmpz_poly_clear(a);
+    fmpz_poly_clear(b);
 }
 
 static void non_square_is_an_input_error(void **state)
@@ -263,6 +337,7 @@ int main(void)
         cmocka_unit_test(agrees_with_flint_on_random_matrices),
         cmocka_unit_test(bound_is_sound_and_near_tight_for_the_identity),
         cmocka_unit_test(cancel_stops_with_cancelled),
+        cmocka_unit_test(polls_inside_each_prime),
         cmocka_unit_test(non_square_is_an_input_error),
         cmocka_unit_test(witt_rank_matches_the_formula),
         cmocka_unit_test(free_lie_route_agrees_with_the_layer_matrices),
