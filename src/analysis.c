@@ -223,6 +223,7 @@ static ns_status finish_group(analysis_t A, slong c, ns_status st, const ns_prog
     if (ns_progress_report(progress, "layers", -1.0))
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     ns_status limit = st;
+    int cancelled = 0;
     if (st == NS_ERR_LIMIT)
         c = A->nq->class_reached;
     A->has_group = 1;
@@ -234,6 +235,11 @@ static ns_status finish_group(analysis_t A, slong c, ns_status st, const ns_prog
     A->layers_torsion_free = 1;
     for (slong j = 1; j <= c; j++) {
         analysis_layer_struct *L = A->layers + j - 1;
+        /* a poll per layer (coordinates of an 810-dimensional layer take a
+           while); a stop is obeyed after the loop, whose layers clear_group
+           needs whole */
+        if (ns_progress_report(progress, NULL, -1.0))
+            cancelled = 1;
         fmpz_mat_init(L->matrix, 0, 0);
         fmpz_mat_init(L->action, 0, 0);
         fmpz_init(L->det);
@@ -252,6 +258,10 @@ static ns_status finish_group(analysis_t A, slong c, ns_status st, const ns_prog
         if (L->layer->ntors)
             A->layers_torsion_free = 0;
         L->group_str = group_string(L->layer->free_rank, L->layer->torsion, L->layer->ntors);
+    }
+    if (cancelled) {
+        clear_group(A);
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     }
     if (!A->layers_torsion_free) {
         slong cr = A->nq->class_reached;
@@ -391,6 +401,25 @@ static int free_group_layer(const analysis_t A, slong j)
            && fmpz_mat_nrows(M) == charpoly_witt_rank(r, j);
 }
 
+/* The spectrum's own stages ("factorisation", ...) reach the caller's hook
+ * as "spectra: layer j of n (factorisation)" at the layer's fraction. */
+typedef struct {
+    const ns_progress_t *outer;
+    const char *prefix;
+    double fraction;
+} layer_progress;
+
+static int layer_progress_fn(void *ctx, const char *stage, double f)
+{
+    layer_progress *p = ctx;
+    char buf[160];
+    (void)f;
+    if (stage == NULL)
+        return ns_progress_report(p->outer, NULL, -1.0);
+    snprintf(buf, sizeof buf, "%s (%s)", p->prefix, stage);
+    return ns_progress_report(p->outer, buf, p->fraction);
+}
+
 /* Matrices and spectra of every layer (valid map). */
 static ns_status analyse_layers(analysis_t A, const ns_progress_t *progress, nserr_t err)
 {
@@ -400,8 +429,16 @@ static ns_status analyse_layers(analysis_t A, const ns_progress_t *progress, nse
     nserr_init(e2);
     for (slong j = 1; j <= A->nlayers && st == NS_OK; j++) {
         analysis_layer_struct *L = A->layers + j - 1;
+        char stage[64];
+        snprintf(stage, sizeof stage, "spectra: layer %ld of %ld", (long)j, (long)A->nlayers);
+        layer_progress lp = {progress, stage, (double)(j - 1) / (double)A->nlayers};
+        ns_progress_t hook = {layer_progress_fn, &lp};
         if (j <= c) {
             slong cnt = L->layer->count;
+            if (progress && ns_progress_report(&hook, "matrix", -1.0)) {
+                st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+                break;
+            }
             endo_layer_matrices(L->action, L->matrix, A->endo, L->layer);
             /* show the action by canonical representatives modulo the
              * layer's relations, so that torsion entries stay small */
@@ -414,8 +451,6 @@ static ns_status analyse_layers(analysis_t A, const ns_progress_t *progress, nse
             }
             _fmpz_vec_clear(v, FLINT_MAX(cnt, 1));
         }
-        char stage[64];
-        snprintf(stage, sizeof stage, "spectra: layer %ld of %ld", (long)j, (long)A->nlayers);
         if (progress && ns_progress_report(progress, stage, (double)(j - 1) / (double)A->nlayers)) {
             st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
             break;
@@ -424,14 +459,18 @@ static ns_status analyse_layers(analysis_t A, const ns_progress_t *progress, nse
             /* a free group: Brandt's formula from layer 1 (charpoly.h) */
             fmpz_poly_t cp;
             fmpz_poly_init(cp);
-            st = charpoly_free_lie(cp, A->layers[0].matrix, j, progress, e2);
+            st = charpoly_free_lie(cp, A->layers[0].matrix, j, progress ? &hook : NULL, e2);
             if (st == NS_OK)
                 st = spectrum_set_charpoly(L->spectrum, cp, e2);
             fmpz_poly_clear(cp);
         } else
-            st = spectrum_compute_progress(L->spectrum, L->matrix, progress, e2);
+            st = spectrum_compute_progress(L->spectrum, L->matrix, progress ? &hook : NULL, e2);
         if (st != NS_OK) {
             nserr_set(err, st, 0, 0, "layer %ld: %s", (long)j, e2->msg);
+            break;
+        }
+        if (progress && ns_progress_report(&hook, "decimals", -1.0)) {
+            st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
             break;
         }
         const spectrum_struct *S = L->spectrum;

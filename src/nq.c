@@ -347,11 +347,21 @@ static ns_status step_tailed_presentation(step_struct *S, const nq_t Q, pcp_work
         pcw_push(w, n + S->powtail[i], one);
         pcp_set_power(S->E, i, P->relorder + i, w);
     }
+    slong copied = 0;
     for (slong k = 0; k < n; k++)
         for (slong i = 0; i < k; i++) {
             slong s = pcp_slot(k, i);
             if (P->weight[i] + P->weight[k] > c + 1)
                 continue;
+            /* a poll now and then: free(3) at class 8 copies 130,000
+               relations here */
+            if ((++copied & 0x3ff) == 0 && W->progress &&
+                ns_progress_report(W->progress, NULL, -1.0)) {
+                fmpz_clear(one);
+                pcw_clear(w);
+                return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld",
+                                 (long)(c + 1));
+            }
             old_conj_word(w, P, k, i);
             if (S->tailof[s] >= 0)
                 pcw_push(w, n + S->tailof[s], one);

@@ -1035,7 +1035,13 @@ int pcp_consistency_run(const pcp_t P, pcp_work_t W, pcp_consistency_fn fn, void
     pcw_init(t);
     int stop = 0;
 #define UNIT(x, g) (_fmpz_vec_zero(x, n), fmpz_one((x) + (g)))
-#define CHECK() (stop = W->overflow || fn(ctx, l, r))
+    slong tests = 0;
+    /* the callback's own work (an elimination step per test in nq.c) is
+       not collection: poll every 16 tests as well */
+#define CHECK()                                                              \
+    (stop = W->overflow || fn(ctx, l, r) ||                                  \
+            ((++tests & 15) == 0 && W->progress &&                           \
+             ns_progress_report(W->progress, NULL, -1.0) && (W->overflow = 1)))
     for (slong i = 0; i < n && !stop; i++) {
         for (slong j = i + 1; j < n && !stop; j++) {
             if (P->weight[i] + P->weight[j] > c)

@@ -159,7 +159,7 @@ static void compute_entropy(spectrum_t S)
     arb_clear(t);
 }
 
-static ns_status spectrum_finish(spectrum_t S, nserr_t err);
+static ns_status spectrum_finish(spectrum_t S, const ns_progress_t *progress, nserr_t err);
 
 ns_status spectrum_compute(spectrum_t S, const fmpz_mat_t M, nserr_t err)
 {
@@ -180,13 +180,18 @@ ns_status spectrum_compute_progress(spectrum_t S, const fmpz_mat_t M,
 
     d = fmpz_mat_nrows(M);
     S->dim = d;
+    if (ns_progress_report(progress, "charpoly", -1.0))
+    {
+        spectrum_reset(S);
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+    }
     st = charpoly_compute(S->charpoly, M, 0, progress, err);
     if (st != NS_OK)
     {
         spectrum_reset(S);
         return st;
     }
-    return spectrum_finish(S, err);
+    return spectrum_finish(S, progress, err);
 }
 
 ns_status spectrum_set_charpoly(spectrum_t S, const fmpz_poly_t cp, nserr_t err)
@@ -197,12 +202,12 @@ ns_status spectrum_set_charpoly(spectrum_t S, const fmpz_poly_t cp, nserr_t err)
                          "spectrum: a characteristic polynomial is monic");
     S->dim = fmpz_poly_degree(cp);
     fmpz_poly_set(S->charpoly, cp);
-    return spectrum_finish(S, err);
+    return spectrum_finish(S, NULL, err);
 }
 
 /* Everything after the characteristic polynomial S->charpoly of degree
- * S->dim. */
-static ns_status spectrum_finish(spectrum_t S, nserr_t err)
+ * S->dim; progress as in spectrum_compute_progress. */
+static ns_status spectrum_finish(spectrum_t S, const ns_progress_t *progress, nserr_t err)
 {
     slong d = S->dim, nf, k, i, n;
     ns_status st = NS_OK;
@@ -216,6 +221,11 @@ static ns_status spectrum_finish(spectrum_t S, nserr_t err)
     fmpz_poly_evaluate_fmpz(S->det_one_minus, S->charpoly, one);
     fmpz_clear(one);
 
+    if (ns_progress_report(progress, "factors", -1.0))
+    {
+        spectrum_reset(S);
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+    }
     fmpz_poly_factor(S->factors, S->charpoly);
     sort_factors(S->factors);
     nf = S->factors->num;
@@ -238,8 +248,15 @@ static ns_status spectrum_finish(spectrum_t S, nserr_t err)
         for (i = S->root_start[k]; i < S->root_start[k + 1]; i++)
             S->root_factor[i] = k;
 
+    if (ns_progress_report(progress, "roots", -1.0))
+        st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     for (k = 0; k < nf && st == NS_OK; k++)
     {
+        if (k > 0 && ns_progress_report(progress, NULL, -1.0))
+        {
+            st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+            break;
+        }
         st = spectrum_roots_unimodular(S->fac_unimodular + k, S->factors->p + k, err);
         if (st == NS_OK)
             st = spectrum_roots_compute_factor(S, k, SPECTRUM_ROOT_BITS, err);
@@ -261,6 +278,11 @@ static ns_status spectrum_finish(spectrum_t S, nserr_t err)
             S->count_above += e;
     }
 
+    if (ns_progress_report(progress, "radius", -1.0))
+    {
+        spectrum_reset(S);
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+    }
     st = spectrum_radius_compute(S, err);
     if (st != NS_OK)
     {

@@ -178,7 +178,11 @@ void spectrum_clear(spectrum_t S);
 ns_status spectrum_compute(spectrum_t S, const fmpz_mat_t M, nserr_t err);
 
 /* The same, polling progress (may be NULL) while the characteristic
- * polynomial of a large matrix is computed prime by prime; a nonzero answer
+ * polynomial of a large matrix is computed (charpoly.h) and between the
+ * factors whose roots are isolated; each phase is named as a stage:
+ * "charpoly", "factors", "roots", "radius".  fmpz_poly_factor and each
+ * factor's root isolation and exact radius are single library calls that
+ * are not interrupted (bench_progress_gap measures them).  A nonzero answer
  * stops with NS_ERR_CANCELLED and S as for d = 0. */
 ns_status spectrum_compute_progress(spectrum_t S, const fmpz_mat_t M,
                                     const ns_progress_t *progress, nserr_t err);
