@@ -97,6 +97,7 @@ typedef struct {
     const char *formula; /* the formula's name, for the line of its ranks */
     void (*rank)(fmpz_t out, ulong param, ulong n); /* rank of layer n */
     ulong param;                                    /* the formula's parameter: rank or genus */
+    int coords; /* 1: also the layer coordinates every report needs (layer.h) */
 } bench_nq_case;
 
 static double bench_cpu_seconds(void)
@@ -142,6 +143,12 @@ static int bench_nq_run(const bench_nq_case *b)
     }
     printf("\n  %ld pc generators, nq_compute %.3f s CPU%s\n", (long)Q->pcp->n, t1 - t0,
            ok ? "" : "  MISMATCH");
+    if (b->coords) {
+        t0 = bench_cpu_seconds();
+        for (slong j = 0; j < Q->nlayers; j++)
+            layer_ensure_coords(Q->layers + j);
+        printf("  layer coordinates %.3f s CPU\n", bench_cpu_seconds() - t0);
+    }
     fmpz_clear(want);
     nq_clear(Q);
     pres_clear(p);
