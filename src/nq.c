@@ -128,6 +128,8 @@ static void set_survivor_powers(pcp_t P, const elim_quotient_t q, slong base)
     _fmpz_vec_clear(v, ns);
 }
 
+static void drop_redundant_survivors(elim_quotient_t q);
+
 static ns_status class_one(nq_t Q, pcp_work_t W, nserr_t err)
 {
     slong X = Q->pres->gens->n;
@@ -141,6 +143,7 @@ static ns_status class_one(nq_t Q, pcp_work_t W, nserr_t err)
         elim_add_dense(E, row);
     }
     elim_get_quotient(q, E);
+    drop_redundant_survivors(q);
     slong ns = q->nsurv;
     slong *wt = flint_malloc(FLINT_MAX(ns, 1) * sizeof(slong));
     for (slong s = 0; s < ns; s++)
@@ -432,6 +435,189 @@ static ns_status step_tail_relations(step_struct *S, const nq_t Q, pcp_work_t W,
     return st;
 }
 
+/* Fewer survivors where the echelon form kept redundant ones.  A survivor
+ * with a non-unit pivot d has the relation d t_s + sum_(s' > s) r_s' t_s' = 0;
+ * when some later r_b is a unit, t_b is an integer combination of the
+ * others and need not be a generator, although its column had no unit
+ * pivot in the order the elimination used (in the genus-2 surface group
+ * at class 6 two of the 442 survivors are so; the layer is free of rank
+ * 440).  Such columns b are picked greedily (each relation used for one b
+ * and b substituted out of the others), put first, and the survivor
+ * lattice Z^ns / R is brought to echelon form again in that order: their
+ * pivots are then 1, so they leave, and the expressions of all tails are
+ * rewritten in the survivors that remain.  The survivors that remain are
+ * still commutator tails with their definitions; a relation without a
+ * unit entry (2 t_1 + 3 t_2 = 0) leaves its survivors as they are. */
+/* x, y (n entries) := u x + v y, (a/g) y - (b/g) x with a = x[c],
+ * b = y[c], g = gcd(a, b) = u a + v b: a unimodular step after which
+ * x[c] = g and y[c] = 0. */
+static void row_gcd_step(fmpz *x, fmpz *y, slong n, slong c)
+{
+    fmpz_t g, u, v, a, b, t;
+    fmpz_init(g);
+    fmpz_init(u);
+    fmpz_init(v);
+    fmpz_init(a);
+    fmpz_init(b);
+    fmpz_init(t);
+    fmpz_xgcd(g, u, v, x + c, y + c);
+    fmpz_divexact(a, x + c, g);
+    fmpz_divexact(b, y + c, g);
+    for (slong j = 0; j < n; j++) {
+        fmpz_mul(t, u, x + j);
+        fmpz_addmul(t, v, y + j);
+        fmpz_mul(y + j, a, y + j);
+        fmpz_submul(y + j, b, x + j);
+        fmpz_swap(x + j, t);
+    }
+    fmpz_clear(g);
+    fmpz_clear(u);
+    fmpz_clear(v);
+    fmpz_clear(a);
+    fmpz_clear(b);
+    fmpz_clear(t);
+}
+
+static void drop_redundant_survivors(elim_quotient_t q)
+{
+    slong ns = q->nsurv, nt = 0;
+    for (slong s = 0; s < ns; s++)
+        nt += !fmpz_is_zero(q->order + s);
+    if (nt == 0)
+        return;
+    fmpz *rows = _fmpz_vec_init(nt * ns);
+    slong *rowof = flint_malloc(nt * sizeof(slong));
+    nt = 0;
+    for (slong s = 0; s < ns; s++)
+        if (!fmpz_is_zero(q->order + s)) {
+            _fmpz_vec_set(rows + nt * ns, q->rel + s * ns, ns);
+            rowof[nt++] = s;
+        }
+    int *used = flint_calloc(nt, sizeof(int));
+    int *gone = flint_calloc(ns, sizeof(int));
+    slong *perm = flint_malloc(ns * sizeof(slong));
+    slong nx = 0;
+    fmpz_t k;
+    fmpz_init(k);
+    for (;;) {
+        slong r = -1, b = -1;
+        for (slong i = 0; i < nt && b < 0; i++) {
+            if (used[i])
+                continue;
+            for (slong col = ns - 1; col >= 0; col--)
+                if (!gone[col] && fmpz_is_pm1(rows + i * ns + col)) {
+                    r = i;
+                    b = col;
+                    break;
+                }
+        }
+        if (b < 0) {
+            /* no unit entry: a column whose entries over the unused
+               relations have gcd 1 still gets one, by unimodular row
+               operations (extended gcd, pairwise) that keep the lattice */
+            for (slong col = ns - 1; col >= 0 && b < 0; col--) {
+                if (gone[col])
+                    continue;
+                fmpz_zero(k);
+                for (slong i = 0; i < nt; i++)
+                    if (!used[i])
+                        fmpz_gcd(k, k, rows + i * ns + col);
+                if (fmpz_is_one(k))
+                    b = col;
+            }
+            if (b < 0)
+                break;
+            r = -1;
+            for (slong i = 0; i < nt; i++) {
+                if (used[i] || fmpz_is_zero(rows + i * ns + b))
+                    continue;
+                if (r < 0) {
+                    r = i;
+                    continue;
+                }
+                row_gcd_step(rows + r * ns, rows + i * ns, ns, b);
+            }
+        }
+        used[r] = 1;
+        gone[b] = 1;
+        perm[nx++] = b;
+        for (slong i = 0; i < nt; i++) {
+            if (i == r || fmpz_is_zero(rows + i * ns + b))
+                continue;
+            fmpz_mul(k, rows + i * ns + b, rows + r * ns + b); /* the unit is its own inverse */
+            _fmpz_vec_scalar_submul_fmpz(rows + i * ns, rows + r * ns, ns, k);
+        }
+    }
+    _fmpz_vec_clear(rows, nt * ns);
+    flint_free(used);
+    if (nx == 0) {
+        fmpz_clear(k);
+        flint_free(rowof);
+        flint_free(gone);
+        flint_free(perm);
+        return;
+    }
+    for (slong s = 0, i = nx; s < ns; s++)
+        if (!gone[s])
+            perm[i++] = s;
+    /* the survivor lattice again, columns in the order perm */
+    elim_t E;
+    elim_quotient_t q2;
+    elim_init(E, ns);
+    elim_quotient_init(q2);
+    fmpz *v = _fmpz_vec_init(ns);
+    for (slong i = 0; i < nt; i++) {
+        for (slong c = 0; c < ns; c++)
+            fmpz_set(v + c, q->rel + rowof[i] * ns + perm[c]);
+        elim_add_dense(E, v);
+    }
+    elim_get_quotient(q2, E);
+    elim_clear(E);
+    slong n2 = q2->nsurv, T = q->ncols;
+    /* old survivor perm[c] = sum_k q2->expr[c][k] (new survivor k); every
+       tail's expression follows */
+    fmpz *expr = _fmpz_vec_init(FLINT_MAX(T * n2, 1));
+    for (slong c = 0; c < ns; c++) {
+        slong s = perm[c];
+        const fmpz *e2 = q2->expr + c * n2;
+        for (slong t = 0; t < T; t++) {
+            const fmpz *x = q->expr + t * ns + s;
+            if (fmpz_is_zero(x))
+                continue;
+            for (slong j = 0; j < n2; j++)
+                if (!fmpz_is_zero(e2 + j))
+                    fmpz_addmul(expr + t * n2 + j, x, e2 + j);
+        }
+    }
+    slong *surv = flint_malloc(FLINT_MAX(n2, 1) * sizeof(slong));
+    for (slong j = 0; j < n2; j++)
+        surv[j] = q->surv[perm[q2->surv[j]]];
+    fmpz *order = _fmpz_vec_init(FLINT_MAX(n2, 1));
+    fmpz *rel = _fmpz_vec_init(FLINT_MAX(n2 * n2, 1));
+    _fmpz_vec_set(order, q2->order, n2);
+    _fmpz_vec_set(rel, q2->rel, n2 * n2);
+    elim_quotient_clear(q2);
+    elim_quotient_clear(q);
+    q->ncols = T;
+    q->nsurv = n2;
+    if (n2 > 0) {
+        q->surv = surv;
+        q->order = order;
+        q->rel = rel;
+        q->expr = expr;
+    } else {
+        flint_free(surv);
+        _fmpz_vec_clear(order, 1);
+        _fmpz_vec_clear(rel, 1);
+        _fmpz_vec_clear(expr, FLINT_MAX(T * n2, 1));
+    }
+    _fmpz_vec_clear(v, ns);
+    fmpz_clear(k);
+    flint_free(rowof);
+    flint_free(gone);
+    flint_free(perm);
+}
+
 /* Phase 4: the quotient of the tails by L; only commutator tails may
  * survive (they generate the new layer). */
 static ns_status step_quotient(step_struct *S, const ns_progress_t *prog, nserr_t err)
@@ -440,6 +626,7 @@ static ns_status step_quotient(step_struct *S, const ns_progress_t *prog, nserr_
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     if (elim_flush(S->L, prog) || elim_get_quotient_progress(S->q, S->L, prog))
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+    drop_redundant_survivors(S->q);
     if (progress_stage(prog, S->c + 1, "new presentation", 0.95))
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     for (slong s = 0; s < S->q->nsurv; s++) {

@@ -478,6 +478,46 @@ static void layer_torsion_from_whole_block(void **state)
     nq_clear(Q);
 }
 
+/* No redundant pc generators where a relation can drop one (nq.c,
+ * drop_redundant_survivors): the count of pc generators is the Hirsch
+ * length plus the number of invariant factors.
+ *  - <a, b | a^2 b^-1, b^2>: b = a^2, so layer 1 is Z/4 on a alone
+ *    (derived by hand; the echelon form kept a of order 2 and b);
+ *  - <a, b | a^3 b, b^5>: b = a^-3 and a^15 = 1, Z/15 on one generator
+ *    (derived by hand);
+ *  - the genus-2 surface group at class 6: Labute's ranks 4, 5, 16, 45,
+ *    144, 440 (J. P. Labute, J. Algebra 14, 1970), torsion-free layers, so
+ *    exactly 654 pc generators (two relations with a unit entry used to
+ *    leave 656). */
+static void no_redundant_pc_generators(void **state)
+{
+    (void)state;
+    static const slong z4[] = {4}, z15[] = {15};
+    nq_t Q;
+    nq_init(Q);
+    compute_quotient(Q, "<a, b | a^2 b^-1, b^2>", 2);
+    check_layer(Q, 1, 0, 1, z4);
+    assert_int_equal(Q->pcp->n, 1);
+    nq_clear(Q);
+    nq_init(Q);
+    compute_quotient(Q, "<a, b | a^3 b, b^5>", 2);
+    check_layer(Q, 1, 0, 1, z15);
+    assert_int_equal(Q->pcp->n, 1);
+    assert_false(word_is_trivial(Q, "a^5"));
+    assert_false(word_is_trivial(Q, "a^3"));
+    assert_true(word_is_trivial(Q, "a^15"));
+    assert_true(word_is_trivial(Q, "b a^3"));
+    nq_clear(Q);
+    nq_init(Q);
+    compute_quotient(Q, "surface(2)", 6);
+    static const slong labute[] = {4, 5, 16, 45, 144, 440};
+    for (slong j = 1; j <= 6; j++)
+        check_layer(Q, j, labute[j - 1], 0, NULL);
+    assert_int_equal(Q->hirsch_length, 654);
+    assert_int_equal(Q->pcp->n, 654);
+    nq_clear(Q);
+}
+
 /* <a, b | a^2 b^4>: the exponent-sum matrix is [2 4], so the
  * abelianisation is Z + Z/2 [SNF].
  *
@@ -1114,6 +1154,7 @@ int main(int argc, char **argv)
         cmocka_unit_test(heisenberg_mod3),
         cmocka_unit_test(unitriangular4),
         cmocka_unit_test(hidden_torsion_example),
+        cmocka_unit_test(no_redundant_pc_generators),
         cmocka_unit_test(layer_torsion_need_not_lift),
         cmocka_unit_test(binary_icosahedral_is_perfect),
         cmocka_unit_test(triangle_presentation_with_cyclic_abelianisation),
