@@ -128,15 +128,17 @@ wait_for "EXIT=0"
 
 # ---------------------------------------------------------------------------
 current="every pc generator is accounted for (issue 9, item 3)"
+# <a,b,c | a^6 b^10 c^15>: layer 1 is Z^3/(6,10,15) = Z^2 (gcd 1, by hand),
+# and no relation of the layer has a unit coefficient, so one of its three
+# pc generators stays dependent (a relation with a unit drops it, nq.c;
+# <a,b,c | [a,b,c]> had one in layer 6 before that).
 start 100 30
 wait_for "2.618033988 U"
 keys p C-u
-type_text "<a,b,c | [a,b,c]>"
+type_text "<a,b,c | a^6 b^10 c^15>"
 keys Enter
-wait_for "Hirsch length" 30
-keys + + + +
-wait_for "class 7   Hirsch length" 120
-ref=$("$NILSTEP_BINARY" report --group '<a,b,c | [a,b,c]>' --class 7 --format json |
+wait_for "class 3   Hirsch length" 60
+ref=$("$NILSTEP_BINARY" report --group '<a,b,c | a^6 b^10 c^15>' --class 3 --format json |
     /usr/bin/python3 -c 'import json,sys; g=json.load(sys.stdin)["group"]; print(g["hirsch_length"], g["pc_generators"])')
 hl=${ref% *}
 npc=${ref#* }
@@ -151,10 +153,10 @@ h, n, fr = int(m.group(1)), int(m.group(2)), int(m.group(3))
 to, de = int(m.group(4) or 0), int(m.group(5) or 0)
 sys.exit(0 if (h == hl and n == npc and fr == hl and fr + to + de == n and de > 0) else 1)
 EOF
-# layer 6: 91 pc generators for Z^90 (the issue's count), one dependent
-keys j j j j j Enter
-wait_for "Layer 6"
-wait_for "91 pc generators: 90 for the free part, 0 for torsion factors, 1 dependent"
+# layer 1: 3 pc generators for Z^2, one dependent
+keys g Enter
+wait_for "Layer 1"
+wait_for "3 pc generators: 2 for the free part, 0 for torsion factors, 1 dependent"
 wait_for "dependent: the layer's relations"
 keys Escape
 keys q y
