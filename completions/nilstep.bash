@@ -29,6 +29,8 @@ _nilstep()
             COMPREPLY=($(compgen -W "$properties" -- "$cur")); return ;;
         --shard)
             COMPREPLY=($(compgen -W "slurm 1/2 1/4 1/8" -- "$cur")); return ;;
+        --digits)
+            COMPREPLY=($(compgen -W "4 6 10 15 20 30" -- "$cur")); return ;;
         --jobs)
             COMPREPLY=($(compgen -W "1 2 4 8 $(nproc 2>/dev/null)" -- "$cur")); return ;;
         --resume|--output|--summary)
@@ -41,7 +43,8 @@ _nilstep()
     local opts
     case $sub in
         report)
-            opts="--format --group --class --map --power --then --inverse --help" ;;
+            opts="--format --group --class --map --power --then --inverse --digits
+                  --time-limit --max-memory --max-pc --help" ;;
         scan)
             opts="--group --class --family --range --sample --seed --only --growth-between
                   --jobs --shard --resume --output --summary --help" ;;

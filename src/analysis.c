@@ -23,6 +23,9 @@ static void layer_map_clear(analysis_layer_struct *L)
     flint_free(L->charpoly_latex);
     flint_free(L->rho_str);
     flint_free(L->rho_minpoly_str);
+    flint_free(L->rho_closed_str);
+    flint_free(L->rho_closed_latex);
+    L->rho_closed_str = L->rho_closed_latex = NULL;
     flint_free(L->root_bound_str);
     flint_free(L->entropy_str);
     free_strs(L->ev_str, L->nev);
@@ -483,6 +486,8 @@ static ns_status analyse_layers(analysis_t A, const ns_progress_t *progress, nse
         L->charpoly_latex = spectrum_factored_get_str(S, SPECTRUM_STR_LATEX);
         L->rho_str = spectrum_radius_get_str(S, ANALYSIS_DIGITS);
         L->rho_minpoly_str = spectrum_radius_minpoly_get_str(S, SPECTRUM_STR_PLAIN);
+        L->rho_closed_str = spectrum_radius_closed_get_str(S, SPECTRUM_STR_PLAIN);
+        L->rho_closed_latex = spectrum_radius_closed_get_str(S, SPECTRUM_STR_LATEX);
         L->root_bound_str = spectrum_root_bound_get_str(S, (ulong)j, ANALYSIS_DIGITS);
         L->entropy_str = spectrum_entropy_get_str(S, ANALYSIS_DIGITS);
         fmpz_set(L->det, spectrum_det(S));
@@ -674,6 +679,9 @@ static int word_has_gen(const expr_node *n, slong x)
         const expr_node *d = st[--ns];
         if (d->kind == EXPR_GEN && d->gen == x)
             found = 1;
+        for (slong i = 0; d->kind == EXPR_RUN && i < d->nsyl; i++)
+            if (d->syl[i].gen == x)
+                found = 1;
         for (slong i = 0; i < d->nkids; i++) {
             if (ns == cap) {
                 cap *= 2;

@@ -48,6 +48,9 @@ typedef struct {
     fmpz *charpoly;        /* free_rank + 1 coefficients, constant term first */
     char *rho_str;         /* spectral radius, ANALYSIS_DIGITS digits ("0" exactly) */
     char *rho_minpoly_str; /* minimal polynomial of rho, or NULL if not computed */
+    char *rho_closed_str;  /* rho in closed form when its minimal polynomial has
+                              degree 2 ("(3 + sqrt(5))/2"), else NULL */
+    char *rho_closed_latex; /* the same in LaTeX ("\frac{3+\sqrt{5}}{2}") */
     char *root_bound_str;  /* rho^(1/weight) */
     fmpz_t det;            /* det M */
     fmpz_t det_i_minus;    /* det(I - M) */

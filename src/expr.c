@@ -6,6 +6,7 @@
  * the tree.  That is safe because trees stay shallow: the parser recurses
  * once per bracket level and brackets nest at most EXPR_MAX_DEPTH, and the
  * trees pres.c builds for the built-in families are a few levels deep. */
+#include <ctype.h>
 #include <limits.h>
 #include <stdio.h>
 #include <string.h>
@@ -185,6 +186,31 @@ static int has_image(const expr_node *n, const expr_struct *images, slong nimage
     return n->kind == EXPR_GEN && n->gen >= 0 && n->gen < nimages && images[n->gen].root;
 }
 
+/* A run g1^e1 g2^e2 ... with the images put in: the product of the
+ * images' powers (a generator without an image stays itself). */
+static expr_node *run_substitute(const expr_node *n, const expr_struct *images, slong nimages)
+{
+    expr_node *m = expr_node_new(EXPR_MUL, n->line, n->col);
+    for (slong i = 0; i < n->nsyl; i++) {
+        expr_syl s = n->syl[i];
+        expr_node *x;
+        if (s.gen >= 0 && s.gen < nimages && images[s.gen].root) {
+            x = expr_node_copy(images[s.gen].root);
+        } else {
+            x = expr_node_new(EXPR_GEN, n->line, n->col);
+            x->gen = s.gen;
+        }
+        if (s.exp != EXPR_SYL_BARE) {
+            expr_node *p = expr_node_new(EXPR_POW, n->line, n->col);
+            fmpz_set_si(p->exp, s.exp);
+            expr_node_add_kid(p, x);
+            x = p;
+        }
+        expr_node_add_kid(m, x);
+    }
+    return m;
+}
+
 expr_node *expr_node_substitute(const expr_node *n, const expr_struct *images, slong nimages)
 {
     node_stack st = {NULL, 0, 0};
@@ -193,6 +219,8 @@ expr_node *expr_node_substitute(const expr_node *n, const expr_struct *images, s
         return NULL;
     if (has_image(n, images, nimages))
         return expr_node_copy(images[n->gen].root);
+    if (n->kind == EXPR_RUN)
+        return run_substitute(n, images, nimages);
     expr_node *root = expr_node_copy(n);
     /* walk the copy; the pasted images are not walked again */
     node_stack_push(&st, root);
@@ -205,6 +233,9 @@ expr_node *expr_node_substitute(const expr_node *n, const expr_struct *images, s
             if (has_image(k, images, nimages)) {
                 d->kids[i] = expr_node_copy(images[k->gen].root);
                 expr_node_free(k);
+            } else if (k->kind == EXPR_RUN) {
+                d->kids[i] = run_substitute(k, images, nimages);
+                expr_node_free(k);
             } else {
                 node_stack_push(&st, k);
             }
@@ -212,6 +243,120 @@ expr_node *expr_node_substitute(const expr_node *n, const expr_struct *images, s
     }
     flint_free(st.v);
     return root;
+}
+
+char *expr_name_get_latex(const char *name)
+{
+    strbuf_t b;
+    strbuf_init(b);
+    size_t k = 0;
+    while (isalpha((unsigned char)name[k]))
+        k++;
+    if (k == 0) { /* not a name of the input language: text as it is */
+        strbuf_puts(b, "\\mathrm{");
+        strbuf_put_latex_str(b, name);
+        strbuf_puts(b, "}");
+        return strbuf_take(b);
+    }
+    if (k > 1)
+        strbuf_puts(b, "\\mathit{");
+    strbuf_putn(b, name, k);
+    if (k > 1)
+        strbuf_puts(b, "}");
+    const char *r = name + k;
+    if (*r == '_')
+        r++;
+    if (*r) {
+        strbuf_puts(b, "_{");
+        for (; *r; r++) {
+            if (*r == '_')
+                strbuf_puts(b, ",");
+            else
+                strbuf_putn(b, r, 1);
+        }
+        strbuf_puts(b, "}");
+    }
+    return strbuf_take(b);
+}
+
+/* Needs parentheses as the base of a power or conjugate. */
+static int latex_needs_parens(const expr_node *n)
+{
+    return n->kind == EXPR_MUL || n->kind == EXPR_RUN || n->kind == EXPR_POW ||
+           n->kind == EXPR_CONJ;
+}
+
+static void latex_put(strbuf_t b, const expr_node *n, const names_t g, int depth)
+{
+    if (depth > 1000) {
+        strbuf_puts(b, "\\dots");
+        return;
+    }
+    switch (n->kind) {
+    case EXPR_ONE:
+        strbuf_puts(b, "1");
+        break;
+    case EXPR_GEN: {
+        char *s = n->gen >= 0 && n->gen < g->n ? expr_name_get_latex(g->name[n->gen])
+                                               : strbuf_dup_str("?");
+        strbuf_puts(b, s);
+        flint_free(s);
+        break;
+    }
+    case EXPR_MUL:
+        for (slong i = 0; i < n->nkids; i++) {
+            if (i)
+                strbuf_puts(b, " ");
+            latex_put(b, n->kids[i], g, depth + 1);
+        }
+        break;
+    case EXPR_COMM:
+        strbuf_puts(b, "[");
+        for (slong i = 0; i < n->nkids; i++) {
+            if (i)
+                strbuf_puts(b, ", ");
+            latex_put(b, n->kids[i], g, depth + 1);
+        }
+        strbuf_puts(b, "]");
+        break;
+    case EXPR_RUN:
+        for (slong i = 0; i < n->nsyl; i++) {
+            expr_syl s = n->syl[i];
+            char *nm = s.gen >= 0 && s.gen < g->n ? expr_name_get_latex(g->name[s.gen])
+                                                  : strbuf_dup_str("?");
+            strbuf_printf(b, "%s%s", i ? " " : "", nm);
+            flint_free(nm);
+            if (s.exp != EXPR_SYL_BARE)
+                strbuf_printf(b, "^{%ld}", (long)s.exp);
+        }
+        break;
+    case EXPR_POW:
+    case EXPR_CONJ: {
+        int par = latex_needs_parens(n->kids[0]);
+        strbuf_puts(b, par ? "(" : "");
+        latex_put(b, n->kids[0], g, depth + 1);
+        strbuf_puts(b, par ? ")^{" : "^{");
+        if (n->kind == EXPR_CONJ) {
+            latex_put(b, n->kids[1], g, depth + 1);
+        } else {
+            char *e = fmpz_get_str(NULL, 10, n->exp);
+            strbuf_puts(b, e);
+            flint_free(e);
+            if (n->param >= 0)
+                strbuf_printf(b, " p_{%ld}", (long)n->param + 1);
+        }
+        strbuf_puts(b, "}");
+        break;
+    }
+    }
+}
+
+char *expr_node_get_latex(const expr_node *n, const names_t g)
+{
+    strbuf_t b;
+    strbuf_init(b);
+    latex_put(b, n, g, 0);
+    return strbuf_take(b);
 }
 
 /* ------------------------------------------------------------------------ */

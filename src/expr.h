@@ -153,6 +153,17 @@ ns_status expr_parse(expr_t out, const char *text, int line, int col,
 char *expr_get_str(const expr_t e, const names_t g);
 char *expr_node_get_str(const expr_node *n, const names_t g);
 
+/* The word as LaTeX math (without the $ signs), e.g. "a^{2} [a, b]^{-1}
+ * (a b)^{-3}", for reports: powers and conjugates as superscripts,
+ * left-normed commutators in brackets, the fewest parentheses that keep
+ * the meaning.  Generator names are typeset as a letter (or \mathit for
+ * several) with what follows the letters as a subscript: x1 -> x_{1},
+ * e9_10 -> e_{9,10}.  Trees nested deeper than 1000 print \dots there.
+ * Caller frees with flint_free. */
+char *expr_node_get_latex(const expr_node *n, const names_t g);
+/* A generator name as LaTeX math, as above; caller frees with flint_free. */
+char *expr_name_get_latex(const char *name);
+
 /* Exponent sum of generator i over the whole word (fmpz; exact for huge
  * exponents).  sums has g.n entries, zeroed by the function.  Commutators
  * contribute 0, a conjugate x^y contributes the sums of x, a power x^n n

@@ -735,6 +735,48 @@ static void put_relation(strbuf_t b, const pres_t p, slong i)
     put_owned(b, expr_node_get_str(u, p->gens));
 }
 
+char *pres_get_latex(const pres_t p)
+{
+    strbuf_t b;
+    strbuf_init(b);
+    strbuf_puts(b, "\\langle ");
+    for (slong i = 0; i < p->gens->n; i++) {
+        if (i > 0)
+            strbuf_puts(b, ",\\allowbreak ");
+        put_owned(b, expr_name_get_latex(p->gens->name[i]));
+    }
+    if (p->nrels > 0) {
+        strbuf_puts(b, " \\mid ");
+        for (slong i = 0; i < p->nrels; i++) {
+            const expr_node *u, *v;
+            if (i > 0)
+                strbuf_puts(b, ",\\allowbreak ");
+            int eq = pres_relation_sides(&u, &v, p, i);
+            put_owned(b, expr_node_get_latex(u, p->gens));
+            if (eq) {
+                strbuf_puts(b, " = ");
+                put_owned(b, expr_node_get_latex(v, p->gens));
+            }
+        }
+    }
+    strbuf_puts(b, " \\rangle");
+    return strbuf_take(b);
+}
+
+char *pres_get_map_latex(const expr_struct *images, const pres_t p)
+{
+    strbuf_t b;
+    strbuf_init(b);
+    for (slong i = 0; i < p->gens->n; i++) {
+        if (i > 0)
+            strbuf_puts(b, ",\\allowbreak ");
+        put_owned(b, expr_name_get_latex(p->gens->name[i]));
+        strbuf_puts(b, " \\mapsto ");
+        put_owned(b, expr_node_get_latex(images[i].root, p->gens));
+    }
+    return strbuf_take(b);
+}
+
 char *pres_get_str(const pres_t p)
 {
     strbuf_t b;

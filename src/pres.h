@@ -71,6 +71,16 @@ int pres_relation_sides(const expr_node **lhs, const expr_node **rhs, const pres
 /* "<a, b | [a,b,a], [a,b,b]>"; caller frees with flint_free. */
 char *pres_get_str(const pres_t p);
 
+/* The presentation as LaTeX math (without $ signs), e.g.
+ * "\\langle a, b \\mid [a, b, a],\\allowbreak [a, b, b] \\rangle", words as
+ * expr_node_get_latex writes them and a relation u = v as "u = v"; line
+ * breaks are allowed after each comma.  Caller frees with flint_free. */
+char *pres_get_latex(const pres_t p);
+
+/* The images "a -> w, ..." as LaTeX math: "a \\mapsto w,\\allowbreak ...".
+ * images: p->gens.n words.  Caller frees with flint_free. */
+char *pres_get_map_latex(const expr_struct *images, const pres_t p);
+
 /* Images of the generators: "a -> a^2 b, b -> b a".  images must point to
  * p->gens.n initialised expr_t (expr_init), filled on success.  Every
  * generator needs exactly one image; a missing, repeated or unknown one is

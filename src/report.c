@@ -93,15 +93,36 @@ void report_put_torsion_structure(strbuf_t b, const torsion_t T, int latex)
     }
 }
 
-char *report_get_str(const analysis_t A, report_format fmt, const char *title)
+const char *report_dec(report_decs *D, const char *s)
+{
+    if (s == NULL)
+        return s;
+    if (D->n == D->cap) {
+        D->cap = 2 * D->cap + 8;
+        D->v = flint_realloc(D->v, D->cap * sizeof(char *));
+    }
+    return D->v[D->n++] = spectrum_decimals_round(s, D->digits);
+}
+
+char *report_get_str_digits(const analysis_t A, report_format fmt, const char *title,
+                            slong digits)
 {
     strbuf_t b;
     strbuf_init(b);
+    report_decs D = {digits < 1 ? REPORT_DEFAULT_DIGITS : digits, NULL, 0, 0};
     if (fmt == REPORT_JSON)
         report_json(b, A, title);
     else if (fmt == REPORT_LATEX)
-        report_latex(b, A, title);
+        report_latex(b, A, title, &D);
     else
-        report_text(b, A, title);
+        report_text(b, A, title, &D);
+    for (slong k = 0; k < D.n; k++)
+        flint_free(D.v[k]);
+    flint_free(D.v);
     return strbuf_take(b);
+}
+
+char *report_get_str(const analysis_t A, report_format fmt, const char *title)
+{
+    return report_get_str_digits(A, fmt, title, REPORT_DEFAULT_DIGITS);
 }

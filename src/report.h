@@ -26,4 +26,13 @@ int report_parse_format(const char *s);
  * torsion leaves undefined, the inverse unless it was computed. */
 char *report_get_str(const analysis_t A, report_format fmt, const char *title);
 
+/* The same with every decimal of the text and LaTeX reports rounded to
+ * `digits` significant digits (1 <= digits <= ANALYSIS_DIGITS; 0 means
+ * REPORT_DEFAULT_DIGITS; spectrum_decimals_round says how).  The JSON
+ * report keeps the analysis' full ANALYSIS_DIGITS whatever digits is.
+ * report_get_str uses REPORT_DEFAULT_DIGITS. */
+#define REPORT_DEFAULT_DIGITS 10
+char *report_get_str_digits(const analysis_t A, report_format fmt, const char *title,
+                            slong digits);
+
 #endif

@@ -8,9 +8,20 @@
 #include "report.h"
 #include "strbuf.h"
 
-void report_text(strbuf_t b, const analysis_t A, const char *title);
+/* The decimal strings of one text or LaTeX report, rounded to the digits
+ * asked for (spectrum_decimals_round) and kept until the report is done. */
+typedef struct {
+    slong digits;
+    char **v;
+    slong n, cap;
+} report_decs;
+
+/* s rounded to D->digits significant digits (owned by D; NULL stays NULL). */
+const char *report_dec(report_decs *D, const char *s);
+
+void report_text(strbuf_t b, const analysis_t A, const char *title, report_decs *D);
 void report_json(strbuf_t b, const analysis_t A, const char *title);
-void report_latex(strbuf_t b, const analysis_t A, const char *title);
+void report_latex(strbuf_t b, const analysis_t A, const char *title, report_decs *D);
 
 /* x in decimal. */
 void report_put_fmpz(strbuf_t b, const fmpz_t x);

@@ -238,6 +238,8 @@ static void json_map_layers(strbuf_t b, const analysis_t A)
         strbuf_put_json_str(b, L->rho_str);
         strbuf_puts(b, ", \"spectral_radius_minpoly\": ");
         json_str_or_null(b, L->rho_minpoly_str);
+        strbuf_puts(b, ", \"spectral_radius_closed_form\": ");
+        json_str_or_null(b, L->rho_closed_str);
         strbuf_puts(b, ", \"root_bound\": ");
         strbuf_put_json_str(b, L->root_bound_str);
         strbuf_puts(b, ", \"det\": ");

@@ -62,12 +62,14 @@ static void text_torsion(strbuf_t b, const analysis_t A)
 
 /* The invariants when some layer has torsion, each with what it is
  * computed on. */
-static void text_torsion_invariants(strbuf_t b, const analysis_t A)
+static void text_torsion_invariants(strbuf_t b, const analysis_t A, report_decs *D)
 {
     const torsion_map_struct *M = A->tmap;
-    strbuf_printf(b, "entropy       %s  (rational layers: the free parts)\n", A->entropy_str);
+    strbuf_printf(b, "entropy       %s  (rational layers: the free parts)\n",
+                  report_dec(D, A->entropy_str));
     if (A->log_growth_str)
-        strbuf_printf(b, "log growth    %s  (a lower bound for the entropy)\n", A->log_growth_str);
+        strbuf_printf(b, "log growth    %s  (a lower bound for the entropy)\n",
+                      report_dec(D, A->log_growth_str));
     strbuf_puts(b, "Lefschetz     ");
     report_put_fmpz(b, A->lefschetz);
     strbuf_puts(b, "  (nilmanifold of Gc/T, Anosov 1985)\nNielsen       ");
@@ -123,7 +125,7 @@ static void text_matrix(strbuf_t b, const fmpz_mat_t M, const char *indent)
     }
 }
 
-void report_text(strbuf_t b, const analysis_t A, const char *title)
+void report_text(strbuf_t b, const analysis_t A, const char *title, report_decs *D)
 {
     const nq_struct *Q = A->nq;
     char *pres = pres_get_str(A->nq->pres);
@@ -176,34 +178,42 @@ void report_text(strbuf_t b, const analysis_t A, const char *title)
         strbuf_puts(b, "  matrix\n");
         text_matrix(b, L->matrix, "    ");
         strbuf_printf(b, "  charpoly      %s\n", L->charpoly_factored_str);
-        strbuf_printf(b, "  rho           %s\n", L->rho_str);
+        strbuf_printf(b, "  rho           %s", report_dec(D, L->rho_str));
+        if (L->rho_closed_str)
+            strbuf_printf(b, " = %s", L->rho_closed_str);
+        strbuf_puts(b, "\n");
         if (L->rho_minpoly_str)
             strbuf_printf(b, "  rho is a root of %s\n", L->rho_minpoly_str);
-        strbuf_printf(b, "  rho^(1/%ld)     %s\n", (long)L->layer->weight, L->root_bound_str);
+        strbuf_printf(b, "  rho^(1/%ld)     %s\n", (long)L->layer->weight,
+                      report_dec(D, L->root_bound_str));
         strbuf_puts(b, "  det           ");
         report_put_fmpz(b, L->det);
         strbuf_puts(b, "\n  det(I - M)    ");
         report_put_fmpz(b, L->det_i_minus);
         strbuf_puts(b, "\n  eigenvalues\n");
         for (slong k = 0; k < L->nev; k++)
-            strbuf_printf(b, "    %-44s |.| = %s\n", L->ev_str[k], L->ev_abs_str[k]);
+            strbuf_printf(b, "    %-44s |.| = %s\n", report_dec(D, L->ev_str[k]),
+                          report_dec(D, L->ev_abs_str[k]));
     }
     strbuf_puts(b, "\n");
-    strbuf_printf(b, "lower bound   %s  (max rho_j^(1/j), layer %ld)\n", A->lower_bound_str,
+    strbuf_printf(b, "lower bound   %s  (max rho_j^(1/j), layer %ld)\n",
+                  report_dec(D, A->lower_bound_str),
                 (long)A->lower_layer);
-    strbuf_printf(b, "upper bound   %s  (max rho_j, layer %ld)\n", A->upper_bound_str,
+    strbuf_printf(b, "upper bound   %s  (max rho_j, layer %ld)\n",
+                  report_dec(D, A->upper_bound_str),
                 (long)A->upper_layer);
-    strbuf_printf(b, "growth rate   %s  (%s)\n", A->growth_str, A->growth_reason);
+    strbuf_printf(b, "growth rate   %s  (%s)\n", report_dec(D, A->growth_str),
+                  A->growth_reason);
     if (!A->layers_torsion_free) {
-        text_torsion_invariants(b, A);
+        text_torsion_invariants(b, A, D);
     } else if (A->undefined_reason) {
         strbuf_printf(b, "entropy, Lefschetz, Nielsen, Reidemeister numbers: not defined (%s)\n",
                     A->undefined_reason);
     } else {
-        strbuf_printf(b, "entropy       %s\n", A->entropy_str);
+        strbuf_printf(b, "entropy       %s\n", report_dec(D, A->entropy_str));
         if (A->log_growth_str)
             strbuf_printf(b, "log growth    %s  (a lower bound for the entropy)\n",
-                        A->log_growth_str);
+                        report_dec(D, A->log_growth_str));
         report_put_fixed_point_numbers(b, A, "Lefschetz     ", "\nNielsen       ",
                                 "\nReidemeister  ", "infinite");
         strbuf_puts(b, "\n");

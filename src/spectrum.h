@@ -310,6 +310,29 @@ int spectrum_radius_minpoly(fmpz_poly_t res, const spectrum_t S);
  * NULL when rho is not exact.  Caller frees with flint_free(). */
 char *spectrum_radius_minpoly_get_str(const spectrum_t S, int style);
 
+/* s with every decimal number in it (digits, a point, digits, optionally
+ * e+N / e-N) rounded to `digits` significant digits (half up), for
+ * reports that ask for fewer digits than the analysis keeps.  Numbers with
+ * at most `digits` significant digits, integers (exact) and the ball
+ * notation "[m +/- r]" are copied unchanged.  A rounded number is written
+ * plainly when its decimal exponent lies in -5 .. digits-2 (so that it
+ * keeps a fractional digit and never looks like an exact integer),
+ * otherwise as d.ddd e+N.  Rounding a string that is correct to within one
+ * unit of its last digit leaves one correct to within one unit of the
+ * new last digit (doc/design.md section 7).  1 <= digits.  Caller frees
+ * with flint_free(). */
+char *spectrum_decimals_round(const char *s, slong digits);
+
+/* rho in closed form when its minimal polynomial a x^2 + b x + c has
+ * degree 2: rho = (-b + s sqrt(d)) / (2a) with b^2 - 4ac = s^2 d, d
+ * squarefree, reduced by the common divisor; the sign of the root is read
+ * from rho's isolating enclosure.  PLAIN and ASCII give a form sympy reads,
+ * "(3 + sqrt(5))/2", "1 + sqrt(2)", "2*sqrt(3)"; LATEX gives
+ * "\frac{3+\sqrt{5}}{2}".  NULL when rho is not exact or of another
+ * degree (degree 1: rho is rational and its decimal string is exact).
+ * Caller frees with flint_free(). */
+char *spectrum_radius_closed_get_str(const spectrum_t S, int style);
+
 /* rho as a decimal string with `digits` significant digits (digits <= 0
  * means SPECTRUM_DIGITS_DEFAULT).  When rho is an exact integer the exact
  * integer is returned ("0", "1", "3").  Otherwise the string s has exactly

@@ -8,8 +8,11 @@
  * requested number of digits gives NULL (the caller refines or prints
  * fewer digits).  The layout (plain notation for decimal exponents -5 ..
  * digits-1, otherwise "d.ddde+N") is the one spectrum.h documents. */
+#include <ctype.h>
 #include <stdlib.h>
 #include <string.h>
+#include <flint/fmpz.h>
+#include <flint/fmpz_factor.h>
 
 #include "spectrum_internal.h"
 #include "strbuf.h"
@@ -329,6 +332,187 @@ char *spectrum_radius_minpoly_get_str(const spectrum_t S, int style)
     if (!S->radius_exact)
         return NULL;
     return spectrum_poly_get_str(QQBAR_POLY(S->radius_qqbar), style);
+}
+
+/* One decimal token t[0..len) (digits '.' digits [e[+-]digits]) rounded. */
+static void round_token(strbuf_t b, const char *t, size_t len, slong digits)
+{
+    char *d = flint_malloc(len + 2);
+    size_t nd = 0, i = 0;
+    slong point = -1, e = 0;
+    for (; i < len && t[i] != 'e' && t[i] != 'E'; i++) {
+        if (t[i] == '.')
+            point = (slong)nd;
+        else
+            d[nd++] = t[i];
+    }
+    if (i < len)
+        e = strtol(t + i + 1, NULL, 10);
+    if (point < 0)
+        point = (slong)nd;
+    size_t k = 0;
+    while (k < nd && d[k] == '0')
+        k++;
+    if (k == nd || nd - k <= (size_t)digits) { /* zero, or short enough */
+        strbuf_putn(b, t, len);
+        flint_free(d);
+        return;
+    }
+    char *sig = d + k;
+    slong e10 = point + e - (slong)k - 1; /* exponent of the leading digit */
+    int up = sig[digits] >= '5';
+    sig[digits] = '\0';
+    for (slong j = digits - 1; up && j >= 0; j--) {
+        if (sig[j] == '9') {
+            sig[j] = '0';
+        } else {
+            sig[j]++;
+            up = 0;
+        }
+    }
+    if (up) { /* 99.9 -> 100: one more leading digit, one fewer at the end */
+        memmove(sig + 1, sig, (size_t)digits);
+        sig[0] = '1';
+        sig[digits] = '\0';
+        e10++;
+    }
+    if (e10 >= -5 && e10 <= digits - 2) {
+        if (e10 < 0) {
+            strbuf_puts(b, "0.");
+            for (slong j = 0; j < -e10 - 1; j++)
+                strbuf_puts(b, "0");
+            strbuf_puts(b, sig);
+        } else {
+            strbuf_putn(b, sig, (size_t)e10 + 1);
+            strbuf_puts(b, ".");
+            strbuf_puts(b, sig + e10 + 1);
+        }
+    } else {
+        strbuf_putn(b, sig, 1);
+        if (digits > 1) {
+            strbuf_puts(b, ".");
+            strbuf_puts(b, sig + 1);
+        }
+        strbuf_printf(b, "e%s%ld", e10 < 0 ? "-" : "+", (long)(e10 < 0 ? -e10 : e10));
+    }
+    flint_free(d);
+}
+
+char *spectrum_decimals_round(const char *s, slong digits)
+{
+    strbuf_t b;
+    strbuf_init(b);
+    if (digits < 1)
+        digits = 1;
+    for (size_t i = 0; s[i];) {
+        if (s[i] == '[') { /* a ball: copied as it is */
+            const char *c = strchr(s + i, ']');
+            size_t n = c ? (size_t)(c - (s + i)) + 1 : strlen(s + i);
+            strbuf_putn(b, s + i, n);
+            i += n;
+            continue;
+        }
+        if (isdigit((unsigned char)s[i]) && (i == 0 || !isalnum((unsigned char)s[i - 1]))) {
+            size_t j = i;
+            while (isdigit((unsigned char)s[j]))
+                j++;
+            if (s[j] == '.' && isdigit((unsigned char)s[j + 1])) {
+                j++;
+                while (isdigit((unsigned char)s[j]))
+                    j++;
+                if ((s[j] == 'e' || s[j] == 'E') &&
+                    (isdigit((unsigned char)s[j + 1]) ||
+                     ((s[j + 1] == '+' || s[j + 1] == '-') && isdigit((unsigned char)s[j + 2])))) {
+                    j += 2;
+                    while (isdigit((unsigned char)s[j]))
+                        j++;
+                }
+                round_token(b, s + i, j - i, digits);
+            } else {
+                strbuf_putn(b, s + i, j - i);
+            }
+            i = j;
+            continue;
+        }
+        strbuf_putn(b, s + i, 1);
+        i++;
+    }
+    return strbuf_take(b);
+}
+
+char *spectrum_radius_closed_get_str(const spectrum_t S, int style)
+{
+    if (!S->radius_exact || qqbar_degree(S->radius_qqbar) != 2)
+        return NULL;
+    const fmpz_poly_struct *m = QQBAR_POLY(S->radius_qqbar);
+    const fmpz *c = m->coeffs, *b = m->coeffs + 1, *a = m->coeffs + 2;
+    fmpz_t disc, sq, d, p, q, r, g, t;
+    fmpz_init(disc), fmpz_init(sq), fmpz_init(d), fmpz_init(p);
+    fmpz_init(q), fmpz_init(r), fmpz_init(g), fmpz_init(t);
+    fmpz_mul(disc, b, b);
+    fmpz_mul(t, a, c);
+    fmpz_submul_ui(disc, t, 4); /* > 0: rho and its conjugate are real */
+    /* disc = sq^2 d with d squarefree */
+    fmpz_factor_t fac;
+    fmpz_factor_init(fac);
+    fmpz_factor(fac, disc);
+    fmpz_one(sq);
+    fmpz_one(d);
+    for (slong i = 0; i < fac->num; i++) {
+        fmpz_pow_ui(t, fac->p + i, fac->exp[i] / 2);
+        fmpz_mul(sq, sq, t);
+        if (fac->exp[i] % 2)
+            fmpz_mul(d, d, fac->p + i);
+    }
+    fmpz_factor_clear(fac);
+    /* the sign: rho lies right of -b/(2a) iff it is the larger root */
+    arb_t mid;
+    arb_init(mid);
+    arb_set_fmpz(mid, b);
+    arb_neg(mid, mid);
+    arb_div_fmpz(mid, mid, a, 64);
+    arb_div_ui(mid, mid, 2, 64);
+    int plus = arb_gt(acb_realref(QQBAR_ENCLOSURE(S->radius_qqbar)), mid);
+    arb_clear(mid);
+    fmpz_neg(p, b);
+    fmpz_set(q, sq);
+    if (!plus)
+        fmpz_neg(q, q);
+    fmpz_mul_ui(r, a, 2);
+    fmpz_gcd(g, p, q);
+    fmpz_gcd(g, g, r);
+    fmpz_divexact(p, p, g);
+    fmpz_divexact(q, q, g);
+    fmpz_divexact(r, r, g);
+    strbuf_t s;
+    strbuf_init(s);
+    int latex = style == SPECTRUM_STR_LATEX, frac = !fmpz_is_one(r);
+    if (frac)
+        strbuf_puts(s, latex ? "\\frac{" : "(");
+    if (!fmpz_is_zero(p)) {
+        put_fmpz(s, p);
+        strbuf_puts(s, fmpz_sgn(q) < 0 ? (latex ? "-" : " - ") : (latex ? "+" : " + "));
+    } else if (fmpz_sgn(q) < 0) {
+        strbuf_puts(s, "-");
+    }
+    fmpz_abs(q, q);
+    if (!fmpz_is_one(q)) {
+        put_fmpz(s, q);
+        if (!latex)
+            strbuf_puts(s, "*");
+    }
+    strbuf_puts(s, latex ? "\\sqrt{" : "sqrt(");
+    put_fmpz(s, d);
+    strbuf_puts(s, latex ? "}" : ")");
+    if (frac) {
+        strbuf_puts(s, latex ? "}{" : ")/");
+        put_fmpz(s, r);
+        if (latex)
+            strbuf_puts(s, "}");
+    }
+    fmpz_clear(disc), fmpz_clear(sq), fmpz_clear(d), fmpz_clear(p);
+    fmpz_clear(q), fmpz_clear(r), fmpz_clear(g), fmpz_clear(t);
+    return strbuf_take(s);
 }
 
 char *spectrum_factored_get_str(const spectrum_t S, int style)

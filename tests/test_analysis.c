@@ -814,6 +814,25 @@ static void failure_forced_image_heisenberg(void **state)
     set_map(A, "x -> x^2, y -> y^3, z -> z");
     assert_int_equal(A->failures[0].forced_gen, 2);
     assert_string_equal(A->failures[0].forced_image, "[x^2,y^3]");
+    /* the commutator written out as letters (one run of syllables in the
+     * parsed tree): each letter is replaced by its image, by hand
+     * alpha(x^-1 y^-1 x y) = (x^2)^-1 (y^3)^-1 x^2 y^3 */
+    set_group(A, "<x, y, z | z = x^-1 y^-1 x y, [x,z], [y,z]>", 2);
+    set_map(A, "x -> x^2, y -> y^3, z -> z");
+    assert_false(A->valid);
+    assert_int_equal(A->failures[0].forced_gen, 2);
+    assert_string_equal(A->failures[0].rhs_word, "(x^2)^-1 (y^3)^-1 x^2 y^3");
+    char *forced = strbuf_dup_str(A->failures[0].forced_image);
+    char map[128];
+    snprintf(map, sizeof map, "x -> x^2, y -> y^3, z -> %s", forced);
+    flint_free(forced);
+    set_map(A, map);
+    assert_true(A->valid);
+    /* a generator inside a run on the other side: not defined by it */
+    set_group(A, "<x, y, z | z = x z y x^-1, [x,z], [y,z]>", 2);
+    set_map(A, "x -> x^2, y -> y^3, z -> z");
+    if (!A->valid)
+        assert_int_equal(A->failures[0].forced_gen, -1);
     /* z occurs on both sides: no generator is defined by the relation */
     set_group(A, "<x, y, z | z = [x,y] z^2, [x,z], [y,z]>", 2);
     set_map(A, "x -> x^2, y -> y^3, z -> z");

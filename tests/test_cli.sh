@@ -590,5 +590,38 @@ fi
 expect_usage "--time-limit takes" "bad --time-limit" report --time-limit -2 --group '<a>' --class 1
 expect_status 0 "a quick job under --time-limit" report --time-limit 100 --group 'free(2)' --class 3
 
+# ---------------------------------------------------------------------------
+# --digits N (issue 9, item 16): every decimal of the text and LaTeX
+# reports has N significant digits (default 10), JSON keeps 30.  Golden
+# automorphism a -> a^2 b, b -> a b: rho = (3+sqrt5)/2 = 2.6180339887498948482...
+# and the entropy log rho = 0.96242365011920689499... (both known values,
+# also tests/ref_closed_form.py with sympy).
+
+gs=(--group '<a, b>' --class 1 --map 'a -> a^2 b, b -> a b')
+expect_status 0 "text report with the default digits" report "${gs[@]}"
+grep -q '^  rho           2.618033989 = (3 + sqrt(5))/2$' "$tmp/out" &&
+    grep -q '^entropy       0.9624236501$' "$tmp/out" &&
+    grep -q '^    0.3819660113 + 0i ' "$tmp/out" ||
+    fail "the text report does not have 10 digits and the closed form by default"
+expect_status 0 "text report with --digits 4" report --digits 4 "${gs[@]}"
+grep -q '^growth rate   2.618  (' "$tmp/out" && grep -q '^entropy       0.9624$' "$tmp/out" ||
+    fail "--digits 4 is not applied to every decimal"
+if grep -E '[0-9]\.[0-9]{5,}' "$tmp/out"; then
+    fail "a decimal with more than 4 digits is left with --digits 4"
+fi
+expect_status 0 "LaTeX report with --digits 25" report --digits 25 --format latex "${gs[@]}"
+grep -qF '\approx 2.618033988749894848204587$' "$tmp/out" ||
+    fail "--digits 25 is not applied to the LaTeX report"
+expect_status 0 "JSON keeps every digit whatever --digits says" \
+    report --digits 3 --format json "${gs[@]}"
+grep -qF '"growth_rate": "2.61803398874989484820458683437"' "$tmp/out" ||
+    fail "JSON lost digits under --digits"
+grep -qF '"spectral_radius_closed_form": "(3 + sqrt(5))/2"' "$tmp/out" ||
+    fail "JSON has no closed form of the radius"
+for bad in 0 31 -3 abc 4x ''; do
+    expect_usage "--digits $bad: the number of significant digits must be a whole number from 1 to 30" \
+        "bad --digits '$bad'" report --digits "$bad" "${gs[@]}"
+done
+
 echo "# $checks checks passed, $failures failed"
 (( failures == 0 ))

@@ -892,6 +892,48 @@ static void names_should_find_exact_matches_only(void **state)
     names_clear(h);
 }
 
+/* LaTeX of words (issue 9, item 16), written by hand from the meaning:
+ * powers and conjugates as superscripts, parentheses only around a
+ * product, power or conjugate as their base; names with a subscript. */
+static void latex_of_words(void **state)
+{
+    (void)state;
+    static const struct {
+        const char *in, *want;
+    } cases[] = {
+        {"a^2 b", "a^{2} b"},
+        {"[a,b]^-1", "[a, b]^{-1}"},
+        {"(a b)^-3", "(a b)^{-3}"},
+        {"[a b, c^2, a]", "[a b, c^{2}, a]"},
+        {"a^(b c)", "a^{b c}"},
+        {"(a^2)^3", "(a^{2})^{3}"},
+        {"(a^b)^c", "(a^{b})^{c}"},
+        {"1", "1"},
+    };
+    for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
+        expr_t e;
+        names_t g;
+        expr_init(e);
+        parse_ok(e, cases[i].in);
+        make_names(g, abc, 3);
+        char *s = expr_node_get_latex(e->root, g);
+        if (strcmp(s, cases[i].want) != 0)
+            fail_msg("%s: LaTeX %s, want %s", cases[i].in, s, cases[i].want);
+        flint_free(s);
+        names_clear(g);
+        expr_clear(e);
+    }
+    static const char *const names[][2] = {
+        {"a", "a"}, {"x1", "x_{1}"}, {"e9_10", "e_{9,10}"}, {"ab", "\\mathit{ab}"},
+        {"y_2", "y_{2}"}, {"gen_b1", "\\mathit{gen}_{b1}"},
+    };
+    for (size_t i = 0; i < sizeof names / sizeof names[0]; i++) {
+        char *s = expr_name_get_latex(names[i][0]);
+        assert_string_equal(s, names[i][1]);
+        flint_free(s);
+    }
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -918,6 +960,7 @@ int main(void)
         cmocka_unit_test(exponent_sums_should_match_the_abelianisation),
         cmocka_unit_test(deep_trees_should_copy_print_and_free_without_recursion),
         cmocka_unit_test(names_should_find_exact_matches_only),
+        cmocka_unit_test(latex_of_words),
     };
     int failed = cmocka_run_group_tests(tests, NULL, NULL);
     flint_cleanup_master(); /* FLINT's cache of big integers, for valgrind */

@@ -106,7 +106,8 @@ static const char *const want_text =
     "    [2 1]\n"
     "    [1 1]\n"
     "  charpoly      (x^2 - 3x + 1)\n"
-    "  rho           2.61803398874989484820458683437\n"
+    /* rho = (3 + sqrt 5)/2, the larger root of x^2 - 3x + 1 (by hand) */
+    "  rho           2.61803398874989484820458683437 = (3 + sqrt(5))/2\n"
     "  rho is a root of x^2 - 3x + 1\n"
     "  rho^(1/1)     2.61803398874989484820458683437\n"
     "  det           1\n"
@@ -148,15 +149,16 @@ static const char *const want_text =
 static const char *const want_latex =
     "% nilstep report (LaTeX); needs \\usepackage{amsmath,amssymb}\n"
     "% Golden square\n"
-    "\\noindent Group: \\texttt{<a, b>}, class 2, Hirsch length 3.\\\\\n"
-    "Map: \\texttt{a -> a\\^{}2 b, b -> a b}.\n"
+    /* the presentation and the map in math notation */
+    "\\noindent Group: $G = \\langle a,\\allowbreak b \\rangle$, class 2, Hirsch length 3.\\\\\n"
+    "Map: $a \\mapsto a^{2} b,\\allowbreak b \\mapsto a b$.\n"
     "\n"
     "\\begin{tabular}{clllll}\n"
     "$j$ & $\\gamma_j/\\gamma_{j+1}$ & $M_j$ & $\\chi_{M_j}(x)$ & $\\rho_j$ & "
     "$\\rho_j^{1/j}$ \\\\\n"
     "\\hline\n"
     "1 & $\\mathbb{Z}^{2}$ & $\\begin{pmatrix}2 & 1 \\\\ 1 & 1\\end{pmatrix}$ & "
-    "$(x^{2} - 3x + 1)$ & $2.61803398874989484820458683437$ & "
+    "$(x^{2} - 3x + 1)$ & $\\frac{3+\\sqrt{5}}{2} \\approx 2.61803398874989484820458683437$ & "
     "$2.61803398874989484820458683437$ \\\\\n"
     "2 & $\\mathbb{Z}$ & $\\begin{pmatrix}1\\end{pmatrix}$ & $(x - 1)$ & $1$ & $1$ \\\\\n"
     "\\end{tabular}\n"
@@ -175,10 +177,10 @@ static void text_and_latex_of_the_golden_square(void **state)
     analysis_init(A);
     set_group(A, "free(2)", 2);
     set_map(A, "a -> a^2 b, b -> a b");
-    char *s = report_get_str(A, REPORT_TEXT, NULL);
+    char *s = report_get_str_digits(A, REPORT_TEXT, NULL, 30);
     assert_report(s, want_text, "text report");
     flint_free(s);
-    s = report_get_str(A, REPORT_LATEX, "Golden square");
+    s = report_get_str_digits(A, REPORT_LATEX, "Golden square", 30);
     assert_report(s, want_latex, "LaTeX report");
     flint_free(s);
 
@@ -186,21 +188,32 @@ static void text_and_latex_of_the_golden_square(void **state)
     nserr_t err;
     nserr_init(err);
     assert_int_equal(analysis_set_inverse(A, NULL, err), NS_OK);
-    s = report_get_str(A, REPORT_TEXT, NULL);
+    s = report_get_str_digits(A, REPORT_TEXT, NULL, 30);
     size_t n = strlen(want_text);
     assert_int_equal(strncmp(s, want_text, n), 0);
     assert_string_equal(s + n, "inverse       a -> a b^-1, b -> a^-1 b^2 [b,a]^-1\n");
     flint_free(s);
-    s = report_get_str(A, REPORT_LATEX, "Golden square");
+    s = report_get_str_digits(A, REPORT_LATEX, "Golden square", 30);
     n = strlen(want_latex);
     assert_int_equal(strncmp(s, want_latex, n), 0);
-    assert_string_equal(s + n, "\\\\\nInverse: \\texttt{a -> a b\\^{}-1, b -> a\\^{}-1 "
-                               "b\\^{}2 [b,a]\\^{}-1}.\n");
+    assert_string_equal(s + n, "\\\\\nInverse: $a \\mapsto a b^{-1},\\allowbreak b \\mapsto "
+                               "a^{-1} b^{2} [b, a]^{-1}$.\n");
     flint_free(s);
     /* a new map forgets it */
     set_map(A, "a -> a^2 b, b -> a b");
-    s = report_get_str(A, REPORT_TEXT, NULL);
+    s = report_get_str_digits(A, REPORT_TEXT, NULL, 30);
     assert_report(s, want_text, "text report after a new map");
+    flint_free(s);
+    /* the default: 10 significant digits in text and LaTeX, rounded from
+     * phi^2 = 2.6180339887498948... and log phi^2 = 0.96242365011920689...
+     * (known values; tests/ref_closed_form.py checks the radius with sympy) */
+    s = report_get_str(A, REPORT_TEXT, NULL);
+    assert_non_null(strstr(s, "\n  rho           2.618033989 = (3 + sqrt(5))/2\n"));
+    assert_non_null(strstr(s, "\nentropy       0.9624236501\n"));
+    assert_non_null(strstr(s, "\n    0.3819660113 + 0i "));
+    flint_free(s);
+    s = report_get_str(A, REPORT_LATEX, NULL);
+    assert_non_null(strstr(s, "$\\frac{3+\\sqrt{5}}{2} \\approx 2.618033989$ & $2.618033989$"));
     flint_free(s);
     nserr_clear(err);
     analysis_clear(A);
@@ -263,7 +276,8 @@ static void torsion_action_and_invalid_map(void **state)
     assert_string_equal(s + ls - lt, tail);
     flint_free(s);
     s = report_get_str(A, REPORT_LATEX, NULL);
-    assert_non_null(strstr(s, "Map: \\texttt{a -> b, b -> a}, not well defined on this quotient.\n"));
+    assert_non_null(strstr(s, "Map: $a \\mapsto b,\\allowbreak b \\mapsto a$, not well defined "
+                              "on this quotient.\n"));
     assert_null(strstr(s, "pmatrix"));
     flint_free(s);
     analysis_clear(A);

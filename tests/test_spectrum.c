@@ -1398,6 +1398,44 @@ static void phases_are_named_and_stoppable(void **state)
     fmpz_mat_clear(M);
 }
 
+/* spectrum_decimals_round on hand-rounded examples: half up, a carry that
+ * adds a digit, plain notation for exponents -5 .. digits-2 else d.ddde+N,
+ * integers and short numbers untouched, balls copied, several numbers in
+ * one string (an eigenvalue "a + bi"). */
+static void decimals_round_by_hand(void **state)
+{
+    (void)state;
+    static const struct {
+        const char *in;
+        slong digits;
+        const char *want;
+    } cases[] = {
+        {"2.61803398874989484820458683437", 10, "2.618033989"},
+        {"2.61803398874989484820458683437", 4, "2.618"},
+        {"0.962423650119206894995517826849", 10, "0.9624236501"},
+        {"9.9999999999", 3, "10.0"},
+        {"99.96", 3, "1.00e+2"},
+        {"123456.789", 4, "1.235e+5"},
+        {"0.0000123456789", 3, "0.0000123"},
+        {"0.00000123456789", 3, "1.23e-6"},
+        {"1.23456789e+40", 5, "1.2346e+40"},
+        {"-3.14159265", 3, "-3.14"},
+        {"2.5", 10, "2.5"},
+        {"17", 2, "17"},
+        {"2.618033988749895 + 0.5000000000000001i", 4, "2.618 + 0.5000i"},
+        {"[2.61803 +/- 1.2e-5]", 2, "[2.61803 +/- 1.2e-5]"},
+        {"x^2 - 3x + 1", 2, "x^2 - 3x + 1"},
+        {"2.61803", 1, "3e+0"},
+    };
+    for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
+        char *s = spectrum_decimals_round(cases[i].in, cases[i].digits);
+        if (strcmp(s, cases[i].want) != 0)
+            fail_msg("%s to %ld digits: %s, want %s", cases[i].in, (long)cases[i].digits, s,
+                     cases[i].want);
+        flint_free(s);
+    }
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -1421,6 +1459,7 @@ int main(void)
         cmocka_unit_test(random_properties),
         cmocka_unit_test(charpoly_agrees_with_flint),
         cmocka_unit_test(large_charpoly_can_be_cancelled),
+        cmocka_unit_test(decimals_round_by_hand),
     };
     int rc = cmocka_run_group_tests(tests, NULL, NULL);
     flint_cleanup_master();

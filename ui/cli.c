@@ -17,7 +17,7 @@ void cli_print_help(FILE *out)
           "       nilstep report [--format text|json|latex] FILE\n"
           "       nilstep report --group PRES --class C [--map MAP] [--format text|json|latex]\n"
           "                      [--power K] [--then MAP2] [--inverse]\n"
-          "                      [--time-limit SECONDS] [--max-memory SIZE]\n"
+          "                      [--digits N] [--time-limit SECONDS] [--max-memory SIZE]\n"
           "       nilstep scan (FILE | --group PRES --class C) --family TEMPLATE\n"
           "                    --range NAME=LO..HI ... [options]   (nilstep scan --help)\n"
           "       nilstep scan --summary OUT\n"
@@ -42,6 +42,8 @@ void cli_print_help(FILE *out)
           "    --then MAP2       analyse the composite: first the map, then MAP2\n"
           "    --inverse         also compute the images of the inverse of the\n"
           "                      (resulting) map, for automorphisms\n"
+          "    --digits N        significant digits of every decimal in the text and\n"
+          "                      LaTeX reports, 1..30 (default 10; JSON keeps 30)\n"
           "    --time-limit S    stop after S seconds (exit 3, naming the stage)\n"
           "    --max-memory SIZE stop when FLINT and GMP would hold more than SIZE\n"
           "                      (e.g. 512M, 4G; default: half the physical memory)\n"
@@ -218,7 +220,7 @@ static int derived_map(analysis_t A, const char *power, const char *then,
 /* What `nilstep report` was asked, as given (values unparsed). */
 typedef struct {
     const char *format, *file, *group, *cls, *map, *power, *then;
-    const char *time_limit, *max_memory, *max_pc;
+    const char *time_limit, *max_memory, *max_pc, *digits;
     int inverse;
 } cli_options;
 
@@ -241,6 +243,7 @@ static int cli_parse_args(cli_options *o, int argc, char **argv)
         {"--time-limit", offsetof(cli_options, time_limit)},
         {"--max-memory", offsetof(cli_options, max_memory)},
         {"--max-pc", offsetof(cli_options, max_pc)},
+        {"--digits", offsetof(cli_options, digits)},
     };
     char msg[300];
     memset(o, 0, sizeof *o);
@@ -297,6 +300,17 @@ static int cli_parse_args(cli_options *o, int argc, char **argv)
         long m = strtol(o->max_pc, &end, 10);
         if (*o->max_pc == '\0' || *end != '\0' || m < 1 || m > 1000000)
             return usage("--max-pc takes a whole number of pc generators from 1 to 1000000");
+    }
+    if (o->digits) {
+        char *end;
+        long d = strtol(o->digits, &end, 10);
+        if (*o->digits == '\0' || *end != '\0' || d < 1 || d > ANALYSIS_DIGITS) {
+            snprintf(msg, sizeof msg,
+                     "--digits %.40s: the number of significant digits must be a whole number "
+                     "from 1 to %d",
+                     o->digits, ANALYSIS_DIGITS);
+            return usage(msg);
+        }
     }
     if (o->max_memory) {
         size_t m;
@@ -415,7 +429,9 @@ static int cli_run(const cli_options *o)
         status = usage("--power, --then and --inverse need a map");
         goto done;
     }
-    char *out = report_get_str(A, (report_format)fmt, title);
+    char *out = report_get_str_digits(A, (report_format)fmt, title,
+                                      o->digits ? strtol(o->digits, NULL, 10)
+                                                : REPORT_DEFAULT_DIGITS);
     fputs(out, stdout);
     flint_free(out);
     if (A->has_map && !A->valid)
