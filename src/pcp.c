@@ -315,6 +315,18 @@ static void collect_word_pow(pcp_work_t W, fmpz *u, const pcw_t w, const pcw_t w
         return;
     }
     slong n = W->P->n, g0 = w->gen[0];
+    if (w->gen[w->len > 1 ? 1 : 0] >= W->P->ncore) {
+        /* (a_g0^x z)^q = a_g0^(x q) z^q for z central, in any group (as
+         * in pcp_elt_pow), without the dense vectors */
+        fmpz_t xq;
+        fmpz_init(xq);
+        for (slong k = 0; k < w->len && !W->overflow; k++) {
+            fmpz_mul(xq, w->exp + k, q);
+            pcp_collect_gen(W, u, w->gen[k], xq);
+        }
+        fmpz_clear(xq);
+        return;
+    }
     fmpz *x = _fmpz_vec_init(n);
     pcw_t t;
     pcw_init(t);
@@ -813,15 +825,12 @@ static void conj_once(pcp_work_t W, fmpz *out, const fmpz *y, slong i)
 {
     fmpz_t e;
     fmpz_init_set_si(e, 1);
-    slong n = W->P->n;
-    fmpz *t = _fmpz_vec_init(n);
     /* y a_i = a_i y^(a_i): collect y a_i and drop the a_i part (m_i >= 2,
-     * so no power relation fires). */
-    _fmpz_vec_set(t, y, n);
-    pcp_collect_gen(W, t, i, e);
-    fmpz_zero(t + i);
-    _fmpz_vec_set(out, t, n);
-    _fmpz_vec_clear(t, n);
+     * so no power relation fires); y is zero up to i, so out may be y. */
+    if (out != y)
+        _fmpz_vec_set(out, y, W->P->n);
+    pcp_collect_gen(W, out, i, e);
+    fmpz_zero(out + i);
     fmpz_clear(e);
 }
 
