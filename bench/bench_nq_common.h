@@ -100,12 +100,12 @@ typedef struct {
     int coords; /* 1: also the layer coordinates every report needs (layer.h) */
 } bench_nq_case;
 
-static double bench_cpu_seconds(void)
+static inline double bench_cpu_seconds(void)
 {
     return (double)clock() / CLOCKS_PER_SEC;
 }
 
-static int bench_nq_run(const bench_nq_case *b)
+static inline int bench_nq_run(const bench_nq_case *b)
 {
     pres_t p;
     nserr_t err;
@@ -150,6 +150,56 @@ static int bench_nq_run(const bench_nq_case *b)
         printf("  layer coordinates %.3f s CPU\n", bench_cpu_seconds() - t0);
     }
     fmpz_clear(want);
+    nq_clear(Q);
+    pres_clear(p);
+    return ok ? 0 : 1;
+}
+
+/* A finite quotient: nq_compute to class c, each layer compared with the
+ * base-2 logarithm of its expected order (finite 2-groups here; the values
+ * come from the caller, who names their source).  Prints the layer orders,
+ * the number of pc generators and the CPU time; returns 0 when every layer
+ * is finite of the expected order and the class was reached. */
+static inline int bench_nq_run_2group(const char *program, const char *text, slong c,
+                               const slong *log2_order)
+{
+    pres_t p;
+    nserr_t err;
+    nq_t Q;
+    pres_init(p);
+    nserr_init(err);
+    nq_init(Q);
+    if (pres_parse(p, text, 1, 1, err) != NS_OK) {
+        fprintf(stderr, "%s: %s\n", program, err->msg);
+        return 1;
+    }
+    double t0 = bench_cpu_seconds();
+    ns_status st = nq_compute(Q, p, c, NULL, err);
+    double t1 = bench_cpu_seconds();
+    if (st != NS_OK) {
+        fprintf(stderr, "%s: nq_compute: %s\n", program, err->msg);
+        return 1;
+    }
+    printf("%s: %s, class %ld\n  log2 of the layer orders:", program, text, (long)c);
+    int ok = Q->class_reached == c;
+    for (slong j = 0; j < Q->nlayers; j++) {
+        const layer_struct *L = Q->layers + j;
+        slong lg = 0;
+        for (slong k = 0; k < L->ntors; k++) {
+            slong b = (slong)fmpz_bits(L->torsion + k) - 1;
+            if ((slong)fmpz_val2(L->torsion + k) != b) /* not a power of 2 */
+                ok = 0;
+            lg += b;
+        }
+        printf(" %ld", (long)lg);
+        if (L->free_rank || lg != log2_order[j])
+            ok = 0;
+    }
+    printf("\n  expected:");
+    for (slong j = 0; j < c; j++)
+        printf(" %ld", (long)log2_order[j]);
+    printf("\n  %ld pc generators, nq_compute %.3f s CPU%s\n", (long)Q->pcp->n, t1 - t0,
+           ok ? "" : "  MISMATCH");
     nq_clear(Q);
     pres_clear(p);
     return ok ? 0 : 1;
