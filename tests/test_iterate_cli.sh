@@ -131,6 +131,25 @@ run iterate --group '<a, b | a^2>' --class 2 --map 'a -> b, b -> a'
 grep -q 'a^2  ->  b^2' "$tmp/err" || fail "invalid map: failing relator not listed: $(cat "$tmp/err")"
 [[ ! -s $tmp/out ]] || fail "invalid map: printed iterates"
 
+# ---- --digits N: the text format's decimals (issue 9, item 16) ----------
+# a -> a^2 b, b -> a b on <a, b> class 2: alpha(a) = a^2 b with layer-1
+# coordinates (2, 1), so its norm is sqrt(5) = 2.2360679774997896964...
+# (known value); the growth rate is (3+sqrt5)/2 = 2.6180339887498948...
+G2=(--group '<a, b>' --class 2 --map 'a -> a^2 b, b -> a b' --element a --steps 1)
+run iterate "${G2[@]}"
+grep -q '^growth rate 2.618033989$' "$tmp/out" &&
+    grep -q 'norm 2.236067977  root 2.236067977 ' "$tmp/out" ||
+    fail "iterate text does not default to 10 digits: $(cat "$tmp/out")"
+run iterate --digits 4 "${G2[@]}"
+grep -q '^growth rate 2.618$' "$tmp/out" && grep -q 'norm 2.236  root 2.236 ' "$tmp/out" ||
+    fail "iterate --digits 4: $(cat "$tmp/out")"
+run iterate --digits 4 --format json "${G2[@]}"
+grep -qF '"growth_rate": "2.61803398874989484820458683437"' "$tmp/out" ||
+    fail "iterate JSON lost digits under --digits"
+run iterate --digits 31 "${G2[@]}"
+[[ $rc == 2 ]] && grep -q -- '--digits: error: expected a whole number from 1 to 30' "$tmp/err" ||
+    fail "iterate --digits 31 is not refused: exit $rc, $(cat "$tmp/err")"
+
 if ((failures)); then
     echo "$failures failure(s)"
     exit 1

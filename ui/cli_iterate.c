@@ -8,6 +8,7 @@
 #include <unistd.h>
 #include "analysis.h"
 #include "cli.h"
+#include "report.h"
 #include "iterate_norm.h"
 #include "session.h"
 #include "spectrum.h"
@@ -24,7 +25,8 @@ static int iter_usage(const char *msg)
 {
     fprintf(stderr, "nilstep iterate: %s\n", msg);
     fputs("usage: nilstep iterate [--steps N] [--every K] [--element WORD]... [--format F]\n"
-          "                       [--ball-memory MIB] (FILE | --group PRES --class C --map MAP)\n"
+          "                       [--ball-memory MIB] [--digits N]\n"
+          "                       (FILE | --group PRES --class C --map MAP)\n"
           "(nilstep --help for more)\n",
           stderr);
     return 2;
@@ -102,7 +104,18 @@ typedef struct {
     int first_elt;
     int first_step;
     strbuf_struct *copy; /* JSON of the steps kept for the top-level list, or NULL */
+    slong digits;        /* significant digits of the text format's decimals */
 } iter_out;
+
+/* s (flint_malloc'd or NULL) rounded to the text format's digits; takes s. */
+static char *text_digits(const iter_out *o, char *s)
+{
+    if (s == NULL || o->fmt != FMT_TEXT)
+        return s;
+    char *r = spectrum_decimals_round(s, o->digits);
+    flint_free(s);
+    return r;
+}
 
 static void put_vec_json(strbuf_t b, const fmpz *v, slong len)
 {
@@ -145,8 +158,8 @@ static void emit_step(strbuf_t b, iter_out *o, const nq_t Q, const char *elt_tex
                       const iterate_point_t p, slong wl, const wordlen_t ball)
 {
     char *word = nq_elt_get_str(Q, p->elt);
-    char *norm = iterate_point_norm_str(p, ITER_DIGITS);
-    char *root = iterate_point_root_str(p, ITER_DIGITS);
+    char *norm = text_digits(o, iterate_point_norm_str(p, ITER_DIGITS));
+    char *root = text_digits(o, iterate_point_root_str(p, ITER_DIGITS));
     if (o->fmt == FMT_JSON) {
         strbuf_printf(b, "%s\n      {\"n\": %lu, \"element\": ", o->first_step ? "" : ",",
                       (unsigned long)p->n);
@@ -298,7 +311,7 @@ static ns_status run_element(iter_out *o, iterate_map_t M, const nq_t Q, slong n
 int cli_iterate(int argc, char **argv)
 {
     const char *format = "text", *file = NULL, *group = NULL, *cls = NULL, *map = NULL;
-    const char *steps_s = NULL, *every_s = NULL, *mem_s = NULL;
+    const char *steps_s = NULL, *every_s = NULL, *mem_s = NULL, *digits_s = NULL;
     const char **elts = calloc((size_t)argc + 1, sizeof(char *));
     if (elts == NULL)
         abort();
@@ -320,6 +333,8 @@ int cli_iterate(int argc, char **argv)
             slot = &every_s;
         else if (!strcmp(a, "--ball-memory"))
             slot = &mem_s;
+        else if (!strcmp(a, "--digits"))
+            slot = &digits_s;
         else if (!strcmp(a, "--element"))
             slot = &elts[nelts];
         else if (!strcmp(a, "--help") || !strcmp(a, "-h")) {
@@ -370,6 +385,9 @@ int cli_iterate(int argc, char **argv)
         status = 2;
     if (status == 0 && mem_s && !parse_count(&mem, "--ball-memory", mem_s, 0, 1L << 20))
         status = 2;
+    long digits = REPORT_DEFAULT_DIGITS;
+    if (status == 0 && digits_s && !parse_count(&digits, "--digits", digits_s, 1, ITER_DIGITS))
+        status = 2;
     if (status != 0) {
         free(elts);
         return status;
@@ -391,6 +409,7 @@ int cli_iterate(int argc, char **argv)
     fmpz *w0 = NULL;
     slong n = 0; /* pc generators, once the quotient is there */
     iter_maxroot mx = {0, NULL, NULL, NULL};
+    char *growth = NULL; /* the growth rate as the output format prints it */
     slong nel = 0;
     char **names = NULL;
     const char *where_group = "--group", *where_map = "--map";
@@ -518,8 +537,10 @@ int cli_iterate(int argc, char **argv)
 
     strbuf_t copy;
     strbuf_init(copy);
-    iter_out o = {fmt, A->growth_str ? A->growth_str : "", V->class_reached, 1, 1,
-                  fmt == FMT_JSON && nel == 1 ? copy : NULL};
+    growth = text_digits(&(iter_out){.fmt = fmt, .digits = digits},
+                         strbuf_dup_str(A->growth_str ? A->growth_str : ""));
+    iter_out o = {fmt, growth, V->class_reached, 1, 1, fmt == FMT_JSON && nel == 1 ? copy : NULL,
+                  digits};
     if (fmt == FMT_JSON) {
         printf("{\"growth_rate\": \"%s\", \"growth_reason\": ", o.growth);
         strbuf_t b;
@@ -579,7 +600,7 @@ int cli_iterate(int argc, char **argv)
             for (slong i = 0; i < mx.npts; i++) {
                 if (!mx.have[i])
                     continue;
-                char *t = ball_str(mx.max + i);
+                char *t = text_digits(&o, ball_str(mx.max + i));
                 printf("  n = %lu: %s\n", (unsigned long)mx.n[i], t);
                 flint_free(t);
             }
@@ -590,6 +611,7 @@ int cli_iterate(int argc, char **argv)
                ball->stop_reason ? ball->stop_reason : "");
     }
 done:
+    flint_free(growth);
     if (mx.max)
         _arb_vec_clear(mx.max, mx.npts);
     free(mx.n);
