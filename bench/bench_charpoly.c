@@ -4,12 +4,20 @@
  * (Witt's formula gives both dimensions), under maps of our own choosing.
  *
  * For each case it prints: the dimension; the number of primes our proven
- * bound asks for next to the number the coefficients actually need; the wall
- * time of charpoly_compute with all processors; a floor measured in the same
- * run — FLINT's nmod_mat_charpoly for one prime, times the number of primes,
- * divided by the threads, i.e. FLINT's own arithmetic with the same bound
- * and perfect parallel speed-up — and the ratio time / floor; the machine's
- * load average, so that figures from a loaded machine are read as such.
+ * bound asks for next to the number the coefficients actually need; then
+ * two routes, each with a floor measured in the same run and the ratio
+ * time / floor:
+ *   - charpoly_free_lie, the route the analysis takes on a free group
+ *     (Brandt's formula from the layer-1 matrix, charpoly.h), against the
+ *     least any multimodular method could spend: FLINT's nmod_mat_charpoly
+ *     for one prime times the primes the coefficients need (a perfect
+ *     bound), divided by the threads;
+ *   - charpoly_compute, for any matrix (skipped with NILSTEP_BENCH_QUICK),
+ *     against FLINT's nmod_mat_charpoly for one prime times the primes of
+ *     the same proven bound, divided by the threads, i.e. FLINT's own
+ *     arithmetic with the same bound and perfect parallel speed-up;
+ * and the machine's load average, so that figures from a loaded machine
+ * are read as such.
  * The result is checked against FLINT's fmpz_mat_charpoly only when
  * NILSTEP_BENCH_CHECK is set (it takes minutes).  Targets (issue 10): the
  * 810-dimensional case in at most 10 s. */
