@@ -459,12 +459,16 @@ static ns_status analyse_layers(analysis_t A, const ns_progress_t *progress, nse
             break;
         }
         if (free_group_layer(A, j)) {
-            /* a free group: Brandt's formula from layer 1 (charpoly.h) */
+            /* a free group: Brandt's formula from layer 1 (charpoly.h); the
+               phases are named and polled as on the general route */
             fmpz_poly_t cp;
             fmpz_poly_init(cp);
-            st = charpoly_free_lie(cp, A->layers[0].matrix, j, progress ? &hook : NULL, e2);
+            if (progress && ns_progress_report(&hook, "charpoly", -1.0))
+                st = nserr_set(e2, NS_ERR_CANCELLED, 0, 0, "cancelled");
+            else
+                st = charpoly_free_lie(cp, A->layers[0].matrix, j, progress ? &hook : NULL, e2);
             if (st == NS_OK)
-                st = spectrum_set_charpoly(L->spectrum, cp, e2);
+                st = spectrum_set_charpoly(L->spectrum, cp, progress ? &hook : NULL, e2);
             fmpz_poly_clear(cp);
         } else
             st = spectrum_compute_progress(L->spectrum, L->matrix, progress ? &hook : NULL, e2);

@@ -194,7 +194,8 @@ ns_status spectrum_compute_progress(spectrum_t S, const fmpz_mat_t M,
     return spectrum_finish(S, progress, err);
 }
 
-ns_status spectrum_set_charpoly(spectrum_t S, const fmpz_poly_t cp, nserr_t err)
+ns_status spectrum_set_charpoly(spectrum_t S, const fmpz_poly_t cp,
+                                const ns_progress_t *progress, nserr_t err)
 {
     spectrum_reset(S);
     if (fmpz_poly_length(cp) == 0 || !fmpz_is_one(fmpz_poly_lead(cp)))
@@ -202,7 +203,7 @@ ns_status spectrum_set_charpoly(spectrum_t S, const fmpz_poly_t cp, nserr_t err)
                          "spectrum: a characteristic polynomial is monic");
     S->dim = fmpz_poly_degree(cp);
     fmpz_poly_set(S->charpoly, cp);
-    return spectrum_finish(S, NULL, err);
+    return spectrum_finish(S, progress, err);
 }
 
 /* Everything after the characteristic polynomial S->charpoly of degree

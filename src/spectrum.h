@@ -189,8 +189,11 @@ ns_status spectrum_compute_progress(spectrum_t S, const fmpz_mat_t M,
 
 /* The same from the characteristic polynomial cp of the matrix (monic; its
  * degree is the dimension), for a caller that knows it by another route
- * (charpoly_free_lie).  NS_ERR_INPUT when cp is not monic. */
-ns_status spectrum_set_charpoly(spectrum_t S, const fmpz_poly_t cp, nserr_t err);
+ * (charpoly_free_lie).  progress (may be NULL) is polled as above from
+ * "factors" on; the caller names its own "charpoly" phase.  NS_ERR_INPUT
+ * when cp is not monic. */
+ns_status spectrum_set_charpoly(spectrum_t S, const fmpz_poly_t cp,
+                                const ns_progress_t *progress, nserr_t err);
 
 /* ---- polynomial data --------------------------------------------------- */
 

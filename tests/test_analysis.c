@@ -1058,6 +1058,62 @@ static void free_group_charpolys_are_those_of_the_matrices(void **state)
     }
 }
 
+/* Records the stages named and stops at the first one equal to ctx->stop. */
+typedef struct {
+    char seen[4096];
+    const char *stop;
+} stage_log;
+
+static int log_stages(void *ctx, const char *stage, double f)
+{
+    stage_log *l = ctx;
+    (void)f;
+    if (stage == NULL)
+        return 0;
+    size_t n = strlen(l->seen);
+    snprintf(l->seen + n, sizeof l->seen - n, "%s|", stage);
+    return l->stop != NULL && strcmp(stage, l->stop) == 0;
+}
+
+/* On a presentation without relators, layers 2..c take Brandt's formula
+ * (charpoly.h) and once went through factorisation, root isolation and the
+ * radius without a word to the hook.  Every layer names the same phases as
+ * the general route, and a stop at any of them cancels the analysis.  The
+ * phase names are the engine's own (spectrum.h). */
+static void free_group_spectra_are_named_and_stoppable(void **state)
+{
+    (void)state;
+    static const char *const phases[] = {"charpoly", "factors", "roots", "radius"};
+    const char *map = "a -> a^2 b, b -> a b c, c -> b c";
+    analysis_t A;
+    nserr_t err;
+    stage_log l = {"", NULL};
+    ns_progress_t p = {log_stages, &l};
+    analysis_init(A);
+    nserr_init(err);
+    set_group(A, "<a, b, c | >", 5);
+    assert_int_equal(analysis_set_map_text(A, map, 1, 1, &p, err), NS_OK);
+    assert_int_equal(A->nlayers, 5);
+    for (slong j = 1; j <= 5; j++)
+        for (int k = 0; k < 4; k++) {
+            char want[96];
+            snprintf(want, sizeof want, "spectra: layer %ld of 5 (%s)|", (long)j, phases[k]);
+            if (strstr(l.seen, want) == NULL)
+                fail_msg("stage '%s' not named; seen: %s", want, l.seen);
+        }
+    for (int k = 0; k < 4; k++) {
+        char stop[96];
+        snprintf(stop, sizeof stop, "spectra: layer 4 of 5 (%s)", phases[k]);
+        l.seen[0] = '\0';
+        l.stop = stop;
+        assert_int_equal(analysis_set_map_text(A, map, 1, 1, &p, err), NS_ERR_CANCELLED);
+        if (strstr(l.seen, stop) == NULL)
+            fail_msg("stop at '%s' not reached; seen: %s", stop, l.seen);
+    }
+    nserr_clear(err);
+    analysis_clear(A);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -1076,6 +1132,7 @@ int main(void)
         cmocka_unit_test(failure_forced_image_heisenberg),
         cmocka_unit_test(maps_given_as_values),
         cmocka_unit_test(free_group_charpolys_are_those_of_the_matrices),
+        cmocka_unit_test(free_group_spectra_are_named_and_stoppable),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
