@@ -321,6 +321,20 @@ got=$("$NS" scan --group 'free(3)' --class 2 \
     [[ $(comp nilstep scan --shard sl) == slurm ]] || exit 6
     [[ $(comp nilstep scan --res) == --resume ]] || exit 7
     cd "$SRC/scenarios" && [[ $(comp nilstep scan unip) == unipotent-shear.nilstep ]] || exit 8
+    cd "$tmp/empty" || exit 9
+    [[ $(comp nilstep it) == iterate ]] || exit 10
+    [[ $(comp nilstep iterate --format '') == "text json csv" ]] || exit 11
+    [[ $(comp nilstep report --format '') == "text json latex" ]] || exit 12
+    [[ $(comp nilstep iterate --group heis) == "heisenberg(" ]] || exit 13
+    # every option the iterate lines of `nilstep iterate --help` name (its
+    # usage and its section) and --help, and no other, is offered after
+    # `iterate --`
+    want=$({ "$NS" iterate --help | awk '/^ +nilstep iterate/ { u = 1 } /^ +nilstep --help/ { u = 0 } u
+        /^  iterate / { s = 1; next } s && (/^  [^ ]/ || /^$/) { s = 0 } s'; echo --help; } |
+        grep -o -- '--[a-z][a-z-]*' | sort -u | tr '\n' ' ')
+    got=$(comp nilstep iterate -- | tr ' ' '\n' | sort -u | tr '\n' ' ')
+    [[ $want == *--steps*--every* || $want == *--every*--steps* ]] || exit 14
+    [[ $got == "$want" ]] || { echo "iterate completion: '$got', help: '$want'" >&2; exit 15; }
 ) && ok || fail "bash completion: case $? gives the wrong words"
 if [[ -n ${NILSTEP_BUILD_DIR:-} ]]; then
     cmake --install "$NILSTEP_BUILD_DIR" --prefix "$tmp/inst" >/dev/null 2>&1
