@@ -281,6 +281,31 @@ ns_status session_set_class(session_t s, int cls, nserr_t err)
     return NS_OK;
 }
 
+void session_set_comments(session_t s, const char *text)
+{
+    text_clear(&s->comments);
+    if (text_is_blank(text))
+        return;
+    strbuf_t b;
+    strbuf_init(b);
+    for (const char *a = text;;) {
+        const char *e = strchr(a, '\n');
+        size_t n = e ? (size_t)(e - a) : strlen(a);
+        while (n > 0 && is_blank(a[n - 1])) /* as parsing would trim them */
+            n--;
+        if (b->len)
+            strbuf_puts(b, "\n");
+        if (n == 0 || *a != '#')
+            strbuf_puts(b, n ? "# " : "#");
+        strbuf_putn(b, a, n);
+        if (e == NULL)
+            break;
+        a = e + 1;
+    }
+    text_set(&s->comments, b->s, b->len, 1, 1);
+    strbuf_clear(b);
+}
+
 void session_add_note(session_t s, const char *text)
 {
     if (!text_is_blank(text))

@@ -161,6 +161,10 @@ void session_set_group(session_t s, const char *text);
 void session_set_map(session_t s, const char *text);
 /* Fails with NS_ERR_INPUT (s unchanged) unless 1 <= cls <= 64; 0 removes. */
 ns_status session_set_class(session_t s, int cls, nserr_t err);
+/* The comment block before the first key: lines joined by '\n', each
+ * starting with '#' (a line that does not gets "# " in front, so that the
+ * block reads back as comments).  NULL or blanks remove it. */
+void session_set_comments(session_t s, const char *text);
 void session_add_note(session_t s, const char *text);
 void session_clear_notes(session_t s);
 /* Negative values mean absent; values above SESSION_MAX_INDEX are clamped. */

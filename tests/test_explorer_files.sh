@@ -136,6 +136,8 @@ keys Escape
 keys w C-u
 type_text "s.nilstep"
 keys Enter
+wait_for "Before saving"            # the default scenario's comment predates the changes
+keys k
 wait_for "saved s.nilstep"
 for f in txt:text json:json tex:latex; do
     "$NILSTEP_BINARY" report --format "${f#*:}" "$tmp/s.nilstep" >"$tmp/cli.${f%%:*}"
@@ -148,6 +150,102 @@ want = json.load(open(sys.argv[1]))["map"]["layers"][1]["matrix"]
 got = [[int(x) for x in l.split()] for l in open(sys.argv[2]) if not l.startswith("#")]
 sys.exit(0 if got == want else 1)
 EOF2
+keys q
+wait_for "EXIT=0"
+
+# ---------------------------------------------------------------------------
+current="the comment and notes: shown, edited, never saved unseen (issue 9, item 12)"
+# Saving the default scenario after a change: the comment that describes
+# the old map is shown and asked about, not written silently.
+start 100 30
+wait_for "2.618033988 U"
+keys e C-u
+type_text "a^3"
+keys Enter
+wait_for "image of a applied"
+keys w C-u
+type_text "changed.nilstep"
+keys Enter
+wait_for "Before saving"
+wait_for "The matrix [[2,1],[1,1]] lifted"        # the comment itself, shown
+[[ -e "$tmp/changed.nilstep" ]] && fail "saved before the question was answered"
+keys x                                            # any other key: not saved
+wait_for "not saved"
+[[ -e "$tmp/changed.nilstep" ]] && fail "a declined save wrote the file"
+keys s                                            # no file yet: the name again
+wait_for "Save the session as"
+type_text "changed.nilstep"
+keys Enter
+wait_for "Before saving"
+keys d
+wait_for "saved changed.nilstep"
+grep -q '^#' "$tmp/changed.nilstep" && fail "d did not drop the old comment: $(head -3 "$tmp/changed.nilstep")"
+grep -q '^map *a -> a^3' "$tmp/changed.nilstep" || fail "the change was not saved"
+keys q
+wait_for "EXIT=0"
+
+# k keeps it, after it was shown
+start 100 30
+wait_for "2.618033988 U"
+keys e C-u
+type_text "a^3"
+keys Enter
+wait_for "image of a applied"
+keys w C-u
+type_text "kept.nilstep"
+keys Enter
+wait_for "Before saving"
+keys k
+wait_for "saved kept.nilstep"
+[[ "$(sed -n 2p "$tmp/kept.nilstep")" == "# The matrix [[2,1],[1,1]] lifted to the free nilpotent group of" ]] ||
+    fail "k did not keep the comment"
+# saved and unchanged since: no question
+keys s
+sleep 0.5
+screen | grep -q "Before saving" && fail "saving again asked about the comment just kept"
+wait_for "saved kept.nilstep"
+keys q
+wait_for "EXIT=0"
+
+# N shows and edits them; what was shown is saved without a question
+cat >"$tmp/noted.nilstep" <<'END'
+nilstep session 1
+# Heisenberg doubling, as first written.
+title   Noted
+group   heisenberg(1)
+class   2
+map     x1 -> x1^2, y1 -> y1, z -> z^2
+note    the first note
+END
+start 80 24 noted.nilstep
+wait_for "Noted" 30
+keys e C-u
+type_text "x1^2 y1"
+keys Enter
+wait_for "image of x1 applied"
+keys N
+wait_for "Comment (the lines starting with # at the top)"
+wait_for "Heisenberg doubling, as first written."
+wait_for "the first note"
+wait_for "Written before your changes"
+keys e C-u
+type_text "Heisenberg tripling."
+keys Enter
+wait_for "Heisenberg tripling."
+keys n
+type_text "a second note"
+keys Enter
+wait_for "a second note"
+keys j d                                        # the first note goes
+wait_gone "the first note"
+keys Escape
+wait_for "Images of the generators"
+keys s
+wait_for "saved noted.nilstep"
+grep -qx '# Heisenberg tripling.' "$tmp/noted.nilstep" || fail "the edited comment was not saved"
+grep -qx 'note    a second note' "$tmp/noted.nilstep" || fail "the new note was not saved"
+grep -q 'the first note' "$tmp/noted.nilstep" && fail "the deleted note was saved"
+"$NILSTEP_BINARY" report "$tmp/noted.nilstep" >/dev/null || fail "the saved session does not load"
 keys q
 wait_for "EXIT=0"
 

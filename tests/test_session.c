@@ -1012,6 +1012,32 @@ static void kill_while_saving_should_leave_a_whole_file(void **state)
 
 /* Saving over a scenario must not lose the comment that explains it: the
  * '#' lines before the first key come back after the first line. */
+/* session_set_comments: every line reads back as a comment line. */
+static void set_comments_should_read_back_the_same(void **state)
+{
+    (void)state;
+    session_t s, t;
+    nserr_t err;
+    session_init(s);
+    session_init(t);
+    nserr_init(err);
+    parse_ok(s, example);
+    session_set_comments(s, "# kept as it is\nno hash yet  \n\n#");
+    assert_string_equal(s->comments.text, "# kept as it is\n# no hash yet\n#\n#");
+    char *out = session_get_str(s);
+    assert_int_equal(session_parse(t, out, err), NS_OK);
+    assert_string_equal(t->comments.text, s->comments.text);
+    assert_true(session_equal(s, t));
+    flint_free(out);
+    session_set_comments(s, "  ");
+    assert_null(s->comments.text);
+    session_set_comments(s, "# x");
+    session_set_comments(s, NULL);
+    assert_null(s->comments.text);
+    session_clear(s);
+    session_clear(t);
+}
+
 static void get_str_should_keep_the_leading_comment_block(void **state)
 {
     (void)state;
@@ -1093,6 +1119,7 @@ int main(void)
         cmocka_unit_test(kill_while_saving_should_leave_a_whole_file),
         cmocka_unit_test(failed_parse_should_leave_the_session_unchanged),
         cmocka_unit_test(get_str_should_keep_the_leading_comment_block),
+        cmocka_unit_test(set_comments_should_read_back_the_same),
     };
     int failed = cmocka_run_group_tests(tests, NULL, NULL);
     flint_cleanup_master(); /* FLINT's cache of big integers, for valgrind */

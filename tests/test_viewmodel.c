@@ -280,6 +280,30 @@ static void document_edits_should_undo_and_track_the_saved_state(void **state)
     viewmodel_clear(vm);
 }
 
+/* A change outside the history (a note edited, recovered work) can never
+ * be undone: undoing an older edit back to the state that was saved must
+ * not clear the dirty flag, for that change is still unsaved. */
+static void a_change_outside_the_history_should_stay_dirty(void **state)
+{
+    (void)state;
+    viewmodel_t vm;
+    setup3(vm);
+    viewmodel_mark_saved(vm);
+    assert_int_equal(viewmodel_set_image(vm, 0, "a^3"), 1);
+    viewmodel_mark_dirty(vm);
+    assert_int_equal(viewmodel_undo(vm), 1);
+    assert_int_equal(vm->dirty, 1);
+    assert_int_equal(viewmodel_redo(vm), 1);
+    assert_int_equal(vm->dirty, 1);
+    viewmodel_mark_saved(vm); /* until it is saved */
+    assert_int_equal(vm->dirty, 0);
+    assert_int_equal(viewmodel_undo(vm), 1);
+    assert_int_equal(vm->dirty, 1);
+    assert_int_equal(viewmodel_redo(vm), 1);
+    assert_int_equal(vm->dirty, 0);
+    viewmodel_clear(vm);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -288,6 +312,7 @@ int main(void)
         cmocka_unit_test(editing_should_record_undo_and_mark_dirty),
         cmocka_unit_test(the_undo_history_should_be_bounded),
         cmocka_unit_test(document_edits_should_undo_and_track_the_saved_state),
+        cmocka_unit_test(a_change_outside_the_history_should_stay_dirty),
         cmocka_unit_test(new_generators_should_drop_the_history),
         cmocka_unit_test(the_map_text_should_list_every_image),
         cmocka_unit_test(error_columns_should_map_back_to_the_image),

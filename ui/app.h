@@ -46,7 +46,8 @@ typedef enum {
     SCREEN_MEMBERS,
     SCREEN_FULL,
     SCREEN_ITERATE,
-    SCREEN_BOUNDS
+    SCREEN_BOUNDS,
+    SCREEN_NOTES /* the session's comment and notes */
 } screen_id;
 
 typedef enum {
@@ -62,7 +63,9 @@ typedef enum {
     PROMPT_ITERATE,      /* an element for the iterates screen */
     PROMPT_EXPORT_KIND,  /* x: which report or the matrix (t j l m) */
     PROMPT_EXPORT,       /* the file to export to */
-    PROMPT_CONFIRM_OVERWRITE /* the export file exists: y replaces it */
+    PROMPT_CONFIRM_OVERWRITE, /* the export file exists: y replaces it */
+    PROMPT_NOTE,         /* a line of the comment or of a note */
+    PROMPT_CONFIRM_NOTES /* saving: the comment and notes predate changes */
 } prompt_kind;
 
 /* Keys: a Unicode character is its code point; a curses function key
@@ -136,6 +139,15 @@ struct explorer_app_struct {
     char edit_msg[600]; /* parse result of the text being typed */
     int edit_ok;        /* 1: it parses */
     int edit_caret;     /* 1-based column of the error in the text, 0 none */
+    /* the comment and notes (screen_notes.c) */
+    char *notes_seen;     /* owned: the document (notes_signature) when they
+                             were last shown or confirmed; NULL never */
+    int notes_were_stale; /* they were unseen when the screen opened */
+    size_t notes_sel;     /* the selected row of the notes screen */
+    int notes_top;        /* its first display row shown */
+    int notes_edit_mode;  /* PROMPT_NOTE: 'e' replace the line, 'a' add after */
+    int notes_edit_note;  /* the block: -1 the comment, else a note */
+    long notes_edit_line; /* the line in it (-1: before the first) */
     int export_kind;    /* what x writes: EXPORT_* (export.h) */
     long export_layer;  /* the layer of a matrix export (1-based) */
     char *export_typed; /* owned: the export file name as typed */

@@ -174,6 +174,9 @@ static void explorer_draw(explorer_app *app)
         case SCREEN_BOUNDS:
             screen_bounds_draw(app);
             break;
+        case SCREEN_NOTES:
+            screen_notes_draw(app);
+            break;
         }
         if (app->prompt != PROMPT_NONE)
             prompt_draw(app); /* places the cursor last */
@@ -556,6 +559,8 @@ static void explorer_adopt_parts(explorer_app *app, explorer_parts *p, analysis_
     app->group_edited = app->map_edited = app->title_edited = 0;
     explorer_adopt_analysis(app, A);
     app->screen = SCREEN_MAIN;
+    /* the file's comment and notes were written for what it holds */
+    notes_mark_seen(app);
 }
 
 /* The document for presentation G (text) and class cls: every generator
@@ -882,6 +887,12 @@ static void explorer_do_save(explorer_app *app)
         prompt_open(app, PROMPT_SAVE_AS, "");
         return;
     }
+    if (notes_unseen(app)) {
+        /* never save a comment or notes the user has not seen since the
+         * session changed: ask (the path waits in pending_path) */
+        prompt_open(app, PROMPT_CONFIRM_NOTES, "");
+        return;
+    }
     nserr_t err;
     nserr_init(err);
     session_t s;
@@ -899,6 +910,7 @@ static void explorer_do_save(explorer_app *app)
     } else {
         session_swap(app->doc, s);
         viewmodel_mark_saved(app->vm);
+        notes_mark_seen(app); /* the file now holds them with this session */
         explorer_drop_recovery(app);
         if (app->pending_path) {
             free(app->path);
@@ -982,6 +994,8 @@ static const ui_keymap *explorer_keymap(const explorer_app *app)
         return screen_iterate_keys();
     case SCREEN_BOUNDS:
         return screen_bounds_keys();
+    case SCREEN_NOTES:
+        return screen_notes_keys();
     case SCREEN_MAIN:
         break;
     }
@@ -1045,7 +1059,13 @@ static void explorer_do_restore(explorer_app *app)
         goto done;
     }
     session_swap(app->doc, app->recovered);
+    /* the comment and notes were seen with the file, not with the changes
+     * the copy brings back: keep what was seen */
+    char *seen = app->notes_seen;
+    app->notes_seen = NULL;
     explorer_adopt_parts(app, &p, B);
+    free(app->notes_seen);
+    app->notes_seen = seen;
     viewmodel_set_cursor(app->vm, app->doc->cursor_layer, app->doc->cursor_image);
     viewmodel_mark_dirty(app->vm);
     app->group_edited = app->map_edited = app->title_edited = 1;
@@ -1205,6 +1225,7 @@ static void explorer_app_clear(explorer_app *app)
     free(app->pending_group);
     free(app->pending_path);
     free(app->export_typed);
+    free(app->notes_seen);
     free(app->retry_group);
 }
 

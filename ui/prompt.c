@@ -33,7 +33,8 @@ static char *prompt_strdup(const char *s)
 static int prompt_is_text(prompt_kind k)
 {
     return k == PROMPT_IMAGE || k == PROMPT_GROUP || k == PROMPT_TITLE || k == PROMPT_SAVE_AS ||
-           k == PROMPT_OPEN || k == PROMPT_ITERATE || k == PROMPT_EXPORT;
+           k == PROMPT_OPEN || k == PROMPT_ITERATE || k == PROMPT_EXPORT ||
+           k == PROMPT_NOTE;
 }
 
 /* Prompts that take a file name: "~" expands, Tab completes. */
@@ -154,6 +155,13 @@ void prompt_check(explorer_app *app)
         break;
     case PROMPT_ITERATE:
         screen_iterate_check_word(app, text);
+        break;
+    case PROMPT_NOTE:
+        snprintf(app->edit_msg, sizeof app->edit_msg, "%s",
+                 app->notes_edit_note >= 0 && text[strspn(text, " \t")] == '\0'
+                     ? (app->notes_edit_mode == 'e' ? "Enter removes this empty line, Esc leaves it"
+                                                    : "type the line; Esc leaves the note as it was")
+                     : "Enter sets the line (saved with the session), Esc leaves it");
         break;
     case PROMPT_SAVE_AS:
     case PROMPT_EXPORT:
@@ -282,6 +290,15 @@ static void prompt_label(explorer_app *app, char *label, size_t n, char *prefix,
         snprintf(label, n, "Write %s to", export_kind_name(app->export_kind, app->export_layer));
         snprintf(prefix, pn, "file ");
         break;
+    case PROMPT_NOTE:
+        if (app->notes_edit_note < 0) {
+            snprintf(label, n, "A line of the comment at the top of the file");
+            snprintf(prefix, pn, "# ");
+        } else {
+            snprintf(label, n, "A line of note %d", app->notes_edit_note + 1);
+            snprintf(prefix, pn, "note ");
+        }
+        break;
     case PROMPT_ITERATE:
         snprintf(label, n, "Element to iterate (a word in the generators)");
         snprintf(prefix, pn, "w = ");
@@ -290,6 +307,87 @@ static void prompt_label(explorer_app *app, char *label, size_t n, char *prefix,
         label[0] = prefix[0] = '\0';
         break;
     }
+}
+
+/* Appends the lines of text (split at '\n'), each wrapped at blanks to w
+ * cells and indented by two, to t. */
+static void prompt_wrap_into(paint_lines *t, paint_role role, const char *text, int w)
+{
+    const char *s = text;
+    while (s && *s) {
+        const char *e = strchr(s, '\n');
+        size_t len = e ? (size_t)(e - s) : strlen(s);
+        char *line = malloc(len + 1);
+        if (line == NULL)
+            abort();
+        memcpy(line, s, len);
+        line[len] = '\0';
+        const char *p = line;
+        do {
+            size_t take = strlen(p);
+            if (lineedit_utf8_ncols(p) > (size_t)w) {
+                take = lineedit_utf8_offset(p, (size_t)w);
+                size_t b = take;
+                while (b > 0 && p[b] != ' ')
+                    b--;
+                if (b > 0)
+                    take = b;
+            }
+            paint_lines_add(t, role, "  %.*s", (int)take, p);
+            p += take;
+            while (*p == ' ')
+                p++;
+        } while (*p);
+        free(line);
+        s = e ? e + 1 : NULL;
+    }
+}
+
+/* Before a save: the comment and notes, which were written before the
+ * changes since they were last seen, shown whole (as far as the screen
+ * goes), with the choice. */
+static void prompt_draw_notes_question(explorer_app *app)
+{
+    paint_lines t = {0};
+    const session_struct *d = app->doc;
+    int w = COLS - 4;
+    if (d->comments.text && d->comments.text[0]) {
+        paint_lines_add(&t, ROLE_HEADING, "Comment at the top of the file:");
+        prompt_wrap_into(&t, ROLE_NORMAL, d->comments.text, w);
+    }
+    for (slong i = 0; i < d->nnotes; i++)
+        if (d->notes[i].text && d->notes[i].text[0]) {
+            paint_lines_add(&t, ROLE_HEADING, "Note %ld:", (long)(i + 1));
+            prompt_wrap_into(&t, ROLE_NORMAL, d->notes[i].text, w);
+        }
+    /* rows 1 .. LINES-3: a bar, the text, the question */
+    int room = LINES - 3 - 2;
+    int shown = t.n <= room ? t.n : room - 1;
+    int y = LINES - 2 - (shown + (shown < t.n) + 2);
+    paint_fill(y, 0, COLS, ROLE_BAR);
+    paint_text(y, 1, COLS - 1, ROLE_BAR,
+               "Before saving: this was written before your changes. Does it still hold?");
+    for (int i = 0; i < shown; i++) {
+        paint_fill(y + 1 + i, 0, COLS, ROLE_NORMAL);
+        paint_text(y + 1 + i, 1, COLS - 1, t.v[i].role, t.v[i].text);
+    }
+    int q = y + 1 + shown;
+    if (shown < t.n) {
+        paint_fill(q, 0, COLS, ROLE_NORMAL);
+        paint_textf(q++, 1, COLS - 1, ROLE_MARKER,
+                    "... %d more lines: any other key, then N shows them all", t.n - shown);
+    }
+    paint_fill(q, 0, COLS, ROLE_NORMAL);
+    paint_text(q, 1, COLS - 1, ROLE_MARKER,
+               "k keeps it as it is, d drops all of it, any other key: not saved.");
+    paint_fill(LINES - 1, 0, COLS, ROLE_NORMAL);
+    int hx = paint_text(LINES - 1, 0, COLS, ROLE_KEY, "k");
+    hx += paint_text(LINES - 1, hx, COLS - hx, ROLE_NORMAL, " keep and save  ");
+    hx += paint_text(LINES - 1, hx, COLS - hx, ROLE_KEY, "d");
+    hx += paint_text(LINES - 1, hx, COLS - hx, ROLE_NORMAL, " drop and save  ");
+    hx += paint_text(LINES - 1, hx, COLS - hx, ROLE_KEY, "other keys");
+    paint_text(LINES - 1, hx, COLS - hx, ROLE_NORMAL, " do not save");
+    paint_lines_free(&t);
 }
 
 void prompt_draw(explorer_app *app)
@@ -323,6 +421,10 @@ void prompt_draw(explorer_app *app)
                    app->prompt == PROMPT_CONFIRM_QUIT
                        ? "Quit without saving? y quits; any other key stays (then s saves)."
                        : "Open another file without saving? y goes on; any other key stays.");
+        return;
+    }
+    if (app->prompt == PROMPT_CONFIRM_NOTES) {
+        prompt_draw_notes_question(app);
         return;
     }
     if (app->prompt == PROMPT_EXPORT_KIND || app->prompt == PROMPT_CONFIRM_OVERWRITE) {
@@ -617,6 +719,9 @@ static int prompt_apply_kind(explorer_app *app, prompt_kind kind, const char *te
         return ACT_SAVE | ACT_REDRAW;
     case PROMPT_EXPORT:
         return prompt_export_to(app, text, path);
+    case PROMPT_NOTE:
+        notes_apply_edit(app, text);
+        return ACT_REDRAW;
     case PROMPT_ITERATE:
         screen_iterate_set_word(app, text);
         return ACT_REDRAW;
@@ -706,6 +811,23 @@ int prompt_key(explorer_app *app, int key)
         if (kind == PROMPT_CONFIRM_QUIT)
             return ACT_QUIT;
         prompt_open(app, PROMPT_OPEN, "");
+        return ACT_REDRAW;
+    }
+    if (app->prompt == PROMPT_CONFIRM_NOTES) {
+        app->prompt = PROMPT_NONE;
+        if (key == 'k' || key == 'K') {
+            notes_mark_seen(app);
+            return ACT_SAVE | ACT_REDRAW;
+        }
+        if (key == 'd' || key == 'D') {
+            session_set_comments(app->doc, NULL);
+            session_clear_notes(app->doc);
+            viewmodel_mark_dirty(app->vm);
+            return ACT_SAVE | ACT_REDRAW;
+        }
+        free(app->pending_path);
+        app->pending_path = NULL;
+        app_status(app, 0, "not saved; N shows the comment and notes, s saves");
         return ACT_REDRAW;
     }
     if (app->prompt == PROMPT_EXPORT_KIND) {

@@ -21,7 +21,8 @@ static int help_collect(help_line *out, int cap)
     const ui_keymap *maps[] = {screen_main_keys(),    screen_layer_keys(),
                                prompt_keys(),         screen_members_keys(),
                                screen_full_keys(),    screen_iterate_keys(),
-                               screen_bounds_keys(),  screen_help_keys()};
+                               screen_bounds_keys(),  screen_notes_keys(),
+                               screen_help_keys()};
     int n = 0;
 #define HELP_PUT(k, t)         \
     do {                       \

@@ -825,6 +825,9 @@ static const ui_binding main_bindings[] = {
     {'t', act_edit_title, "t", "edit the title of the session", NULL},
     {'w', act_save_as, "w", "save as: write the session to a new path", NULL},
     {'o', act_open, "o", "open another session file", NULL},
+    {'N', screen_notes_open, "N",
+     "the session's comment (# lines at the top of its file) and notes: read and edit them",
+     NULL},
     {'x', prompt_act_export, "x",
      "export to a file: the report (text, JSON or LaTeX, as nilstep report writes it) or the "
      "selected layer's matrix",

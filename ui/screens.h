@@ -59,6 +59,20 @@ void screen_bounds_draw(explorer_app *app);
 const ui_keymap *screen_bounds_keys(void);
 char **screen_charts_eigen_rows(const explorer_app *app, slong j, int w, int h, int *nrows);
 
+/* The session's comment and notes (screen_notes.c).  _signature is the
+ * document as the comment and notes are judged against (title,
+ * presentation, class, images; free()); _mark_seen records the current
+ * one as seen; _unseen says there is comment or note text and the
+ * document changed since it was last seen; _open enters the screen (a key
+ * action); _apply_edit applies PROMPT_NOTE's text. */
+void screen_notes_draw(explorer_app *app);
+const ui_keymap *screen_notes_keys(void);
+char *notes_signature(const explorer_app *app);
+void notes_mark_seen(explorer_app *app);
+int notes_unseen(const explorer_app *app);
+int screen_notes_open(explorer_app *app);
+void notes_apply_edit(explorer_app *app, const char *text);
+
 /* Draws the prompt over the bottom of the frame. */
 void prompt_draw(explorer_app *app);
 /* Handles one key while a prompt is open; returns ACT_* flags. */

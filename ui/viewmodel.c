@@ -301,8 +301,11 @@ int viewmodel_drop_last(viewmodel_t vm)
 
 void viewmodel_mark_dirty(viewmodel_t vm)
 {
-    /* a change outside the history: a state no undo comes back to */
+    /* a change outside the history: a state no undo comes back to, and
+     * no undo can take it back, so no state in the history is the saved
+     * one any more (until the next save) */
     vm->state = ++vm->next_state;
+    vm->saved_state = (unsigned long)-1;
     vm->dirty = 1;
 }
 
