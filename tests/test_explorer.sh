@@ -240,6 +240,8 @@ type_text "y^2"
 keys Enter
 wait_for "16.0 U"
 keys j j s
+wait_for "Before saving"       # the file's comment predates the change: shown, kept
+keys k
 wait_for "saved copy.nilstep"
 grep -q '^map .*y -> y^2' "$tmp/copy.nilstep" || fail "the saved map lacks the new image"
 grep -q '^cursor *layer 3 image 2' "$tmp/copy.nilstep" || fail "the saved cursor is not layer 3, image 2"
@@ -489,6 +491,8 @@ keys t C-u
 type_text "Bigger"
 keys Enter
 keys s
+wait_for "Before saving"       # the notes predate the new title: keep them
+keys k
 wait_for "not saved"
 wait_for "too large"
 wait_for "[modified]"

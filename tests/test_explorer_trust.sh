@@ -181,6 +181,8 @@ wait_for "rows"
 keys w C-u
 type_text "$tmp/a-rather-long-file-name-so-that-the-message-fills-the-line.nilstep"
 keys Enter
+wait_for "Before saving"       # the scenario's comment predates the class change
+keys k
 wait_for "saved"
 keys Enter
 wait_for "Basis of the free part"
