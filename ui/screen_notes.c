@@ -377,6 +377,8 @@ void screen_notes_draw(explorer_app *app)
             char head[96];
             if (r[i].note < 0)
                 snprintf(head, sizeof head, "Comment (the lines starting with # at the top)");
+            else if (r[i].line < 0)
+                snprintf(head, sizeof head, "Notes");
             else
                 snprintf(head, sizeof head, "Note %d", r[i].note + 1);
             if (row - app->notes_top >= 0 && row - app->notes_top < avail)
