@@ -9,6 +9,19 @@
  * of the formula's rank and the class was reached, 1 otherwise or when
  * parsing or nq_compute fails (the error goes to stderr).
  *
+ * A floor measured in the same run (issue 10), only when the environment
+ * has NILSTEP_BENCH_FLOOR=1 (bench/run-bench runs each bench_nq_* program
+ * a second time so, after the timed run, whose whole-process figures the
+ * floor must not touch): the relation matrix of the last class step
+ * (nq_tail_relations_get_mat), its rank mod the word-size prime
+ * n_nextprime(2^62) by FLINT's nmod_mat_rank, and the ratios (the last
+ * step's elimination) / floor and (the whole nq_compute) / floor, all CPU
+ * seconds of this one process, with the 1-minute load average.  The
+ * elimination is timed through the progress hook's stages ("class c:
+ * elimination" up to "class c: new presentation").  Matrices of more than
+ * NILSTEP_BENCH_FLOOR_CAP entries (default 16,000,000) are not built and
+ * the floor is reported as skipped.
+ *
  * Header-only: each benchmark is a program of its own. */
 #ifndef NILSTEP_BENCH_NQ_COMMON_H
 #define NILSTEP_BENCH_NQ_COMMON_H
@@ -16,6 +29,11 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <time.h>
+
+#include <string.h>
+
+#include <flint/nmod_mat.h>
+#include <flint/ulong_extras.h>
 
 #include "nq.h"
 
@@ -88,6 +106,94 @@ static inline void labute_rank(fmpz_t out, ulong g, ulong n)
     fmpz_clear(b);
 }
 
+static inline double bench_cpu_seconds(void)
+{
+    return (double)clock() / CLOCKS_PER_SEC;
+}
+
+static inline double bench_load1(void)
+{
+    double l = -1;
+    FILE *f = fopen("/proc/loadavg", "r");
+    if (f) {
+        if (fscanf(f, "%lf", &l) != 1)
+            l = -1;
+        fclose(f);
+    }
+    return l;
+}
+
+/* The progress hook's context: the CPU time spent in the elimination of
+ * the latest class step seen. */
+typedef struct {
+    int in_elim;
+    double t_start, t_elim;
+} bench_nq_clock;
+
+static inline int bench_nq_stage(void *vctx, const char *stage, double fraction)
+{
+    (void)fraction;
+    bench_nq_clock *k = vctx;
+    if (!stage)
+        return 0;
+    double t = bench_cpu_seconds();
+    if (k->in_elim) {
+        k->t_elim = t - k->t_start;
+        k->in_elim = 0;
+    }
+    size_t n = strlen(stage), m = strlen(": elimination");
+    if (n >= m && strcmp(stage + n - m, ": elimination") == 0) {
+        k->in_elim = 1;
+        k->t_start = t;
+    }
+    return 0;
+}
+
+/* With NILSTEP_BENCH_FLOOR=1, prints the floor and the ratios (see the top
+ * of this file); otherwise nothing. */
+static inline void bench_nq_floor(const nq_t Q, double t_nq,
+                                  const bench_nq_clock *k)
+{
+    const char *want = getenv("NILSTEP_BENCH_FLOOR");
+    if (!want || strcmp(want, "1") != 0)
+        return;
+    if (Q->class_reached < 2) {
+        printf("  floor: no class step\n");
+        return;
+    }
+    slong cap = 16000000;
+    const char *e = getenv("NILSTEP_BENCH_FLOOR_CAP");
+    if (e && atol(e) > 0)
+        cap = atol(e);
+    slong c = Q->class_reached - 1;
+    fmpz_mat_t R;
+    nserr_t err;
+    nserr_init(err);
+    fmpz_mat_init(R, 0, 0);
+    if (nq_tail_relations_get_mat(R, Q, c, cap, err) != NS_OK) {
+        printf("  floor: skipped (%s)\n", err->msg);
+        fmpz_mat_clear(R);
+        nserr_clear(err);
+        return;
+    }
+    mp_limb_t p = n_nextprime(UWORD(1) << 62, 1);
+    nmod_mat_t M;
+    nmod_mat_init(M, fmpz_mat_nrows(R), fmpz_mat_ncols(R), p);
+    fmpz_mat_get_nmod_mat(M, R);
+    double t0 = bench_cpu_seconds();
+    slong r = nmod_mat_rank(M);
+    double fl = bench_cpu_seconds() - t0;
+    nmod_mat_clear(M);
+    double flr = fl > 1e-6 ? fl : 1e-6; /* clock() ticks; avoid dividing by 0 */
+    printf("  floor %.4f s, ratio %.3g (elimination %.4f s), ratio %.3g (nq_compute %.3f s), "
+           "load %.2f; rank %ld of the %ld x %ld relations of step %ld -> %ld mod "
+           "n_nextprime(2^62)\n",
+           fl, k->t_elim / flr, k->t_elim, t_nq / flr, t_nq, bench_load1(), (long)r,
+           (long)fmpz_mat_nrows(R), (long)fmpz_mat_ncols(R), (long)c, (long)(c + 1));
+    fmpz_mat_clear(R);
+    nserr_clear(err);
+}
+
 /* One benchmark: the group, the class, and the formula its layers follow. */
 typedef struct {
     const char *program; /* prefix of every line printed */
@@ -99,11 +205,6 @@ typedef struct {
     ulong param;                                    /* the formula's parameter: rank or genus */
     int coords; /* 1: also the layer coordinates every report needs (layer.h) */
 } bench_nq_case;
-
-static inline double bench_cpu_seconds(void)
-{
-    return (double)clock() / CLOCKS_PER_SEC;
-}
 
 static inline int bench_nq_run(const bench_nq_case *b)
 {
@@ -117,8 +218,10 @@ static inline int bench_nq_run(const bench_nq_case *b)
         fprintf(stderr, "%s: %s\n", b->program, err->msg);
         return 1;
     }
+    bench_nq_clock k = {0, 0, 0};
+    ns_progress_t prog = {bench_nq_stage, &k};
     double t0 = bench_cpu_seconds();
-    ns_status st = nq_compute(Q, p, b->c, NULL, err);
+    ns_status st = nq_compute(Q, p, b->c, &prog, err);
     double t1 = bench_cpu_seconds();
     if (st != NS_OK) {
         fprintf(stderr, "%s: nq_compute: %s\n", b->program, err->msg);
@@ -143,6 +246,7 @@ static inline int bench_nq_run(const bench_nq_case *b)
     }
     printf("\n  %ld pc generators, nq_compute %.3f s CPU%s\n", (long)Q->pcp->n, t1 - t0,
            ok ? "" : "  MISMATCH");
+    bench_nq_floor(Q, t1 - t0, &k);
     if (b->coords) {
         t0 = bench_cpu_seconds();
         for (slong j = 0; j < Q->nlayers; j++)
@@ -173,8 +277,10 @@ static inline int bench_nq_run_2group(const char *program, const char *text, slo
         fprintf(stderr, "%s: %s\n", program, err->msg);
         return 1;
     }
+    bench_nq_clock k = {0, 0, 0};
+    ns_progress_t prog = {bench_nq_stage, &k};
     double t0 = bench_cpu_seconds();
-    ns_status st = nq_compute(Q, p, c, NULL, err);
+    ns_status st = nq_compute(Q, p, c, &prog, err);
     double t1 = bench_cpu_seconds();
     if (st != NS_OK) {
         fprintf(stderr, "%s: nq_compute: %s\n", program, err->msg);
@@ -200,6 +306,7 @@ static inline int bench_nq_run_2group(const char *program, const char *text, slo
         printf(" %ld", (long)log2_order[j]);
     printf("\n  %ld pc generators, nq_compute %.3f s CPU%s\n", (long)Q->pcp->n, t1 - t0,
            ok ? "" : "  MISMATCH");
+    bench_nq_floor(Q, t1 - t0, &k);
     nq_clear(Q);
     pres_clear(p);
     return ok ? 0 : 1;

@@ -202,9 +202,12 @@ static void abelian_exponent(fmpz_t m, const pcp_struct *P)
     fmpz_mat_clear(S);
 }
 
+typedef struct step_struct step_struct;
+static void step_add_relation(step_struct *S, const fmpz *row);
+
 typedef struct {
     slong n, T;
-    elim_struct *E;
+    step_struct *S;
     fmpz *row;
     int bad;
 } cons_ctx;
@@ -218,13 +221,13 @@ static int cons_row(void *vctx, const fmpz *l, const fmpz *r)
     }
     _fmpz_vec_sub(c->row, l + c->n, r + c->n, c->T);
     if (!_fmpz_vec_is_zero(c->row, c->T))
-        elim_add_dense(c->E, c->row);
+        step_add_relation(c->S, c->row);
     return 0;
 }
 
 /* The state of one step c -> c+1, shared by its phases.  Each phase
  * reads what the earlier ones left here; step_clear frees whatever exists. */
-typedef struct {
+struct step_struct {
     slong c;            /* the class of the presentation being extended */
     slong n, X, nslots; /* pc generators, input generators, conjugate slots */
     /* the tails: one new central generator per relation that is not a
@@ -241,7 +244,36 @@ typedef struct {
     /* the relation lattice on the tails and its quotient */
     elim_t L;
     elim_quotient_t q;
-} step_struct;
+    /* nq_tail_relations_get_mat only: every relation is also kept here,
+     * densely (nrows x T), and not put into L */
+    int keep;
+    slong nrows, arows;
+    fmpz *rows;
+    slong max_entries;  /* > 0: rows beyond this many entries are only counted */
+    int over;           /* 1: some were */
+};
+
+static void step_add_relation(step_struct *S, const fmpz *row)
+{
+    if (!S->keep) {
+        elim_add_dense(S->L, row);
+        return;
+    }
+    slong T = S->T;
+    if (S->max_entries > 0 && S->nrows + 1 > S->max_entries / FLINT_MAX(T, 1)) {
+        S->nrows++; /* over the cap: counted for the message, not kept */
+        S->over = 1;
+        return;
+    }
+    if (S->nrows == S->arows) {
+        slong a = FLINT_MAX(16, 2 * S->arows);
+        S->rows = flint_realloc(S->rows, a * T * sizeof(fmpz));
+        memset(S->rows + S->arows * T, 0, (a - S->arows) * T * sizeof(fmpz));
+        S->arows = a;
+    }
+    _fmpz_vec_set(S->rows + S->nrows * T, row, T);
+    S->nrows++;
+}
 
 static void step_init(step_struct *S, const nq_t Q, slong c)
 {
@@ -262,6 +294,9 @@ static void step_init(step_struct *S, const nq_t Q, slong c)
 
 static void step_clear(step_struct *S)
 {
+    if (S->rows) {
+        _fmpz_vec_clear(S->rows, S->arows * S->T);
+    }
     elim_quotient_clear(S->q);
     elim_clear(S->L);
     if (S->img)
@@ -404,7 +439,7 @@ static ns_status step_tail_relations(step_struct *S, const nq_t Q, pcp_work_t W,
     }
     if (progress_stage(prog, c + 1, "consistency", 0.3))
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
-    cons_ctx cc = {n, T, S->L, _fmpz_vec_init(FLINT_MAX(T, 1)), 0};
+    cons_ctx cc = {n, T, S, _fmpz_vec_init(FLINT_MAX(T, 1)), 0};
     int rc = pcp_consistency_run(S->E, W, cons_row, &cc);
     _fmpz_vec_clear(cc.row, FLINT_MAX(T, 1));
     if (rc < 0)
@@ -429,7 +464,7 @@ static ns_status step_tail_relations(step_struct *S, const nq_t Q, pcp_work_t W,
             break;
         }
         if (!_fmpz_vec_is_zero(val + n, T))
-            elim_add_dense(S->L, val + n);
+            step_add_relation(S, val + n);
     }
     _fmpz_vec_clear(val, N);
     return st;
@@ -887,6 +922,52 @@ ns_status nq_set_class(nq_t Q, const nq_t from, slong c, slong max_pc,
         return st;
     }
     compute_layers(Q);
+    return st;
+}
+
+ns_status nq_tail_relations_get_mat(fmpz_mat_t R, const nq_t Q, slong c, slong max_entries,
+                                    nserr_t err)
+{
+    fmpz_mat_clear(R);
+    fmpz_mat_init(R, 0, 0);
+    if (c < 1 || c >= Q->class_reached)
+        return nserr_set(err, NS_ERR_INPUT, 0, 0,
+                         "no step %ld -> %ld in a quotient of class %ld", (long)c,
+                         (long)(c + 1), (long)Q->class_reached);
+    nq_t P; /* the class-c prefix: instant, no collection (nq_set_class) */
+    nq_init(P);
+    ns_status st = nq_set_class(P, Q, c, 0, NULL, err);
+    if (st != NS_OK) {
+        nq_clear(P);
+        return st;
+    }
+    pcp_work_t W;
+    pcp_work_init(W, P->pcp);
+    step_struct S;
+    step_init(&S, P, c);
+    S.keep = 1;
+    S.max_entries = max_entries;
+    st = step_plan_tails(&S, P, err);
+    if (st == NS_OK)
+        st = step_tailed_presentation(&S, P, W, err);
+    if (st == NS_OK)
+        st = step_tail_relations(&S, P, W, NULL, err);
+    if (st == NS_OK && max_entries > 0 && S.over)
+        st = nserr_set(err, NS_ERR_LIMIT, 0, 0,
+                       "the relation matrix of step %ld -> %ld has %ld x %ld entries "
+                       "(cap %ld)",
+                       (long)c, (long)(c + 1), (long)S.nrows, (long)S.T, (long)max_entries);
+    if (st == NS_OK) {
+        fmpz_mat_clear(R);
+        fmpz_mat_init(R, S.nrows, S.T);
+        for (slong i = 0; i < S.nrows; i++)
+            for (slong j = 0; j < S.T; j++)
+                fmpz_swap(fmpz_mat_entry(R, i, j), S.rows + i * S.T + j);
+    }
+    W->P = P->pcp;
+    step_clear(&S);
+    pcp_work_clear(W);
+    nq_clear(P);
     return st;
 }
 

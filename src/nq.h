@@ -27,6 +27,8 @@
 #ifndef NILSTEP_NQ_H
 #define NILSTEP_NQ_H
 
+#include <flint/fmpz_mat.h>
+
 #include "layer.h"
 #include "pcp.h"
 #include "pres.h"
@@ -80,6 +82,22 @@ ns_status nq_compute_max(nq_t Q, const pres_t G, slong c, slong max_pc,
  * same partial result on NS_ERR_LIMIT.  from is only read; Q != from. */
 ns_status nq_set_class(nq_t Q, const nq_t from, slong c, slong max_pc,
                        const ns_progress_t *progress, nserr_t err);
+
+/* The relation matrix of the step c -> c+1 (1 <= c < Q->class_reached),
+ * as the engine builds it before elimination: one row per nonzero linear
+ * relation between the tails (consistency tests, then relators), one
+ * column per tail in the engine's order (power, image and conjugate tails,
+ * the commutator tails [a_k, a_i], weight(a_k) = c, weight(a_i) = 1, last).
+ * When the abelianisation is finite of exponent m, m Z^cols also belongs
+ * to the lattice and is not among the rows.  For benchmarks (a floor to
+ * compare the elimination with) and tests; the step's collection is
+ * repeated, on the class-c prefix of Q.  R must be initialised; it is
+ * replaced, and owned by the caller as before.  max_entries > 0 refuses
+ * (NS_ERR_LIMIT, R left 0 x 0) a matrix with more entries than that,
+ * without allocating it; <= 0 means no cap.  Other errors: NS_ERR_INPUT
+ * for c out of range. */
+ns_status nq_tail_relations_get_mat(fmpz_mat_t R, const nq_t Q, slong c, slong max_entries,
+                                    nserr_t err);
 
 /* Evaluates a word in the input generators in the quotient; out has
  * Q->pcp->n entries.  Returns NS_OK, or NS_ERR_CANCELLED when progress

@@ -37,6 +37,10 @@
 #include <stdio.h>
 #include <string.h>
 
+#include <flint/fmpz_mat.h>
+#include <flint/nmod_mat.h>
+#include <flint/ulong_extras.h>
+
 #include "nq.h"
 #include "testutil.h"
 
@@ -1123,6 +1127,76 @@ static void limit_refuses_before_the_work(void **state)
     pres_clear(p);
 }
 
+/* nq.h: nq_tail_relations_get_mat hands out the relation matrix of a class
+ * step as the engine builds it.  For a free group every tail relation
+ * comes from a consistency test (there are no relators), no power or image
+ * tail exists, and the quotient of the tails by the relations is the new
+ * layer, free of the rank [Witt] gives; so the matrix has one column per
+ * commutator tail and rank (columns) - (Witt rank of layer c+1), over Q
+ * and mod any prime (the quotient has no torsion).  The tail count follows
+ * nq.h: in step c -> c+1 every [a_k, a_i] with a_k of weight c and a_i of
+ * weight 1, and every other pair of weight <= c+1 that is not a definition.
+ *   free(2), step 3 -> 4: pc generators a, b, [b,a], [b,a,a], [b,a,b];
+ *     the pairs of weight <= 4 that are not definitions are the four
+ *     (weight 3, weight 1) pairs: 4 columns, Witt rank of layer 4 =
+ *     (2^4 - 2^2)/4 = 3, so rank 1 (the Jacobi identity).
+ *   free(3), step 2 -> 3: nine (weight 2, weight 1) pairs, Witt rank of
+ *     layer 3 = (3^3 - 3)/3 = 8, so rank 1.
+ *   free(2), step 4 -> 5: weights 1,1,2,3,3,4,4,4; six (weight 4,
+ *     weight 1) pairs, the two (weight 3, weight 2) pairs, and of the four
+ *     (weight 3, weight 1) pairs the one that defines no generator of
+ *     layer 4: 9 columns, Witt rank of layer 5 = (2^5 - 2)/5 = 6, rank 3.
+ * A matrix cut by the entry cap is refused with NS_ERR_LIMIT. */
+static slong rank_mod_word_prime(const fmpz_mat_t R)
+{
+    mp_limb_t p = n_nextprime(UWORD(1) << 62, 1);
+    nmod_mat_t M;
+    nmod_mat_init(M, fmpz_mat_nrows(R), fmpz_mat_ncols(R), p);
+    fmpz_mat_get_nmod_mat(M, R);
+    slong r = nmod_mat_rank(M);
+    nmod_mat_clear(M);
+    return r;
+}
+
+static void tail_relations_have_witt_rank(void **state)
+{
+    (void)state;
+    static const struct {
+        const char *text;
+        slong c, cols, witt; /* step c -> c+1; columns; [Witt] rank of layer c+1 */
+    } cases[] = {
+        {"<a, b>", 3, 4, 3},
+        {"<a, b, c>", 2, 9, 8},
+        {"<a, b>", 4, 9, 6},
+    };
+    nserr_t err;
+    nserr_init(err);
+    for (size_t t = 0; t < sizeof cases / sizeof cases[0]; t++) {
+        pres_t p;
+        pres_init(p);
+        parse_pres_or_fail(p, cases[t].text);
+        nq_t Q;
+        nq_init(Q);
+        assert_int_equal(nq_compute(Q, p, cases[t].c + 1, NULL, err), NS_OK);
+        fmpz_mat_t R;
+        fmpz_mat_init(R, 0, 0);
+        assert_int_equal(nq_tail_relations_get_mat(R, Q, cases[t].c, 0, err), NS_OK);
+        assert_int_equal(fmpz_mat_ncols(R), cases[t].cols);
+        assert_true(fmpz_mat_nrows(R) > 0);
+        assert_int_equal(rank_mod_word_prime(R), fmpz_mat_ncols(R) - cases[t].witt);
+        assert_int_equal(fmpz_mat_rank(R), fmpz_mat_ncols(R) - cases[t].witt);
+        /* a cap below the size is refused */
+        assert_int_equal(nq_tail_relations_get_mat(R, Q, cases[t].c, 1, err), NS_ERR_LIMIT);
+        /* steps outside the quotient are input errors */
+        assert_int_equal(nq_tail_relations_get_mat(R, Q, cases[t].c + 1, 0, err), NS_ERR_INPUT);
+        assert_int_equal(nq_tail_relations_get_mat(R, Q, 0, 0, err), NS_ERR_INPUT);
+        fmpz_mat_clear(R);
+        nq_clear(Q);
+        pres_clear(p);
+    }
+    nserr_clear(err);
+}
+
 int main(int argc, char **argv)
 {
     if (argc > 1 && strcmp(argv[1], "--slow") == 0) {
@@ -1133,6 +1207,7 @@ int main(int argc, char **argv)
     }
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(set_class_is_compute),
+        cmocka_unit_test(tail_relations_have_witt_rank),
         cmocka_unit_test(witt_free_rank3_class8),
         cmocka_unit_test(two_generator_exponent_4_and_8),
         cmocka_unit_test(limit_refuses_before_the_work),
