@@ -520,6 +520,22 @@ static void no_redundant_pc_generators(void **state)
     assert_int_equal(Q->hirsch_length, 654);
     assert_int_equal(Q->pcp->n, 654);
     nq_clear(Q);
+    /* class 7: [Labute] rank 1440 (labute_rank above), torsion-free, so
+       2094 pc generators.  A relation of the layer there has coprime
+       entries but no unit (12, 8, 4, 3, 11, 5, ...), which only a
+       commutator tail that is no survivor can resolve (it used to leave
+       2095). */
+    nq_init(Q);
+    compute_quotient(Q, "surface(2)", 7);
+    fmpz_t r7;
+    fmpz_init(r7);
+    labute_rank(r7, 2, 7);
+    assert_true(fmpz_equal_si(r7, 1440));
+    fmpz_clear(r7);
+    check_layer(Q, 7, 1440, 0, NULL);
+    assert_int_equal(Q->hirsch_length, 2094);
+    assert_int_equal(Q->pcp->n, 2094);
+    nq_clear(Q);
 }
 
 /* <a, b | a^2 b^4>: the exponent-sum matrix is [2 4], so the
