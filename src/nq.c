@@ -513,6 +513,93 @@ static void row_gcd_step(fmpz *x, fmpz *y, slong n, slong c)
     fmpz_clear(t);
 }
 
+/* The survivor lattice of q brought to echelon form again over N = ns + m
+ * columns taken in the order perm: column c is the old survivor perm[c] when
+ * perm[c] < ns, else the tail J[perm[c] - ns], which enters with the
+ * relation "tail = its expression".  Every tail's expression is rewritten
+ * in the new survivors; q is replaced.  Shared by drop_redundant_survivors
+ * (m = 0: only the column order changes) and swap_in_commutator_tails. */
+static void requotient_survivors(elim_quotient_t q, const slong *perm, const slong *J, slong m)
+{
+    slong ns = q->nsurv, T = q->ncols, N = ns + m;
+    elim_t E;
+    elim_quotient_t q2;
+    elim_init(E, N);
+    elim_quotient_init(q2);
+    fmpz *v = _fmpz_vec_init(N);
+    for (slong i = 0; i < ns; i++) {
+        if (fmpz_is_zero(q->order + i))
+            continue;
+        for (slong c = 0; c < N; c++) {
+            if (perm[c] < ns)
+                fmpz_set(v + c, q->rel + i * ns + perm[c]);
+            else
+                fmpz_zero(v + c);
+        }
+        elim_add_dense(E, v);
+    }
+    for (slong x = 0; x < m; x++) {
+        for (slong c = 0; c < N; c++) {
+            if (perm[c] < ns)
+                fmpz_set(v + c, q->expr + J[x] * ns + perm[c]);
+            else if (perm[c] == ns + x)
+                fmpz_set_si(v + c, -1);
+            else
+                fmpz_zero(v + c);
+        }
+        elim_add_dense(E, v);
+    }
+    _fmpz_vec_clear(v, N);
+    elim_get_quotient(q2, E);
+    elim_clear(E);
+    slong n2 = q2->nsurv;
+    /* old survivor perm[c] = sum_k q2->expr[c][k] (new survivor k); every
+       tail's expression follows */
+    fmpz *expr = _fmpz_vec_init(FLINT_MAX(T * n2, 1));
+    for (slong c = 0; c < N; c++) {
+        slong s = perm[c];
+        if (s >= ns)
+            continue; /* the tails J have zero coordinates there */
+        const fmpz *e2 = q2->expr + c * n2;
+        for (slong t = 0; t < T; t++) {
+            const fmpz *x = q->expr + t * ns + s;
+            if (fmpz_is_zero(x))
+                continue;
+            for (slong j = 0; j < n2; j++)
+                if (!fmpz_is_zero(e2 + j))
+                    fmpz_addmul(expr + t * n2 + j, x, e2 + j);
+        }
+    }
+    slong *surv = flint_malloc(FLINT_MAX(n2, 1) * sizeof(slong));
+    for (slong j = 0; j < n2; j++) {
+        slong c = perm[q2->surv[j]];
+        surv[j] = c < ns ? q->surv[c] : J[c - ns];
+        /* a survivor's own expression is itself (for a tail of J it is
+           so only modulo the relations) */
+        _fmpz_vec_zero(expr + surv[j] * n2, n2);
+        fmpz_one(expr + surv[j] * n2 + j);
+    }
+    fmpz *order = _fmpz_vec_init(FLINT_MAX(n2, 1));
+    fmpz *rel = _fmpz_vec_init(FLINT_MAX(n2 * n2, 1));
+    _fmpz_vec_set(order, q2->order, n2);
+    _fmpz_vec_set(rel, q2->rel, n2 * n2);
+    elim_quotient_clear(q2);
+    elim_quotient_clear(q);
+    q->ncols = T;
+    q->nsurv = n2;
+    if (n2 > 0) {
+        q->surv = surv;
+        q->order = order;
+        q->rel = rel;
+        q->expr = expr;
+    } else {
+        flint_free(surv);
+        _fmpz_vec_clear(order, 1);
+        _fmpz_vec_clear(rel, 1);
+        _fmpz_vec_clear(expr, FLINT_MAX(T * n2, 1));
+    }
+}
+
 static void drop_redundant_survivors(elim_quotient_t q)
 {
     slong ns = q->nsurv, nt = 0;
@@ -521,12 +608,11 @@ static void drop_redundant_survivors(elim_quotient_t q)
     if (nt == 0)
         return;
     fmpz *rows = _fmpz_vec_init(nt * ns);
-    slong *rowof = flint_malloc(nt * sizeof(slong));
     nt = 0;
     for (slong s = 0; s < ns; s++)
         if (!fmpz_is_zero(q->order + s)) {
             _fmpz_vec_set(rows + nt * ns, q->rel + s * ns, ns);
-            rowof[nt++] = s;
+            nt++;
         }
     int *used = flint_calloc(nt, sizeof(int));
     int *gone = flint_calloc(ns, sizeof(int));
@@ -587,7 +673,6 @@ static void drop_redundant_survivors(elim_quotient_t q)
     flint_free(used);
     if (nx == 0) {
         fmpz_clear(k);
-        flint_free(rowof);
         flint_free(gone);
         flint_free(perm);
         return;
@@ -595,60 +680,8 @@ static void drop_redundant_survivors(elim_quotient_t q)
     for (slong s = 0, i = nx; s < ns; s++)
         if (!gone[s])
             perm[i++] = s;
-    /* the survivor lattice again, columns in the order perm */
-    elim_t E;
-    elim_quotient_t q2;
-    elim_init(E, ns);
-    elim_quotient_init(q2);
-    fmpz *v = _fmpz_vec_init(ns);
-    for (slong i = 0; i < nt; i++) {
-        for (slong c = 0; c < ns; c++)
-            fmpz_set(v + c, q->rel + rowof[i] * ns + perm[c]);
-        elim_add_dense(E, v);
-    }
-    elim_get_quotient(q2, E);
-    elim_clear(E);
-    slong n2 = q2->nsurv, T = q->ncols;
-    /* old survivor perm[c] = sum_k q2->expr[c][k] (new survivor k); every
-       tail's expression follows */
-    fmpz *expr = _fmpz_vec_init(FLINT_MAX(T * n2, 1));
-    for (slong c = 0; c < ns; c++) {
-        slong s = perm[c];
-        const fmpz *e2 = q2->expr + c * n2;
-        for (slong t = 0; t < T; t++) {
-            const fmpz *x = q->expr + t * ns + s;
-            if (fmpz_is_zero(x))
-                continue;
-            for (slong j = 0; j < n2; j++)
-                if (!fmpz_is_zero(e2 + j))
-                    fmpz_addmul(expr + t * n2 + j, x, e2 + j);
-        }
-    }
-    slong *surv = flint_malloc(FLINT_MAX(n2, 1) * sizeof(slong));
-    for (slong j = 0; j < n2; j++)
-        surv[j] = q->surv[perm[q2->surv[j]]];
-    fmpz *order = _fmpz_vec_init(FLINT_MAX(n2, 1));
-    fmpz *rel = _fmpz_vec_init(FLINT_MAX(n2 * n2, 1));
-    _fmpz_vec_set(order, q2->order, n2);
-    _fmpz_vec_set(rel, q2->rel, n2 * n2);
-    elim_quotient_clear(q2);
-    elim_quotient_clear(q);
-    q->ncols = T;
-    q->nsurv = n2;
-    if (n2 > 0) {
-        q->surv = surv;
-        q->order = order;
-        q->rel = rel;
-        q->expr = expr;
-    } else {
-        flint_free(surv);
-        _fmpz_vec_clear(order, 1);
-        _fmpz_vec_clear(rel, 1);
-        _fmpz_vec_clear(expr, FLINT_MAX(T * n2, 1));
-    }
-    _fmpz_vec_clear(v, ns);
+    requotient_survivors(q, perm, NULL, 0);
     fmpz_clear(k);
-    flint_free(rowof);
     flint_free(gone);
     flint_free(perm);
 }
@@ -748,73 +781,7 @@ static void swap_in_commutator_tails(elim_quotient_t q, slong first)
     for (slong c = 0; c < N; c++)
         if (c >= ns || !gone[c])
             perm[k++] = c;
-    elim_t E;
-    elim_quotient_t q2;
-    elim_init(E, N);
-    elim_quotient_init(q2);
-    fmpz *v = _fmpz_vec_init(N);
-    for (slong i = 0; i < ns; i++) {
-        if (fmpz_is_zero(q->order + i))
-            continue;
-        for (slong c = 0; c < N; c++) {
-            if (perm[c] < ns)
-                fmpz_set(v + c, q->rel + i * ns + perm[c]);
-            else
-                fmpz_zero(v + c);
-        }
-        elim_add_dense(E, v);
-    }
-    for (slong x = 0; x < m; x++) {
-        for (slong c = 0; c < N; c++) {
-            if (perm[c] < ns)
-                fmpz_set(v + c, q->expr + J[x] * ns + perm[c]);
-            else if (perm[c] == ns + x)
-                fmpz_set_si(v + c, -1);
-            else
-                fmpz_zero(v + c);
-        }
-        elim_add_dense(E, v);
-    }
-    elim_get_quotient(q2, E);
-    elim_clear(E);
-    slong n2 = q2->nsurv;
-    fmpz *expr = _fmpz_vec_init(FLINT_MAX(T * n2, 1));
-    for (slong c = 0; c < N; c++) {
-        slong s = perm[c];
-        if (s >= ns)
-            continue; /* the tails J have zero coordinates there */
-        const fmpz *e2 = q2->expr + c * n2;
-        for (slong t = 0; t < T; t++) {
-            const fmpz *x = q->expr + t * ns + s;
-            if (fmpz_is_zero(x))
-                continue;
-            for (slong j = 0; j < n2; j++)
-                if (!fmpz_is_zero(e2 + j))
-                    fmpz_addmul(expr + t * n2 + j, x, e2 + j);
-        }
-    }
-    slong *surv = flint_malloc(FLINT_MAX(n2, 1) * sizeof(slong));
-    for (slong j = 0; j < n2; j++) {
-        slong c = perm[q2->surv[j]];
-        surv[j] = c < ns ? q->surv[c] : J[c - ns];
-        /* a survivor's own expression is itself (for a tail of J it is
-           so only modulo the relations) */
-        _fmpz_vec_zero(expr + surv[j] * n2, n2);
-        fmpz_one(expr + surv[j] * n2 + j);
-    }
-    fmpz *order = _fmpz_vec_init(FLINT_MAX(n2, 1));
-    fmpz *rel = _fmpz_vec_init(FLINT_MAX(n2 * n2, 1));
-    _fmpz_vec_set(order, q2->order, n2);
-    _fmpz_vec_set(rel, q2->rel, n2 * n2);
-    elim_quotient_clear(q2);
-    elim_quotient_clear(q);
-    q->ncols = T;
-    q->nsurv = n2;
-    q->surv = surv;
-    q->order = order;
-    q->rel = rel;
-    q->expr = expr;
-    _fmpz_vec_clear(v, N);
+    requotient_survivors(q, perm, J, m);
     flint_free(perm);
     flint_free(J);
     flint_free(gs);
