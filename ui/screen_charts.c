@@ -119,18 +119,10 @@ static int act_back(explorer_app *app)
     return ACT_REDRAW;
 }
 
-static int act_help(explorer_app *app)
-{
-    app->help_return = app->screen;
-    app->screen = SCREEN_HELP;
-    app->help_scroll = 0;
-    return ACT_REDRAW;
-}
-
 static const ui_binding bounds_bindings[] = {
     {UIKEY_ESC, act_back, "Esc / q", "back to the main screen", "Esc back"},
     {'q', act_back, NULL, NULL, NULL},
-    {'?', act_help, "?", "this help", "? help"},
+    {'?', screen_help_open, "?", "this help", "? help"},
 };
 
 static const ui_keymap bounds_keymap = {"Bounds chart", bounds_bindings,

@@ -194,14 +194,6 @@ static int act_page_down(explorer_app *app)
     return ACT_REDRAW;
 }
 
-static int act_help(explorer_app *app)
-{
-    app->help_return = app->screen;
-    app->screen = SCREEN_HELP;
-    app->help_scroll = 0;
-    return ACT_REDRAW;
-}
-
 static const ui_binding full_bindings[] = {
     {UIKEY_ESC, act_back, "Esc / q / v", "back to the main screen", "Esc back"},
     {'q', act_back, NULL, NULL, NULL},
@@ -214,7 +206,7 @@ static const ui_binding full_bindings[] = {
     {'b', act_page_up, NULL, NULL, NULL},
     {UIKEY_FN(KEY_NPAGE), act_page_down, "PgDn / Space", "scroll down one page", NULL},
     {' ', act_page_down, NULL, NULL, NULL},
-    {'?', act_help, "?", "this help", "? help"},
+    {'?', screen_help_open, "?", "this help", "? help"},
 };
 
 static const ui_keymap full_keymap = {"Every value in full (v on the main screen)", full_bindings,

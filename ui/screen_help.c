@@ -177,3 +177,11 @@ const ui_keymap *screen_help_keys(void)
 {
     return &help_keymap;
 }
+
+int screen_help_open(explorer_app *app)
+{
+    app->help_return = app->screen;
+    app->screen = SCREEN_HELP;
+    app->help_scroll = 0;
+    return ACT_REDRAW;
+}

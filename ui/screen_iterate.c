@@ -491,14 +491,6 @@ static int act_fewer(explorer_app *app)
     return change_steps(app, 0);
 }
 
-static int act_help(explorer_app *app)
-{
-    app->help_return = app->screen;
-    app->screen = SCREEN_HELP;
-    app->help_scroll = 0;
-    return ACT_REDRAW;
-}
-
 static const ui_binding iterate_bindings[] = {
     {UIKEY_ESC, act_back, "Esc", "stop the run (keeping what was computed), then back", "Esc stop/back"},
     {'q', act_quit_screen, "q", "back to the main screen", NULL},
@@ -509,7 +501,7 @@ static const ui_binding iterate_bindings[] = {
     {'+', act_more, "+ / -", "double / halve the number of steps", "+/- steps"},
     {'=', act_more, NULL, NULL, NULL},
     {'-', act_fewer, NULL, NULL, NULL},
-    {'?', act_help, "?", "this help", "? help"},
+    {'?', screen_help_open, "?", "this help", "? help"},
 };
 
 static const ui_keymap iterate_keymap = {"Iterates", iterate_bindings,

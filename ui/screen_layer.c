@@ -267,14 +267,6 @@ static int act_next_layer(explorer_app *app)
     return viewmodel_move_layer(app->vm, 1) ? ACT_REDRAW : ACT_NONE;
 }
 
-static int act_help(explorer_app *app)
-{
-    app->help_return = app->screen;
-    app->screen = SCREEN_HELP;
-    app->help_scroll = 0;
-    return ACT_REDRAW;
-}
-
 static const ui_binding layer_bindings[] = {
     {UIKEY_ESC, act_back, "Esc / q", "back to the main screen", "Esc back"},
     {'q', act_back, NULL, NULL, NULL},
@@ -293,7 +285,7 @@ static const ui_binding layer_bindings[] = {
     {' ', act_page_down, NULL, NULL, NULL},
     {'<', act_scroll_left, "< / >", "scroll wide lines (big matrices) left / right", "</> wide"},
     {'>', act_scroll_right, NULL, NULL, NULL},
-    {'?', act_help, "?", "this help", "? help"},
+    {'?', screen_help_open, "?", "this help", "? help"},
     {'x', prompt_act_export, "x", "export this layer's matrix (or the report) to a file", NULL},
 };
 

@@ -753,14 +753,6 @@ static int act_full(explorer_app *app)
     return ACT_REDRAW;
 }
 
-static int act_help(explorer_app *app)
-{
-    app->help_return = app->screen;
-    app->screen = SCREEN_HELP;
-    app->help_scroll = 0;
-    return ACT_REDRAW;
-}
-
 static int act_iterates(explorer_app *app)
 {
     screen_iterate_open(app);
@@ -784,7 +776,7 @@ static int act_quit(explorer_app *app)
 
 /* Hints come first in the order the bottom line shows them. */
 static const ui_binding main_bindings[] = {
-    {'?', act_help, "?", "this help: every key", "? help"},
+    {'?', screen_help_open, "?", "this help: every key", "? help"},
     {'q', act_quit, "q", "quit (asks first when there are unsaved changes)", "q quit"},
     {'\r', act_detail, "Enter", "open the selected layer: basis, matrix, polynomial, eigenvalues",
      "Enter detail"},

@@ -418,14 +418,6 @@ static int act_back(explorer_app *app)
     return ACT_REDRAW;
 }
 
-static int act_help(explorer_app *app)
-{
-    app->help_return = SCREEN_MEMBERS;
-    app->screen = SCREEN_HELP;
-    app->help_scroll = 0;
-    return ACT_REDRAW;
-}
-
 int members_act_return(explorer_app *app)
 {
     if (!app->members) {
@@ -457,7 +449,7 @@ static const ui_binding members_bindings[] = {
     {'G', act_end, NULL, NULL, NULL},
     {UIKEY_ESC, act_back, "Esc / q", "back to the main screen (L returns here)", "Esc back"},
     {'q', act_back, NULL, NULL, NULL},
-    {'?', act_help, "?", "help", "? help"},
+    {'?', screen_help_open, "?", "help", "? help"},
 };
 
 const ui_keymap *screen_members_keys(void)

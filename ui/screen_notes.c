@@ -507,14 +507,6 @@ static int act_back(explorer_app *app)
     return ACT_REDRAW;
 }
 
-static int act_help(explorer_app *app)
-{
-    app->help_return = app->screen;
-    app->screen = SCREEN_HELP;
-    app->help_scroll = 0;
-    return ACT_REDRAW;
-}
-
 static const ui_binding notes_bindings[] = {
     {UIKEY_ESC, act_back, "Esc / q / N", "back to the main screen", "Esc back"},
     {'q', act_back, NULL, NULL, NULL},
@@ -530,7 +522,7 @@ static const ui_binding notes_bindings[] = {
     {'k', act_up, NULL, NULL, NULL},
     {UIKEY_FN(KEY_DOWN), act_down, "Down / j", "the next line", NULL},
     {'j', act_down, NULL, NULL, NULL},
-    {'?', act_help, "?", "this help", "? help"},
+    {'?', screen_help_open, "?", "this help", "? help"},
 };
 
 static const ui_keymap notes_keymap = {"Comment and notes (N on the main screen)", notes_bindings,

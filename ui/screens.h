@@ -25,6 +25,9 @@ const ui_keymap *screen_full_keys(void);
 
 void screen_help_draw(explorer_app *app);
 const ui_keymap *screen_help_keys(void);
+/* The key action every screen binds to `?`: opens the help, which returns
+ * to the screen it was opened from. */
+int screen_help_open(explorer_app *app);
 
 /* The members of a scan result file (nilstep scan's JSON Lines). */
 void screen_members_draw(explorer_app *app);
