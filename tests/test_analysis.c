@@ -46,28 +46,6 @@ static void seed(const char *test)
 /* ------------------------------------------------------------------------ */
 /* Setting up groups and maps                                               */
 
-static void set_group(analysis_t A, const char *pres, slong c)
-{
-    pres_t G;
-    nserr_t err;
-    pres_init(G);
-    nserr_init(err);
-    parse_pres_or_fail(G, pres);
-    if (analysis_set_group(A, G, c, NULL, err) != NS_OK)
-        fail_msg("analysis_set_group(%s, %ld): %s", pres, (long)c, err->msg);
-    pres_clear(G);
-    nserr_clear(err);
-}
-
-static void set_map(analysis_t A, const char *map)
-{
-    nserr_t err;
-    nserr_init(err);
-    if (analysis_set_map_text(A, map, 1, 1, NULL, err) != NS_OK)
-        fail_msg("analysis_set_map_text(%s): %s", map, err->msg);
-    nserr_clear(err);
-}
-
 static const char *gen_name(const analysis_t A, slong i)
 {
     return A->nq->pres->gens->name[i];
@@ -228,7 +206,7 @@ static void torus_lefschetz_and_reidemeister(void **state)
         slong n = rng_range(1, 4), c = rng_range(1, 3);
         analysis_t A;
         analysis_init(A);
-        set_group(A, pres[n - 1], c);
+        analysis_group_or_fail(A, pres[n - 1], c);
         assert_int_equal(A->nq->class_reached, 1);
         if (c > 1)
             assert_true(A->nq->stabilised);
@@ -242,7 +220,7 @@ static void torus_lefschetz_and_reidemeister(void **state)
         random_matrix(M, t % 2 ? -3 : -1, t % 2 ? 3 : 1);
         char map[1024];
         map_text_from_matrix(map, sizeof map, A, M, NULL);
-        set_map(A, map);
+        analysis_map_or_fail(A, map);
         assert_true(A->valid);
         assert_true(fmpz_mat_equal(A->layers[0].matrix, M));
 
@@ -320,7 +298,7 @@ static void free_nilpotent_brandt_traces(void **state)
     for (size_t gi = 0; gi < sizeof g / sizeof g[0]; gi++) {
         analysis_t A;
         analysis_init(A);
-        set_group(A, g[gi].pres, g[gi].c);
+        analysis_group_or_fail(A, g[gi].pres, g[gi].c);
         slong r = g[gi].r, c = g[gi].c;
         fmpz *f = _fmpz_vec_init(c);
         fmpz_t want, got;
@@ -347,7 +325,7 @@ static void free_nilpotent_brandt_traces(void **state)
             for (slong k = 0; k < r; k++)
                 tail[k] = random_tail(tb[k], sizeof tb[k], A);
             map_text_from_matrix(map, sizeof map, A, M, tail);
-            set_map(A, map);
+            analysis_map_or_fail(A, map);
             assert_true(A->valid);
             assert_true(fmpz_mat_equal(A->layers[0].matrix, M));
             for (slong d = 1; d <= c; d++) {
@@ -391,11 +369,11 @@ static void heisenberg_centre_times_det(void **state)
     analysis_t A, H;
     analysis_init(A);
     analysis_init(H);
-    set_group(A, "<x, y | [x,y,x], [x,y,y]>", 3);
+    analysis_group_or_fail(A, "<x, y | [x,y,x], [x,y,y]>", 3);
     assert_int_equal(A->nq->class_reached, 2);
     assert_true(A->nq->stabilised);
     assert_int_equal(A->layers[1].layer->free_rank, 1);
-    set_group(H, "heisenberg(1)", 2);
+    analysis_group_or_fail(H, "heisenberg(1)", 2);
     assert_int_equal(H->layers[0].layer->free_rank, 2);
     assert_int_equal(H->layers[1].layer->free_rank, 1);
 
@@ -412,7 +390,7 @@ static void heisenberg_centre_times_det(void **state)
             random_matrix(M, -4, 4);
         fmpz_mat_det(d, M);
         map_text_from_matrix(map, sizeof map, A, M, NULL);
-        set_map(A, map);
+        analysis_map_or_fail(A, map);
         assert_true(A->valid);
         assert_int_equal(fmpz_mat_nrows(A->layers[1].matrix), 1);
         assert_fmpz_eq(fmpz_mat_entry(A->layers[1].matrix, 0, 0), d, "central layer", map);
@@ -428,7 +406,7 @@ static void heisenberg_centre_times_det(void **state)
         append_column_word(w0, sizeof w0, H, M, 0);
         append_column_word(w1, sizeof w1, H, M, 1);
         snprintf(hmap, sizeof hmap, "x1 -> %s, y1 -> %s, z -> [%s, %s]", w0, w1, w0, w1);
-        set_map(H, hmap);
+        analysis_map_or_fail(H, hmap);
         if (!H->valid)
             fail_msg("heisenberg(1): %s should be well defined", hmap);
         assert_fmpz_eq(fmpz_mat_entry(H->layers[1].matrix, 0, 0), d, "centre of heisenberg(1)",
@@ -439,7 +417,7 @@ static void heisenberg_centre_times_det(void **state)
         /* z -> z^k is well defined exactly when k = det M1 */
         long k = fmpz_get_si(d) + (t % 3 == 0 ? 0 : rng_range(1, 2));
         snprintf(hmap, sizeof hmap, "x1 -> %s, y1 -> %s, z -> z^%ld", w0, w1, k);
-        set_map(H, hmap);
+        analysis_map_or_fail(H, hmap);
         if (H->valid != (k == fmpz_get_si(d)))
             fail_msg("heisenberg(1): %s reported valid = %d, det M1 = %ld", hmap, H->valid,
                      fmpz_get_si(d));
@@ -463,7 +441,7 @@ static void free_nilpotent_rank2_class4_r_infinity(void **state)
     seed("free_nilpotent_rank2_class4_r_infinity");
     analysis_t A;
     analysis_init(A);
-    set_group(A, "free(2)", 4);
+    analysis_group_or_fail(A, "free(2)", 4);
     fmpz_mat_t M;
     fmpz_mat_init(M, 2, 2);
     char map[1024], tb[2][128];
@@ -472,7 +450,7 @@ static void free_nilpotent_rank2_class4_r_infinity(void **state)
         const char *tail[2] = {random_tail(tb[0], sizeof tb[0], A),
                                random_tail(tb[1], sizeof tb[1], A)};
         map_text_from_matrix(map, sizeof map, A, M, tail);
-        set_map(A, map);
+        analysis_map_or_fail(A, map);
         assert_true(A->valid);
         if (!A->automorphism)
             fail_msg("%s (M1 %s) should be an automorphism", map, mat_str(M));
@@ -495,7 +473,7 @@ static void free_nilpotent_rank2_class3_finite_reidemeister(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "free(2)", 3);
+    analysis_group_or_fail(A, "free(2)", 3);
     fmpz_mat_t M;
     fmpz_mat_init(M, 2, 2);
     fmpz_t d, tr, prod, dj;
@@ -516,7 +494,7 @@ static void free_nilpotent_rank2_class3_finite_reidemeister(void **state)
             continue;
         fmpz_mat_trace(tr, M);
         map_text_from_matrix(map, sizeof map, A, M, NULL);
-        set_map(A, map);
+        analysis_map_or_fail(A, map);
         assert_true(A->valid && A->automorphism);
         checked++;
         int predicted_finite = fmpz_equal_si(d, -1) && !fmpz_is_zero(tr);
@@ -563,8 +541,8 @@ static void free_nilpotent_rank2_class3_example(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "free(2)", 3);
-    set_map(A, "a -> a b, b -> a");
+    analysis_group_or_fail(A, "free(2)", 3);
+    analysis_map_or_fail(A, "a -> a b, b -> a");
     assert_true(A->valid && A->automorphism);
     assert_int_equal(fmpz_get_si(A->layers[0].det_i_minus), -1);
     assert_int_equal(fmpz_get_si(A->layers[1].det_i_minus), 2);
@@ -601,14 +579,14 @@ static void growth_rate_is_rho1(void **state)
     for (size_t gi = 0; gi < sizeof g / sizeof g[0]; gi++) {
         analysis_t A;
         analysis_init(A);
-        set_group(A, g[gi].pres, g[gi].c);
+        analysis_group_or_fail(A, g[gi].pres, g[gi].c);
         fmpz_mat_t M;
         fmpz_mat_init(M, g[gi].r, g[gi].r);
         char map[1024];
         for (long t = 0; t < count_scaled_by("NILSTEP_ITER", 10); t++) {
             random_matrix(M, -2, 2);
             map_text_from_matrix(map, sizeof map, A, M, NULL);
-            set_map(A, map);
+            analysis_map_or_fail(A, map);
             if (!A->valid)
                 fail_msg("%s: %s should be well defined", g[gi].pres, map);
             if (spectrum_radius_cmp_one(A->layers[0].spectrum) < 0)
@@ -635,8 +613,8 @@ static void growth_rate_nilpotent_map(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "free(2)", 3);
-    set_map(A, "a -> b, b -> 1");
+    analysis_group_or_fail(A, "free(2)", 3);
+    analysis_map_or_fail(A, "a -> b, b -> 1");
     assert_true(A->valid);
     assert_string_equal(A->layers[0].rho_str, "0");
     assert_string_equal(A->growth_str, "0");
@@ -661,8 +639,8 @@ static void growth_rate_unipotent_map(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "free(2)", 4);
-    set_map(A, "a -> a b, b -> b");
+    analysis_group_or_fail(A, "free(2)", 4);
+    analysis_map_or_fail(A, "a -> a b, b -> b");
     assert_true(A->valid);
     assert_string_equal(A->layers[0].rho_str, "1");
     assert_string_equal(A->growth_str, "1");
@@ -681,10 +659,10 @@ static void growth_rate_torsion_keeps_it_one(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "<a, t | t^2, [a,t]>", 2);
+    analysis_group_or_fail(A, "<a, t | t^2, [a,t]>", 2);
     assert_int_equal(A->layers[0].layer->free_rank, 1);
     assert_int_equal(A->layers[0].layer->ntors, 1);
-    set_map(A, "a -> t, t -> t");
+    analysis_map_or_fail(A, "a -> t, t -> t");
     assert_true(A->valid);
     assert_string_equal(A->layers[0].rho_str, "0");
     assert_string_equal(A->growth_str, "1");
@@ -696,7 +674,7 @@ static void growth_rate_torsion_keeps_it_one(void **state)
     assert_int_equal(A->reid_kind, ANALYSIS_REID_FINITE);
     assert_int_equal(fmpz_get_si(A->reidemeister), 2);
     assert_int_equal(fmpz_get_si(A->lefschetz), 1);
-    set_map(A, "a -> t, t -> 1");
+    analysis_map_or_fail(A, "a -> t, t -> 1");
     assert_true(A->valid);
     assert_string_equal(A->layers[0].rho_str, "0");
     assert_string_equal(A->growth_str, "0");
@@ -719,14 +697,14 @@ static void validity_relator_in_gamma3(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "<a, b | [a,b,a]>", 2);
-    set_map(A, "a -> b, b -> a");
+    analysis_group_or_fail(A, "<a, b | [a,b,a]>", 2);
+    analysis_map_or_fail(A, "a -> b, b -> a");
     assert_true(A->valid);
     assert_int_equal(A->nfail, 0);
 
-    set_group(A, "<a, b | [a,b,a]>", 3);
+    analysis_group_or_fail(A, "<a, b | [a,b,a]>", 3);
     assert_int_equal(A->layers[2].layer->free_rank, 1);
-    set_map(A, "a -> b, b -> a");
+    analysis_map_or_fail(A, "a -> b, b -> a");
     assert_false(A->valid);
     assert_int_equal(A->nfail, 1);
     assert_string_equal(A->fail_relator[0], "[a,b,a]");
@@ -747,7 +725,7 @@ static void validity_relator_in_gamma3(void **state)
 
     /* an endomorphism of G itself stays valid: a -> a^2, b -> b^3 maps
      * [a,b,a] to [a^2,b^3,a^2], a power of [a,b,a] modulo gamma_4 */
-    set_map(A, "a -> a^2, b -> b^3");
+    analysis_map_or_fail(A, "a -> a^2, b -> b^3");
     assert_true(A->valid);
     analysis_clear(A);
 }
@@ -759,14 +737,14 @@ static void validity_fails_in_abelianisation(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "<a, b | a^2>", 1);
-    set_map(A, "a -> b, b -> a");
+    analysis_group_or_fail(A, "<a, b | a^2>", 1);
+    analysis_map_or_fail(A, "a -> b, b -> a");
     assert_false(A->valid);
     assert_int_equal(A->nfail, 1);
     assert_string_equal(A->fail_relator[0], "a^2");
     assert_string_equal(A->fail_image[0], "b^2");
     assert_int_equal(A->failures[0].lowest_class, 1);
-    set_map(A, "a -> a, b -> a b^-1");
+    analysis_map_or_fail(A, "a -> a, b -> a b^-1");
     assert_true(A->valid);
     analysis_clear(A);
 }
@@ -782,8 +760,8 @@ static void failure_forced_image_heisenberg(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "<x, y, z | z = [x,y], [x,z], [y,z]>", 2);
-    set_map(A, "x -> x^2, y -> y^3, z -> z");
+    analysis_group_or_fail(A, "<x, y, z | z = [x,y], [x,z], [y,z]>", 2);
+    analysis_map_or_fail(A, "x -> x^2, y -> y^3, z -> z");
     assert_false(A->valid);
     assert_int_equal(A->nfail, 1);
     const analysis_failure_struct *f = A->failures;
@@ -805,20 +783,20 @@ static void failure_forced_image_heisenberg(void **state)
         assert_string_equal(f->rhs_image, want);
     else
         assert_true(strcmp(f->lhs_image, "[y,x]^-1") == 0 && strcmp(f->rhs_image, "[y,x]^-6") == 0);
-    set_map(A, "x -> x^2, y -> y^3, z -> [x^2,y^3]");
+    analysis_map_or_fail(A, "x -> x^2, y -> y^3, z -> [x^2,y^3]");
     assert_true(A->valid);
-    set_map(A, "x -> x^2, y -> y^3, z -> z^6");
+    analysis_map_or_fail(A, "x -> x^2, y -> y^3, z -> z^6");
     assert_true(A->valid);
     /* the relation written the other way round forces the same image */
-    set_group(A, "<x, y, z | [x,y] = z, [x,z], [y,z]>", 2);
-    set_map(A, "x -> x^2, y -> y^3, z -> z");
+    analysis_group_or_fail(A, "<x, y, z | [x,y] = z, [x,z], [y,z]>", 2);
+    analysis_map_or_fail(A, "x -> x^2, y -> y^3, z -> z");
     assert_int_equal(A->failures[0].forced_gen, 2);
     assert_string_equal(A->failures[0].forced_image, "[x^2,y^3]");
     /* the commutator written out as letters (one run of syllables in the
      * parsed tree): each letter is replaced by its image, by hand
      * alpha(x^-1 y^-1 x y) = (x^2)^-1 (y^3)^-1 x^2 y^3 */
-    set_group(A, "<x, y, z | z = x^-1 y^-1 x y, [x,z], [y,z]>", 2);
-    set_map(A, "x -> x^2, y -> y^3, z -> z");
+    analysis_group_or_fail(A, "<x, y, z | z = x^-1 y^-1 x y, [x,z], [y,z]>", 2);
+    analysis_map_or_fail(A, "x -> x^2, y -> y^3, z -> z");
     assert_false(A->valid);
     assert_int_equal(A->failures[0].forced_gen, 2);
     assert_string_equal(A->failures[0].rhs_word, "(x^2)^-1 (y^3)^-1 x^2 y^3");
@@ -826,16 +804,16 @@ static void failure_forced_image_heisenberg(void **state)
     char map[128];
     snprintf(map, sizeof map, "x -> x^2, y -> y^3, z -> %s", forced);
     flint_free(forced);
-    set_map(A, map);
+    analysis_map_or_fail(A, map);
     assert_true(A->valid);
     /* a generator inside a run on the other side: not defined by it */
-    set_group(A, "<x, y, z | z = x z y x^-1, [x,z], [y,z]>", 2);
-    set_map(A, "x -> x^2, y -> y^3, z -> z");
+    analysis_group_or_fail(A, "<x, y, z | z = x z y x^-1, [x,z], [y,z]>", 2);
+    analysis_map_or_fail(A, "x -> x^2, y -> y^3, z -> z");
     if (!A->valid)
         assert_int_equal(A->failures[0].forced_gen, -1);
     /* z occurs on both sides: no generator is defined by the relation */
-    set_group(A, "<x, y, z | z = [x,y] z^2, [x,z], [y,z]>", 2);
-    set_map(A, "x -> x^2, y -> y^3, z -> z");
+    analysis_group_or_fail(A, "<x, y, z | z = [x,y] z^2, [x,z], [y,z]>", 2);
+    analysis_map_or_fail(A, "x -> x^2, y -> y^3, z -> z");
     if (!A->valid)
         assert_int_equal(A->failures[0].forced_gen, -1);
     analysis_clear(A);
@@ -893,7 +871,7 @@ static void map_value_round_trip(analysis_t A, const char *what)
     assert_string_equal(A->map_str, want);
     fmpz_mat_struct *M = flint_malloc(c * sizeof(fmpz_mat_struct));
     save_matrices(M, A);
-    set_map(A, text);
+    analysis_map_or_fail(A, text);
     if (strcmp(A->map_str, text) != 0)
         fail_msg("%s: %s prints back as %s", what, text, A->map_str);
     for (slong x = 0; x < X; x++)
@@ -916,7 +894,7 @@ static void maps_given_as_values(void **state)
     nserr_t err;
     analysis_init(A);
     nserr_init(err);
-    set_group(A, "free(2)", c);
+    analysis_group_or_fail(A, "free(2)", c);
     fmpz_mat_struct *Ma = flint_malloc(c * sizeof(fmpz_mat_struct));
     fmpz_mat_struct *Mb = flint_malloc(c * sizeof(fmpz_mat_struct));
     fmpz_mat_struct *W = flint_malloc(c * sizeof(fmpz_mat_struct));
@@ -934,9 +912,9 @@ static void maps_given_as_values(void **state)
         fmpz_mat_clear(M1);
         printf("# alpha: %s; beta: %s\n", alpha, beta);
 
-        set_map(A, beta);
+        analysis_map_or_fail(A, beta);
         save_matrices(Mb, A);
-        set_map(A, alpha);
+        analysis_map_or_fail(A, alpha);
         assert_true(A->valid && A->automorphism);
         save_matrices(Ma, A);
         for (slong j = 0; j < c; j++)
@@ -944,7 +922,7 @@ static void maps_given_as_values(void **state)
 
         /* powers 0..3 */
         for (ulong k = 0; k <= 3; k++) {
-            set_map(A, alpha);
+            analysis_map_or_fail(A, alpha);
             endo_t E;
             endo_init(E);
             if (analysis_power_endo(E, A, k, NULL, err) != NS_OK ||
@@ -958,7 +936,7 @@ static void maps_given_as_values(void **state)
             map_value_round_trip(A, "alpha^k");
         }
         /* beta o alpha */
-        set_map(A, alpha);
+        analysis_map_or_fail(A, alpha);
         {
             expr_struct im[2];
             expr_init(im + 0);
@@ -979,7 +957,7 @@ static void maps_given_as_values(void **state)
             map_value_round_trip(A, "beta o alpha");
         }
         /* alpha^-1 */
-        set_map(A, alpha);
+        analysis_map_or_fail(A, alpha);
         {
             endo_t E;
             endo_init(E);
@@ -999,20 +977,20 @@ static void maps_given_as_values(void **state)
         clear_matrices(W, c);
     }
     /* a derived map needs a valid map; a map of another quotient is refused */
-    set_map(A, "a -> a, b -> b");
+    analysis_map_or_fail(A, "a -> a, b -> b");
     endo_t E, F;
     endo_init(E);
     endo_init(F);
     assert_int_equal(analysis_power_endo(E, A, 2, NULL, err), NS_OK);
     analysis_t B;
     analysis_init(B);
-    set_group(B, "free(3)", 2);
+    analysis_group_or_fail(B, "free(3)", 2);
     /* handing a map to the wrong analysis is a bug of the caller */
     assert_int_equal(analysis_set_map_endo(B, E, NULL, err), NS_ERR_INTERNAL);
     assert_false(B->has_map);
     assert_int_equal(analysis_set_map_endo(A, A->endo, NULL, err), NS_ERR_INTERNAL);
-    set_group(A, "<a, b | a^2>", 1);
-    set_map(A, "a -> b, b -> a");
+    analysis_group_or_fail(A, "<a, b | a^2>", 1);
+    analysis_map_or_fail(A, "a -> b, b -> a");
     assert_false(A->valid);
     assert_int_equal(analysis_power_endo(F, A, 2, NULL, err), NS_ERR_INPUT);
     assert_null(F->gen_img);
@@ -1038,8 +1016,8 @@ static void free_group_charpolys_are_those_of_the_matrices(void **state)
     for (int m = 0; m < 3; m++) {
         analysis_t A;
         analysis_init(A);
-        set_group(A, "<a, b, c | >", 5);
-        set_map(A, maps[m]);
+        analysis_group_or_fail(A, "<a, b, c | >", 5);
+        analysis_map_or_fail(A, maps[m]);
         fmpz_poly_t cp;
         fmpz_poly_init(cp);
         for (slong j = 0; j < A->nlayers; j++) {
@@ -1091,7 +1069,7 @@ static void free_group_spectra_are_named_and_stoppable(void **state)
     ns_progress_t p = {log_stages, &l};
     analysis_init(A);
     nserr_init(err);
-    set_group(A, "<a, b, c | >", 5);
+    analysis_group_or_fail(A, "<a, b, c | >", 5);
     assert_int_equal(analysis_set_map_text(A, map, 1, 1, &p, err), NS_OK);
     assert_int_equal(A->nlayers, 5);
     for (slong j = 1; j <= 5; j++)

@@ -22,35 +22,13 @@
 #include "analysis.h"
 #include "testutil.h"
 
-static void set_group(analysis_t A, const char *pres, slong c)
-{
-    pres_t G;
-    nserr_t err;
-    pres_init(G);
-    nserr_init(err);
-    parse_pres_or_fail(G, pres);
-    if (analysis_set_group(A, G, c, NULL, err) != NS_OK)
-        fail_msg("analysis_set_group(%s, %ld): %s", pres, (long)c, err->msg);
-    pres_clear(G);
-    nserr_clear(err);
-}
-
-static void set_map(analysis_t A, const char *map)
-{
-    nserr_t err;
-    nserr_init(err);
-    if (analysis_set_map_text(A, map, 1, 1, NULL, err) != NS_OK)
-        fail_msg("analysis_set_map_text(%s): %s", map, err->msg);
-    nserr_clear(err);
-}
-
 static void free_rank2_class3_golden(void **state)
 {
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "<a, b | >", 3);
-    set_map(A, "a -> a^2 b, b -> a b");
+    analysis_group_or_fail(A, "<a, b | >", 3);
+    analysis_map_or_fail(A, "a -> a^2 b, b -> a b");
     analysis_view_t V;
     analysis_get_view(V, A);
     assert_true(V->has_group);
@@ -115,7 +93,7 @@ static void abelian_stabilises(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "<a, b | [a,b]>", 3);
+    analysis_group_or_fail(A, "<a, b | [a,b]>", 3);
     analysis_view_t V;
     analysis_get_view(V, A);
     assert_true(V->has_group);
@@ -138,7 +116,7 @@ static void torsion_z_times_z2(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "<a, b | b^2, [a,b]>", 2);
+    analysis_group_or_fail(A, "<a, b | b^2, [a,b]>", 2);
     analysis_view_t V;
     analysis_get_view(V, A);
     assert_false(V->layers_torsion_free);

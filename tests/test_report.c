@@ -40,28 +40,6 @@
 #include "report.h"
 #include "testutil.h"
 
-static void set_group(analysis_t A, const char *pres, slong c)
-{
-    pres_t G;
-    nserr_t err;
-    pres_init(G);
-    nserr_init(err);
-    parse_pres_or_fail(G, pres);
-    if (analysis_set_group(A, G, c, NULL, err) != NS_OK)
-        fail_msg("analysis_set_group(%s, %ld): %s", pres, (long)c, err->msg);
-    pres_clear(G);
-    nserr_clear(err);
-}
-
-static void set_map(analysis_t A, const char *map)
-{
-    nserr_t err;
-    nserr_init(err);
-    if (analysis_set_map_text(A, map, 1, 1, NULL, err) != NS_OK)
-        fail_msg("analysis_set_map_text(%s): %s", map, err->msg);
-    nserr_clear(err);
-}
-
 /* Compares line by line, so that a failure names the first line that
  * differs. */
 static void assert_report(const char *got, const char *want, const char *what)
@@ -175,8 +153,8 @@ static void text_and_latex_of_the_golden_square(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "free(2)", 2);
-    set_map(A, "a -> a^2 b, b -> a b");
+    analysis_group_or_fail(A, "free(2)", 2);
+    analysis_map_or_fail(A, "a -> a^2 b, b -> a b");
     char *s = report_get_str_digits(A, REPORT_TEXT, NULL, 30);
     assert_report(s, want_text, "text report");
     flint_free(s);
@@ -200,7 +178,7 @@ static void text_and_latex_of_the_golden_square(void **state)
                                "a^{-1} b^{2} [b, a]^{-1}$.\n");
     flint_free(s);
     /* a new map forgets it */
-    set_map(A, "a -> a^2 b, b -> a b");
+    analysis_map_or_fail(A, "a -> a^2 b, b -> a b");
     s = report_get_str_digits(A, REPORT_TEXT, NULL, 30);
     assert_report(s, want_text, "text report after a new map");
     flint_free(s);
@@ -228,8 +206,8 @@ static void no_inverse_is_said(void **state)
     nserr_t err;
     analysis_init(A);
     nserr_init(err);
-    set_group(A, "free(2)", 2);
-    set_map(A, "a -> a^2, b -> b");
+    analysis_group_or_fail(A, "free(2)", 2);
+    analysis_map_or_fail(A, "a -> a^2, b -> b");
     assert_int_equal(analysis_set_inverse(A, NULL, err), NS_OK);
     char *s = report_get_str(A, REPORT_TEXT, NULL);
     assert_non_null(strstr(s, "\nautomorphism  no\n"));
@@ -248,8 +226,8 @@ static void torsion_action_and_invalid_map(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "<a, t | t^2, [a,t]>", 2);
-    set_map(A, "a -> a t, t -> t");
+    analysis_group_or_fail(A, "<a, t | t^2, [a,t]>", 2);
+    analysis_map_or_fail(A, "a -> a t, t -> t");
     char *s = report_get_str(A, REPORT_TEXT, NULL);
     assert_non_null(strstr(s, "\nlayer 1: Z + Z/2\n"
                               "  action on the layer's pc generators (modulo its power relations)\n"
@@ -262,8 +240,8 @@ static void torsion_action_and_invalid_map(void **state)
     /* <a, b | a^2>: the swap sends a^2 to b^2, not trivial (b has infinite
      * order in the abelianisation Z/2 + Z): the report names the relator
      * and its image and stops there */
-    set_group(A, "<a, b | a^2>", 1);
-    set_map(A, "a -> b, b -> a");
+    analysis_group_or_fail(A, "<a, b | a^2>", 1);
+    analysis_map_or_fail(A, "a -> b, b -> a");
     s = report_get_str(A, REPORT_TEXT, NULL);
     const char *tail = "\nmap           a -> b, b -> a\n"
                        "not well defined on the class-1 quotient: 1 relator is not mapped to 1\n"

@@ -12,26 +12,9 @@
 #include "analysis.h"
 #include "torsion.h"
 
-static void set_group(analysis_t A, const char *pres, slong c)
-{
-    pres_t G;
-    nserr_t err;
-    pres_init(G);
-    nserr_init(err);
-    parse_pres_or_fail(G, pres);
-    if (analysis_set_group(A, G, c, NULL, err) != NS_OK)
-        fail_msg("analysis_set_group(%s, %ld): %s", pres, (long)c, err->msg);
-    pres_clear(G);
-    nserr_clear(err);
-}
-
 static void set_map(analysis_t A, const char *map)
 {
-    nserr_t err;
-    nserr_init(err);
-    if (analysis_set_map_text(A, map, 1, 1, NULL, err) != NS_OK)
-        fail_msg("analysis_set_map_text(%s): %s", map, err->msg);
-    nserr_clear(err);
+    analysis_map_or_fail(A, map);
     assert_true(A->valid);
 }
 
@@ -96,7 +79,7 @@ static void klein_bottle_quotients(void **state)
     for (slong c = 2; c <= 5; c++) {
         analysis_t A;
         analysis_init(A);
-        set_group(A, "<a, t | t^-1 a t = a^-1>", c);
+        analysis_group_or_fail(A, "<a, t | t^-1 a t = a^-1>", c);
         const torsion_struct *T = A->tors;
         assert_int_equal(si(T->order), 1L << c);
         assert_true(T->abelian);
@@ -136,7 +119,7 @@ static void klein_bottle_index_not_injective(void **state)
         for (slong k = 1; k < c; k++) {
             analysis_t A;
             analysis_init(A);
-            set_group(A, "<a, t | t^-1 a t = a^-1>", c);
+            analysis_group_or_fail(A, "<a, t | t^-1 a t = a^-1>", c);
             char map[64];
             snprintf(map, sizeof map, "a -> a^%ld, t -> t", 1L << k);
             set_map(A, map);
@@ -162,7 +145,7 @@ static void shared_group_keeps_torsion(void **state)
     analysis_t A, B;
     analysis_init(A);
     analysis_init(B);
-    set_group(A, "<a, t | t^-1 a t = a^-1>", 3);
+    analysis_group_or_fail(A, "<a, t | t^-1 a t = a^-1>", 3);
     analysis_share_group(B, A);
     assert_int_equal(si(B->tors->order), 8);
     set_map(B, "a -> a, t -> t^3");
@@ -189,7 +172,7 @@ static void product_with_z2(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "<a, b, z | z^2, [a,b], [a,z], [b,z]>", 2);
+    analysis_group_or_fail(A, "<a, b, z | z^2, [a,b], [a,z], [b,z]>", 2);
     assert_int_equal(si(A->tors->order), 2);
     assert_true(A->tors->quotient_layers_free);
     struct {
@@ -231,7 +214,7 @@ static void layer_torsion_that_does_not_lift(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "<x, y, z | [y,x] = z^2, [z,x], [z,y]>", 2);
+    analysis_group_or_fail(A, "<x, y, z | [y,x] = z^2, [z,x], [z,y]>", 2);
     assert_int_equal(A->layers[0].layer->ntors, 1);
     assert_int_equal(si(A->tors->order), 1);
     assert_int_equal(A->tors->q_ntors[0], 1); /* Gc/T = Gc keeps Z/2 in layer 1 */
@@ -257,7 +240,7 @@ static void quotient_layers_with_torsion(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "<x, y, z, w | [y,x] = z^2, [z,x], [z,y], w^2, [w,x], [w,y], [w,z]>", 2);
+    analysis_group_or_fail(A, "<x, y, z, w | [y,x] = z^2, [z,x], [z,y], w^2, [w,x], [w,y], [w,z]>", 2);
     assert_int_equal(si(A->tors->order), 2);
     assert_false(A->tors->quotient_layers_free);
     set_map(A, "x -> x^2, y -> y^3, z -> z^6, w -> w");
@@ -266,7 +249,7 @@ static void quotient_layers_with_torsion(void **state)
     assert_int_equal(si(A->reidemeister), 20);
     set_map(A, "x -> x^2, y -> y^3, z -> z^6, w -> 1");
     assert_int_equal(si(A->reidemeister), 10);
-    set_group(A,
+    analysis_group_or_fail(A,
               "<a, t, x, y, z | t^-1 a t = a^-1, [y,x] = z^2, [z,x], [z,y], [a,x], [a,y], "
               "[a,z], [t,x], [t,y], [t,z]>",
               3);
@@ -287,7 +270,7 @@ static void surface_times_z2(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A,
+    analysis_group_or_fail(A,
               "<a1, b1, a2, b2, z | [a1,b1][a2,b2], z^2, [z,a1], [z,b1], [z,a2], [z,b2]>", 3);
     assert_int_equal(si(A->tors->order), 2);
     assert_string_equal(A->tors->gen_str[0], "z");
@@ -309,7 +292,7 @@ static void too_large_to_count(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "<a, b | a^8, b^8>", 4);
+    analysis_group_or_fail(A, "<a, b | a^8, b^8>", 4);
     assert_true(A->tors->finite);
     assert_true(fmpz_cmp_si(A->tors->order, TORSION_MAX_COUNT) > 0);
     set_map(A, "a -> b, b -> a");
@@ -373,7 +356,7 @@ static void torsion_free_untouched(void **state)
     (void)state;
     analysis_t A;
     analysis_init(A);
-    set_group(A, "<a, b | >", 3);
+    analysis_group_or_fail(A, "<a, b | >", 3);
     assert_true(A->layers_torsion_free);
     assert_int_equal(si(A->tors->order), 1);
     set_map(A, "a -> a^2, b -> b^2");

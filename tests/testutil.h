@@ -22,6 +22,7 @@
 #include <flint/fmpz.h>
 #include <flint/fmpz_mat.h>
 
+#include "analysis.h"
 #include "nq.h"
 
 /* ------------------------------------------------------------------------ */
@@ -120,6 +121,31 @@ static inline void parse_pres_or_fail(pres_t p, const char *text)
 
 /* Q := the class-c quotient of the group given by text; fails the test
  * when the text does not parse or nq_compute fails. */
+/* The analysis of the class-c quotient of the presentation text, or the
+ * test fails with the engine's message. */
+static inline void analysis_group_or_fail(analysis_t A, const char *pres, slong c)
+{
+    pres_t G;
+    nserr_t err;
+    pres_init(G);
+    nserr_init(err);
+    parse_pres_or_fail(G, pres);
+    if (analysis_set_group(A, G, c, NULL, err) != NS_OK)
+        fail_msg("analysis_set_group(%s, %ld): %s", pres, (long)c, err->msg);
+    pres_clear(G);
+    nserr_clear(err);
+}
+
+/* The map given as text analysed on A's quotient, or the test fails. */
+static inline void analysis_map_or_fail(analysis_t A, const char *map)
+{
+    nserr_t err;
+    nserr_init(err);
+    if (analysis_set_map_text(A, map, 1, 1, NULL, err) != NS_OK)
+        fail_msg("analysis_set_map_text(%s): %s", map, err->msg);
+    nserr_clear(err);
+}
+
 static inline void compute_quotient(nq_t Q, const char *text, slong c)
 {
     pres_t p;
