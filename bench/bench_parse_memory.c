@@ -9,52 +9,13 @@
  * Target: at most 5 bytes per input byte for the parsed presentation (the
  * relator text it keeps included).
  * Nothing is asserted. */
-#include <malloc.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 #include <time.h>
 
 #include "analysis.h"
-
-static long long mem_now, mem_peak;
-
-static void mem_count(long long d)
-{
-    mem_now += d;
-    if (mem_now > mem_peak)
-        mem_peak = mem_now;
-}
-
-static void *count_malloc(size_t n)
-{
-    void *p = malloc(n);
-    mem_count((long long)malloc_usable_size(p));
-    return p;
-}
-
-static void *count_calloc(size_t k, size_t n)
-{
-    void *p = calloc(k, n);
-    mem_count((long long)malloc_usable_size(p));
-    return p;
-}
-
-static void *count_realloc(void *q, size_t n)
-{
-    long long before = q ? (long long)malloc_usable_size(q) : 0;
-    void *p = realloc(q, n);
-    mem_count((long long)malloc_usable_size(p));
-    mem_count(-before);
-    return p;
-}
-
-static void count_free(void *p)
-{
-    if (p != NULL)
-        mem_count(-(long long)malloc_usable_size(p));
-    free(p);
-}
+#include "countalloc.h"
 
 static double now(void)
 {
@@ -80,18 +41,17 @@ int main(void)
         memcpy(w, "a b ", 4);
     memcpy(w, tail, strlen(tail) + 1);
 
-    __flint_set_memory_functions(count_malloc, count_calloc, count_realloc, count_free);
     pres_init(G);
     analysis_init(A);
     nserr_init(err);
-    mem_now = mem_peak = 0;
+    countalloc_install();
     t0 = now();
     if (pres_parse(G, text, 1, 1, err) != NS_OK) {
         printf("parse failed: %s\n", err->msg);
         return 1;
     }
     t1 = now();
-    long long held = mem_now, peak = mem_peak;
+    long long held = countalloc_now, peak = countalloc_peak;
     if (analysis_set_group(A, G, 2, NULL, err) != NS_OK) {
         printf("quotient failed: %s\n", err->msg);
         return 1;
@@ -103,11 +63,11 @@ int main(void)
            t1 - t0);
     printf("quotient of class 2 on it: %.2f bytes per input byte held by the engine, "
            "%.2f at the peak; %.2f s\n",
-           (double)mem_now / (double)n, (double)mem_peak / (double)n, t2 - t1);
+           (double)countalloc_now / (double)n, (double)countalloc_peak / (double)n, t2 - t1);
     analysis_clear(A);
     pres_clear(G);
     nserr_clear(err);
-    __flint_set_memory_functions(malloc, calloc, realloc, free);
+    countalloc_uninstall();
     free(text);
     return 0;
 }

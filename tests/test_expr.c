@@ -9,7 +9,6 @@
  *
  * Random tests print their seed; NILSTEP_SEED replays one, NILSTEP_ITER
  * multiplies the number of cases. */
-#include <malloc.h>
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
@@ -25,6 +24,7 @@
 
 #include "expr.h"
 #include "testutil.h"
+#include "countalloc.h"
 
 /* ------------------------------------------------------------------------ */
 /* Helpers                                                                   */
@@ -488,51 +488,6 @@ static void parse_should_limit_nesting_depth(void **state)
     names_clear(g);
 }
 
-/* Bytes held through FLINT's allocator now and at most since the reset. */
-static long long mem_now, mem_peak;
-
-static void mem_count(long long d)
-{
-    mem_now += d;
-    if (mem_now > mem_peak)
-        mem_peak = mem_now;
-}
-
-static void *counting_malloc(size_t n)
-{
-    void *p = malloc(n);
-    mem_count((long long)malloc_usable_size(p));
-    return p;
-}
-
-static void *counting_calloc(size_t k, size_t n)
-{
-    void *p = calloc(k, n);
-    mem_count((long long)malloc_usable_size(p));
-    return p;
-}
-
-static void *counting_realloc(void *q, size_t n)
-{
-    long long before = q ? (long long)malloc_usable_size(q) : 0;
-    void *p = realloc(q, n);
-    /* a moved block was briefly held twice; count that for the peak */
-    if (p != q && q != NULL)
-        mem_count((long long)malloc_usable_size(p));
-    else
-        mem_count((long long)malloc_usable_size(p) - before);
-    if (p != q && q != NULL)
-        mem_count(-before);
-    return p;
-}
-
-static void counting_free(void *p)
-{
-    if (p != NULL)
-        mem_count(-(long long)malloc_usable_size(p));
-    free(p);
-}
-
 /* A word of millions of letters (a session of 12 MB once took 37 bytes of
  * tree per input byte, a node per letter): the tree holds at most 5 bytes
  * per input byte, parsing needs at most 13 at its peak, a copy (as the
@@ -555,15 +510,13 @@ static void parse_should_cost_few_bytes_per_input_byte(void **state)
     nserr_init(err);
     expr_init(e);
     expr_init(f);
-    __flint_set_memory_functions(counting_malloc, counting_calloc, counting_realloc,
-                                 counting_free);
-    mem_now = mem_peak = 0;
+    countalloc_install();
     assert_int_equal(expr_parse(e, w, 1, 1, g, err), NS_OK);
-    long long held = mem_now, peak = mem_peak;
-    mem_peak = mem_now;
+    long long held = countalloc_now, peak = countalloc_peak;
+    countalloc_peak = countalloc_now;
     expr_set(f, e);
-    long long copy = mem_now - held, copy_peak = mem_peak - held;
-    __flint_set_memory_functions(malloc, calloc, realloc, free);
+    long long copy = countalloc_now - held, copy_peak = countalloc_peak - held;
+    countalloc_uninstall();
     print_message("parse: %.2f bytes held, %.2f at the peak; copy: %.2f, %.2f at the peak "
                   "(per input byte)\n",
                   (double)held / (double)n, (double)peak / (double)n, (double)copy / (double)n,
