@@ -96,7 +96,7 @@ static void poly_eval(const iterate_map_struct *M, const iterate_table_struct *t
     for (slong i = 0; i < n; i++) {
         fmpz *b = B + i * (c + 1);
         fmpz_one(b);
-        slong top = c / M->Q->pcp->weight[i];
+        slong top = c / M->P->weight[i];
         for (slong d = 1; d <= top && !fmpz_is_zero(b + d - 1); d++) {
             fmpz_sub_ui(f, x + i, (ulong)(d - 1));
             fmpz_mul(b + d, b + d - 1, f);
@@ -200,7 +200,7 @@ static int poly_points(const iterate_map_struct *M, iterate_table_struct *t)
 {
     slong n = M->n, len = 0, alloc = 0;
     slong *list = NULL, *cur = flint_calloc(FLINT_MAX(n, 1), sizeof(slong));
-    mono_enum(&list, &len, &alloc, cur, M->Q->pcp->weight, n, 0, M->deg);
+    mono_enum(&list, &len, &alloc, cur, M->P->weight, n, 0, M->deg);
     flint_free(cur);
     if (len > ITERATE_MAX_MONO || n == 0) {
         flint_free(list);
@@ -216,6 +216,10 @@ void iterate_map_clear(iterate_map_t M)
     for (slong b = 0; b < M->ntab; b++)
         table_clear(M->tab + b, M->n, M->deg);
     flint_free(M->tab);
+    if (M->cover) {
+        pcp_clear(M->cover);
+        flint_free(M->cover);
+    }
     fmpz_clear(M->pow10);
     iterate_map_init(M);
 }
@@ -370,6 +374,129 @@ static ns_status cancelled(nserr_t err)
     return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "the iteration was stopped");
 }
 
+/* ---- a torsion-free cover for presentations with finite relative orders
+ *
+ * Let G be presented by P with some finite relative orders.  H is the group
+ * of P without its power relations: the same generators, all of infinite
+ * order, the same conjugate relations and the same commuting pairs.  When
+ * that presentation is consistent (the test words of pcp_is_consistent;
+ * C. C. Sims, Computation with Finitely Presented Groups, 1994, ch. 9), its
+ * normal words are the elements of H, H is nilpotent and torsion-free with
+ * the weight filtration of P, and Hall's polynomials hold in it (the route
+ * of the torsion-free case).  Every relation of H holds in G, so
+ * rho: a_i -> a_i is a homomorphism of H onto G (von Dyck); rho of a vector
+ * is the collection of its word in G, and a G-normal vector read in H is a
+ * preimage of itself.
+ *
+ * The lift of alpha: A(a_k) = [A(a_a), A(a_b)] in H for a generator defined
+ * as the commutator [a_a, a_b], else alpha(a_k) read in H.  A extends to an
+ * endomorphism of H iff it respects H's relations a_k^(a_i) = conj(k,i),
+ * checked for every pair i < k < commute_from[i]; the other pairs commute
+ * in H, and so do their images, since A maps a generator of weight w into
+ * H_w (the generators of weight >= w) and [H_v, H_w] <= H_(v+w) = 1 for
+ * v + w > c.  rho A and alpha rho are then homomorphisms H -> G; checked to
+ * agree on the generators, they agree everywhere, so
+ *     alpha^k(x) = rho(A^k(x))     for x G-normal, read in H.
+ * That is the route: iterate in H with the Hall tables and repeated
+ * squaring, whatever the size of the exponents, then reduce by rho.  The
+ * exponents of the finite generators are reduced once per call, by
+ * collection in G (pcp.c reduces powers inside finite subgroups modulo
+ * their order before powering).  When a check fails, or P without its power
+ * relations is inconsistent, the map steps one application at a time in G.
+ */
+
+/* Above this many pc generators the cover is not tried (its checks are
+ * quadratic in n). */
+#define ITERATE_COVER_MAX_PC 400
+
+/* out := rho(y): the word of y collected in G (out may alias y). */
+static void cover_reduce(const iterate_map_struct *M, fmpz *out, const fmpz *y, pcp_work_t WG)
+{
+    slong n = M->n;
+    pcw_t w;
+    pcw_init(w);
+    pcw_set_vec(w, y, n);
+    _fmpz_vec_zero(out, n);
+    pcp_collect_word(WG, out, w);
+    pcw_clear(w);
+}
+
+/* out := A(w) for a word w, A given by the images lift (n x n) in H. */
+static void cover_apply_word(pcp_work_t WH, fmpz *out, const pcw_struct *w, const fmpz *lift,
+                             slong n)
+{
+    fmpz *t = _fmpz_vec_init(n);
+    _fmpz_vec_zero(out, n);
+    for (slong q = 0; q < w->len && !WH->overflow; q++) {
+        pcp_elt_pow(WH, t, lift + w->gen[q] * n, w->exp + q);
+        pcp_elt_mul(WH, out, out, t);
+    }
+    _fmpz_vec_clear(t, n);
+}
+
+/* Builds H and the lift of alpha (the images img in G, n x n) into M;
+ * 1 when every check passed, 0 otherwise (M unchanged).  A stop of the
+ * hook sets WG->overflow. */
+static int cover_build(iterate_map_t M, const fmpz *img, pcp_work_t WG)
+{
+    const pcp_struct *G = M->Q->pcp;
+    slong n = G->n;
+    if (n == 0 || n > ITERATE_COVER_MAX_PC)
+        return 0;
+    pcp_struct *H = flint_malloc(sizeof(pcp_struct));
+    pcp_init(H);
+    pcp_reset(H, n, G->weight, G->maxweight);
+    for (slong k = 1; k < G->ncore; k++)
+        for (slong i = 0; i < k; i++)
+            if (!G->trivial[pcp_slot(k, i)])
+                pcp_set_conj(H, k, i, G->conj + pcp_slot(k, i));
+    for (slong k = 0; k < n; k++)
+        H->def[k] = G->def[k];
+    pcp_work_t WH;
+    pcp_work_init(WH, H);
+    WH->progress = WG->progress;
+    int ok = !pcp_complete(H, WH) && pcp_is_consistent(H, WH);
+    fmpz *lift = _fmpz_vec_init(n * n), *l = _fmpz_vec_init(n), *r = _fmpz_vec_init(n);
+    for (slong k = 0; k < n && ok; k++) {
+        const pcp_def_struct *d = G->def + k;
+        if (d->kind == PCP_DEF_COMM && d->a < k && d->b < k)
+            pcp_elt_comm(WH, lift + k * n, lift + d->a * n, lift + d->b * n);
+        else
+            _fmpz_vec_set(lift + k * n, img + k * n, n);
+    }
+    /* A respects the relations of H */
+    for (slong i = 0; i < n && ok && !WH->overflow; i++)
+        for (slong k = i + 1; k < G->commute_from[i] && ok && !WH->overflow; k++) {
+            pcp_elt_conj(WH, l, lift + k * n, lift + i * n);
+            if (G->trivial[pcp_slot(k, i)])
+                _fmpz_vec_set(r, lift + k * n, n);
+            else
+                cover_apply_word(WH, r, G->conj + pcp_slot(k, i), lift, n);
+            ok = _fmpz_vec_equal(l, r, n);
+        }
+    /* rho A = alpha rho on the generators */
+    for (slong k = 0; k < n && ok && !WH->overflow && !WG->overflow; k++) {
+        cover_reduce(M, l, lift + k * n, WG);
+        ok = _fmpz_vec_equal(l, img + k * n, n);
+    }
+    if (WH->overflow)
+        WG->overflow = 1;
+    ok = ok && !WG->overflow;
+    if (ok) {
+        M->cover = H;
+        M->P = H;
+        M->hall = 1;
+        _fmpz_vec_set(M->tab->img, lift, n * n);
+    } else {
+        pcp_clear(H);
+        flint_free(H);
+    }
+    _fmpz_vec_clear(lift, n * n);
+    _fmpz_vec_clear(l, n);
+    _fmpz_vec_clear(r, n);
+    return ok;
+}
+
 ns_status iterate_map_set(iterate_map_t M, const nq_t Q, const endo_t E,
                           const ns_progress_t *progress, nserr_t err)
 {
@@ -382,6 +509,7 @@ ns_status iterate_map_set(iterate_map_t M, const nq_t Q, const endo_t E,
                          "the map is not well defined on the quotient: nothing to iterate");
     slong n = Q->pcp->n;
     M->Q = Q;
+    M->P = Q->pcp;
     M->n = n;
     M->deg = Q->pcp->maxweight;
     M->hall = Q->pcp->torsion_free;
@@ -393,10 +521,19 @@ ns_status iterate_map_set(iterate_map_t M, const nq_t Q, const endo_t E,
     M->ntab = 1;
     M->tab->img = _fmpz_vec_init(FLINT_MAX(n * n, 1));
     _fmpz_vec_set(M->tab->img, E->pc_img, n * n);
-    if (M->hall)
-        table_make_diff(M, M->tab, W);
-    if (M->hall && !W->overflow)
-        poly_build_first(M, M->tab, W);
+    if (!M->hall)
+        cover_build(M, E->pc_img, W);
+    if (M->hall && !W->overflow) {
+        pcp_work_t WH;
+        pcp_work_init(WH, M->P);
+        WH->progress = progress;
+        table_make_diff(M, M->tab, WH);
+        if (!WH->overflow)
+            poly_build_first(M, M->tab, WH);
+        if (WH->overflow)
+            W->overflow = 1;
+        pcp_work_clear(WH);
+    }
     int stopped = W->overflow;
     pcp_work_clear(W);
     if (stopped) {
@@ -443,15 +580,16 @@ ns_status iterate_map_advance(iterate_map_t M, fmpz *x, ulong k,
     if (k == 0 || n == 0)
         return NS_OK;
     pcp_work_t W;
-    pcp_work_init(W, M->Q->pcp);
+    pcp_work_init(W, M->P);
     W->progress = progress;
     fmpz *y = _fmpz_vec_init(n);
-    _fmpz_vec_set(y, x, n);
+    _fmpz_vec_set(y, x, n); /* with a cover: x read in H, a preimage */
     /* one step at a time for small k (no squared tables needed), by the
      * binary digits of k otherwise; the alpha^(2^b) commute.  Without Hall
-     * polynomials (finite relative orders) a squared table has huge
-     * exponents in its images, and applying it costs far more than k
-     * applications of alpha, whose images stay small: step singly there. */
+     * polynomials (finite relative orders and no cover) a squared table
+     * has huge exponents in its images, and applying it costs far more
+     * than k applications of alpha, whose images stay small: step singly
+     * there. */
     if (k <= 4 || !M->hall) {
         for (ulong s = 0; s < k && !W->overflow; s++)
             table_apply(M, M->tab, y, y, W);
@@ -463,6 +601,15 @@ ns_status iterate_map_advance(iterate_map_t M, fmpz *x, ulong k,
                 break;
             table_apply(M, M->tab + b, y, y, W);
         }
+    }
+    if (M->cover && !W->overflow) {
+        pcp_work_t WG;
+        pcp_work_init(WG, M->Q->pcp);
+        WG->progress = progress;
+        cover_reduce(M, y, y, WG);
+        if (WG->overflow)
+            W->overflow = 1;
+        pcp_work_clear(WG);
     }
     int stopped = W->overflow;
     pcp_work_clear(W);

@@ -68,9 +68,17 @@ typedef struct {
 
 typedef struct {
     const nq_struct *Q;  /* borrowed; must outlive the map */
+    const pcp_struct *P; /* where the tables live: Q's presentation, or the
+                            cover when there is one */
+    pcp_struct *cover;   /* owned, or NULL: the torsion-free cover H of a
+                            presentation with finite relative orders (its
+                            presentation without the power relations, see
+                            iterate.c); then the tables hold a lift of the
+                            map to H */
     slong n;             /* pc generators */
     slong deg;           /* degree bound of the Hall polynomials (= class) */
-    int hall;            /* 1: torsion-free presentation, powers by Hall */
+    int hall;            /* 1: the tables' presentation is torsion-free,
+                            powers by Hall */
     slong ntab;          /* tables built: alpha^(2^0) .. alpha^(2^(ntab-1)) */
     iterate_table_struct *tab;
     slong nlayers;

@@ -680,6 +680,30 @@ void pcp_elt_pow(pcp_work_t W, fmpz *out, const fmpz *u, const fmpz_t e)
                 break;
             }
         }
+    /* Reduce before powering: when every generator from u's first one on
+     * has a finite relative order, u lies in the subgroup N they generate,
+     * which is finite of order prod m_j (its normal words), so u^|N| = 1
+     * (Lagrange) and only e mod |N| matters.  A carry of a huge power word
+     * (cover_reduce in iterate.c) then costs what a small one does. */
+    if (g >= 0 && fmpz_bits(E) > PCP_SMALL_BITS) {
+        fmpz_t ord;
+        fmpz_init_set_ui(ord, 1);
+        for (slong k = g; k < n && !fmpz_is_zero(ord); k++)
+            fmpz_mul(ord, ord, W->P->relorder + k);
+        if (!fmpz_is_zero(ord) && (fmpz_sgn(e) < 0 || fmpz_cmp(e, ord) >= 0)) {
+            fmpz_t r;
+            fmpz_init(r);
+            fmpz_fdiv_r(r, e, ord);
+            pcp_elt_pow(W, out, u, r);
+            fmpz_clear(r);
+            fmpz_clear(ord);
+            fmpz_clear(E);
+            _fmpz_vec_clear(base, n);
+            _fmpz_vec_clear(res, n);
+            return;
+        }
+        fmpz_clear(ord);
+    }
     if (g >= 0 && head_central) {
         for (slong k = g; k < n && !W->overflow; k++) {
             if (fmpz_is_zero(u + k))

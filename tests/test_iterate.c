@@ -258,6 +258,279 @@ static void heisenberg_commutator_of_powers_should_be_power_of_commutator(void *
     nq_clear(Q);
 }
 
+/* Plain collection with W->plain set (no polynomial route anywhere). */
+static void plain_apply_plain(const pcp_t P, fmpz *x, const fmpz *img, slong n)
+{
+    pcp_work_t W;
+    pcp_work_init(W, P);
+    W->plain = 1;
+    plain_apply(W, x, img, n);
+    pcp_work_clear(W);
+}
+
+static void torsion_iterates_should_agree_with_plain_collection(void **state)
+{
+    (void)state;
+    rng_seed_test("torsion_iterates", 20261205u,
+                  "random maps of small groups with finite relative orders");
+    static const struct {
+        const char *pres;
+        slong cls;
+    } groups[] = {
+        {"<a, b | [a,b]^6>", 2},        {"<a, b | [a,b]^6>", 3},
+        {"<a, b | [a,b]^4>", 3},        {"<a, b | a^4>", 3},
+        {"<a, b | a^2, b^6>", 3},       {"<a, b | a^6, [a,b,b]>", 3},
+        {"<a, b | [a,b,a]^3, [a,b,b]^2>", 3}, {"<a, b, c | [a,b]^3, [a,c]^2>", 2},
+    };
+    slong cases = 0, covered = 0;
+    for (size_t g = 0; g < sizeof groups / sizeof groups[0]; g++) {
+        nq_t Q;
+        nq_init(Q);
+        compute_quotient(Q, groups[g].pres, groups[g].cls);
+        assert_false(Q->pcp->torsion_free);
+        slong n = Q->pcp->n, X = Q->pres->gens->n;
+        for (slong trial = 0; trial < iters(8); trial++) {
+            char map[600], word[120];
+            size_t at = 0;
+            for (slong x = 0; x < X; x++) {
+                random_word(word, sizeof word, Q, (int)rng_range(1, 3));
+                at += (size_t)snprintf(map + at, sizeof map - at, "%s%s -> %s", x ? ", " : "",
+                                       Q->pres->gens->name[x], word);
+            }
+            endo_t E;
+            endo_init(E);
+            if (!set_map(E, Q, map)) {
+                endo_clear(E);
+                continue;
+            }
+            iterate_map_t M;
+            iterate_map_init(M);
+            nserr_t err;
+            nserr_init(err);
+            assert_int_equal(iterate_map_set(M, Q, E, NULL, err), NS_OK);
+            pcp_work_t W;
+            pcp_work_init(W, Q->pcp);
+            endo_ensure_pc_images(E, Q, W);
+            pcp_work_clear(W);
+            fmpz *x0 = _fmpz_vec_init(n), *fast = _fmpz_vec_init(n), *slow = _fmpz_vec_init(n);
+            random_word(word, sizeof word, Q, 4);
+            eval_word(x0, Q, word);
+            /* n = 1..20: alpha^n in one call (squared tables past 4) against
+             * n applications by plain collection */
+            _fmpz_vec_set(slow, x0, n);
+            for (ulong k = 1; k <= 20; k++) {
+                plain_apply_plain(Q->pcp, slow, E->pc_img, n);
+                _fmpz_vec_set(fast, x0, n);
+                assert_int_equal(iterate_map_advance(M, fast, k, NULL, err), NS_OK);
+                if (!_fmpz_vec_equal(fast, slow, n)) {
+                    char *a = nq_elt_get_str(Q, fast), *b = nq_elt_get_str(Q, slow);
+                    fail_msg("%s class %ld, map %s, w = %s, n = %lu: fast %s, plain %s",
+                             groups[g].pres, (long)groups[g].cls, map, word, k, a, b);
+                }
+            }
+            /* large n: squaring against stepping one at a time (both exact;
+             * stepping reduces by the power relations after every step) */
+            if (M->cover) {
+                ulong N = (ulong)rng_range(100, 600);
+                _fmpz_vec_set(fast, x0, n);
+                _fmpz_vec_set(slow, x0, n);
+                assert_int_equal(iterate_map_advance(M, fast, N, NULL, err), NS_OK);
+                for (ulong k = 0; k < N; k++)
+                    assert_int_equal(iterate_map_advance(M, slow, 1, NULL, err), NS_OK);
+                if (!_fmpz_vec_equal(fast, slow, n))
+                    fail_msg("%s class %ld, map %s, w = %s, n = %lu: squaring and stepping differ",
+                             groups[g].pres, (long)groups[g].cls, map, word, N);
+                covered++;
+            }
+            cases++;
+            _fmpz_vec_clear(x0, n);
+            _fmpz_vec_clear(fast, n);
+            _fmpz_vec_clear(slow, n);
+            iterate_map_clear(M);
+            endo_clear(E);
+        }
+        nq_clear(Q);
+    }
+    printf("# %ld torsion cases, %ld through the torsion-free cover\n", (long)cases, (long)covered);
+    assert_true(covered >= 8);
+
+    /* A map that does not lift to the cover: in <a, b | a^2, b^6> at class
+     * 3, [b,a,a] = [b,a,b] (its presentation says so), which b -> b^-1
+     * does not respect in the group without power relations, where both
+     * have infinite order.  It steps in G, and agrees too. */
+    nq_t Q;
+    nq_init(Q);
+    compute_quotient(Q, "<a, b | a^2, b^6>", 3);
+    slong n = Q->pcp->n;
+    endo_t E;
+    endo_init(E);
+    assert_true(set_map(E, Q, "a -> a, b -> b^-1"));
+    iterate_map_t M;
+    iterate_map_init(M);
+    nserr_t err;
+    nserr_init(err);
+    assert_int_equal(iterate_map_set(M, Q, E, NULL, err), NS_OK);
+    assert_null(M->cover);
+    fmpz *x0 = _fmpz_vec_init(n), *fast = _fmpz_vec_init(n), *slow = _fmpz_vec_init(n);
+    eval_word(x0, Q, "a b^5 [b,a] a b^2");
+    _fmpz_vec_set(slow, x0, n);
+    for (ulong k = 1; k <= 20; k++) {
+        plain_apply_plain(Q->pcp, slow, E->pc_img, n);
+        _fmpz_vec_set(fast, x0, n);
+        assert_int_equal(iterate_map_advance(M, fast, k, NULL, err), NS_OK);
+        assert_true(_fmpz_vec_equal(fast, slow, n));
+    }
+    _fmpz_vec_clear(x0, n);
+    _fmpz_vec_clear(fast, n);
+    _fmpz_vec_clear(slow, n);
+    iterate_map_clear(M);
+    endo_clear(E);
+    nq_clear(Q);
+}
+
+/* <a, b | [a,b]^6> at class 3 is the free nilpotent group F of class 3 on
+ * a, b with its three commutators [b,a], [b,a,a], [b,a,b] made of order 6
+ * (checked below on the presentations: the same conjugate relations, no
+ * power words).  So the homomorphism F -> G, a -> a, b -> b, reduces those
+ * three coordinates mod 6 and nothing else, and commutes with the map
+ * a -> a^2 b, b -> a b given on both: alpha^n in G is alpha^n in F (the
+ * torsion-free route, Hall polynomials) reduced.  n = 300 and n = 100000;
+ * on the one-step-at-a-time route n = 300 does not finish in minutes. */
+static void torsion_layers_should_be_free_iterates_reduced(void **state)
+{
+    (void)state;
+    nq_t G, F;
+    nq_init(G);
+    nq_init(F);
+    compute_quotient(G, "<a, b | [a,b]^6>", 3);
+    compute_quotient(F, "<a, b | >", 3);
+    slong n = G->pcp->n;
+    assert_int_equal(n, 5);
+    assert_int_equal(F->pcp->n, 5);
+    for (slong i = 0; i < n; i++) {
+        assert_true(fmpz_equal_si(G->pcp->relorder + i, i < 2 ? 0 : 6));
+        assert_int_equal(G->pcp->pow[i].len, 0);
+    }
+    for (slong k = 1; k < G->pcp->ncore; k++)
+        for (slong i = 0; i < k; i++) {
+            slong s = pcp_slot(k, i);
+            assert_int_equal(G->pcp->trivial[s], F->pcp->trivial[s]);
+            if (G->pcp->trivial[s])
+                continue;
+            const pcw_struct *u = G->pcp->conj + s, *v = F->pcp->conj + s;
+            assert_int_equal(u->len, v->len);
+            for (slong q = 0; q < u->len; q++) {
+                assert_int_equal(u->gen[q], v->gen[q]);
+                assert_true(fmpz_equal(u->exp + q, v->exp + q));
+            }
+        }
+    endo_t EG, EF;
+    endo_init(EG);
+    endo_init(EF);
+    assert_true(set_map(EG, G, "a -> a^2 b, b -> a b"));
+    assert_true(set_map(EF, F, "a -> a^2 b, b -> a b"));
+    iterate_map_t MG, MF;
+    iterate_map_init(MG);
+    iterate_map_init(MF);
+    nserr_t err;
+    nserr_init(err);
+    assert_int_equal(iterate_map_set(MG, G, EG, NULL, err), NS_OK);
+    assert_int_equal(iterate_map_set(MF, F, EF, NULL, err), NS_OK);
+    fmpz *x = _fmpz_vec_init(n), *y = _fmpz_vec_init(n);
+    static const char *words[] = {"a", "b", "a^-3 b^2 [a,b]^5 [a,b,a]"};
+    static const ulong steps[] = {300, 100000};
+    for (size_t w = 0; w < 3; w++)
+        for (size_t t = 0; t < 2; t++) {
+            eval_word(x, G, words[w]);
+            eval_word(y, F, words[w]);
+            assert_int_equal(iterate_map_advance(MG, x, steps[t], NULL, err), NS_OK);
+            assert_int_equal(iterate_map_advance(MF, y, steps[t], NULL, err), NS_OK);
+            for (slong i = 2; i < n; i++)
+                fmpz_mod_ui(y + i, y + i, 6);
+            assert_true(fmpz_bits(y + 0) > 400); /* the exponents are huge */
+            assert_true(_fmpz_vec_equal(x, y, n));
+        }
+    _fmpz_vec_clear(x, n);
+    _fmpz_vec_clear(y, n);
+    iterate_map_clear(MG);
+    iterate_map_clear(MF);
+    endo_clear(EG);
+    endo_clear(EF);
+    nq_clear(G);
+    nq_clear(F);
+}
+
+/* In <a, b | [a,b]^6> at class 2 the commutator c = [a,b] is central of
+ * order 6, so [a^m, b^k] = [a,b]^(mk) = [a,b]^(mk mod 6) (the class-2
+ * identity: the commutator is bilinear when it is central; e.g. C. Drutu
+ * and M. Kapovich, Geometric Group Theory, 2018, ch. 13), for 100-digit m
+ * and k; and through the iterates of a -> a^m, b -> b^k,
+ * alpha^5([a,b]) = [a,b]^((mk)^5 mod 6). */
+static void torsion_commutator_of_huge_powers_should_reduce_mod_6(void **state)
+{
+    (void)state;
+    nq_t Q;
+    nq_init(Q);
+    compute_quotient(Q, "<a, b | [a,b]^6>", 2);
+    slong n = Q->pcp->n;
+    fmpz_t m, k, mk, r;
+    fmpz_init(m);
+    fmpz_init(k);
+    fmpz_init(mk);
+    fmpz_init(r);
+    fmpz_set_str(m, "3141592653589793238462643383279502884197169399375105820974944592307816"
+                    "406286208998628034825342117067", 10);
+    fmpz_set_str(k, "-2718281828459045235360287471352662497757247093699959574966967627724076"
+                    "630353547594571382178525166427", 10);
+    fmpz_mul(mk, m, k);
+    fmpz *a = _fmpz_vec_init(n), *b = _fmpz_vec_init(n), *c = _fmpz_vec_init(n);
+    fmpz *lhs = _fmpz_vec_init(n), *rhs = _fmpz_vec_init(n);
+    eval_word(a, Q, "a");
+    eval_word(b, Q, "b");
+    eval_word(c, Q, "[a,b]");
+    pcp_work_t W;
+    pcp_work_init(W, Q->pcp);
+    pcp_elt_pow(W, a, a, m);
+    pcp_elt_pow(W, b, b, k);
+    pcp_elt_comm(W, lhs, a, b);
+    fmpz_mod_ui(r, mk, 6);
+    assert_true(fmpz_equal_si(r, 3)); /* m = 3, k = 1 mod 6 (python3 by hand) */
+    pcp_elt_pow(W, rhs, c, r);
+    assert_true(_fmpz_vec_equal(lhs, rhs, n));
+    char *ms = fmpz_get_str(NULL, 10, m), *ks = fmpz_get_str(NULL, 10, k);
+    char map[600];
+    snprintf(map, sizeof map, "a -> a^%s, b -> b^(%s)", ms, ks);
+    flint_free(ms);
+    flint_free(ks);
+    endo_t E;
+    endo_init(E);
+    assert_true(set_map(E, Q, map));
+    iterate_map_t M;
+    iterate_map_init(M);
+    nserr_t err;
+    nserr_init(err);
+    assert_int_equal(iterate_map_set(M, Q, E, NULL, err), NS_OK);
+    _fmpz_vec_set(lhs, c, n);
+    assert_int_equal(iterate_map_advance(M, lhs, 5, NULL, err), NS_OK);
+    fmpz_pow_ui(mk, mk, 5);
+    fmpz_mod_ui(r, mk, 6);
+    pcp_elt_pow(W, rhs, c, r);
+    assert_true(_fmpz_vec_equal(lhs, rhs, n));
+    iterate_map_clear(M);
+    endo_clear(E);
+    pcp_work_clear(W);
+    _fmpz_vec_clear(a, n);
+    _fmpz_vec_clear(b, n);
+    _fmpz_vec_clear(c, n);
+    _fmpz_vec_clear(lhs, n);
+    _fmpz_vec_clear(rhs, n);
+    fmpz_clear(m);
+    fmpz_clear(k);
+    fmpz_clear(mk);
+    fmpz_clear(r);
+    nq_clear(Q);
+}
+
 /* The map x_j -> prod_i x_i^(M[i][j]) of free(r) as text. */
 static void matrix_map_text(char *buf, size_t size, const nq_t Q, const fmpz_mat_t A)
 {
@@ -590,6 +863,9 @@ int main(void)
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(fast_iterates_should_agree_with_plain_collection),
         cmocka_unit_test(heisenberg_commutator_of_powers_should_be_power_of_commutator),
+        cmocka_unit_test(torsion_iterates_should_agree_with_plain_collection),
+        cmocka_unit_test(torsion_layers_should_be_free_iterates_reduced),
+        cmocka_unit_test(torsion_commutator_of_huge_powers_should_reduce_mod_6),
         cmocka_unit_test(torus_iterates_should_be_matrix_powers),
         cmocka_unit_test(free_class2_second_layer_should_be_exterior_square),
         cmocka_unit_test(norm_of_known_iterate_should_be_exact),
