@@ -9,7 +9,14 @@
  *     target 1 s;
  *  3. the longest single step in 1 and 2, and the longest slice of the
  *     word-length search cut at 25 ms as the explorer cuts it: the
- *     explorer reads keys between steps and slices, target 50 ms.
+ *     explorer reads keys between steps and slices, target 50 ms;
+ *  4. torsion (<a, b | [a,b]^6> at class 3, the torsion-layers scenario,
+ *     a -> a^2 b, b -> a b): 300 iterates step by step, target 1 s; 10,000
+ *     iterates in jumps of 1000 (as --every 1000 asks), target 1 s; 300
+ *     iterates of an element with 100-digit exponents, target 1 s.  Each
+ *     of these stops after a budget of 60 s of wall time and says at which
+ *     step (the route that stepped in the torsion group itself took hours
+ *     for 300 steps).
  * Nothing is asserted; the machine may be shared, so the CPU time of the
  * thread is printed beside the wall clock (under load the wall clock of a
  * 25 ms slice also counts the time other processes hold the cores). */
@@ -39,6 +46,16 @@ static double cpu_now(void)
 
 static double longest_step, longest_step_cpu;
 
+static void print_load(void)
+{
+    double l[3];
+    FILE *f = fopen("/proc/loadavg", "r");
+    if (f != NULL && fscanf(f, "%lf %lf %lf", &l[0], &l[1], &l[2]) == 3)
+        printf("  machine load average %.2f %.2f %.2f\n", l[0], l[1], l[2]);
+    if (f != NULL)
+        fclose(f);
+}
+
 static int setup(nq_t Q, endo_t E, const char *pres_text, slong c, const char *map)
 {
     pres_t G;
@@ -62,8 +79,12 @@ static int setup(nq_t Q, endo_t E, const char *pres_text, slong c, const char *m
     return ok;
 }
 
-static void run(const char *what, const char *pres_text, slong c, const char *map, long steps,
-                double target)
+/* steps iterates in jumps of `every` (1: each step), each described;
+ * the start is the first generator, or with big set that generator to the
+ * power 10^99 + 7 times the second to the power -3 (10^99 + 7) when
+ * there are two.  Stops after budget seconds of wall time. */
+static void run_jumps(const char *what, const char *pres_text, slong c, const char *map,
+                      long steps, long every, int big, double target, double budget, int load)
 {
     nq_t Q;
     endo_t E;
@@ -80,29 +101,47 @@ static void run(const char *what, const char *pres_text, slong c, const char *ma
     slong n = Q->pcp->n;
     fmpz *x = _fmpz_vec_init(n);
     fmpz_one(x); /* the first generator */
+    if (big) {
+        fmpz_set_ui(x, 10);
+        fmpz_pow_ui(x, x, 99);
+        fmpz_add_ui(x, x, 7);
+        if (n > 1) {
+            fmpz_mul_ui(x + 1, x, 3);
+            fmpz_neg(x + 1, x + 1);
+        }
+    }
     iterate_point_t p;
     iterate_point_init(p);
     arb_t r;
     arb_init(r);
     double root = 0, t_adv = 0;
-    for (long k = 1; k <= steps; k++) {
+    long k = 0;
+    while (k < steps && now() - t0 < budget) {
+        long jump = every < steps - k ? every : steps - k;
         double s = now(), sc = cpu_now();
-        iterate_map_advance(M, x, 1, NULL, err);
+        iterate_map_advance(M, x, (ulong)jump, NULL, err);
+        k += jump;
         t_adv += now() - s;
         iterate_point_set(p, M, x, (ulong)k);
         iterate_point_root(r, p, 64);
         root = arf_get_d(arb_midref(r), ARF_RND_NEAR);
         s = now() - s;
         sc = cpu_now() - sc;
-        if (s > longest_step)
+        if (every == 1 && s > longest_step)
             longest_step = s;
-        if (sc > longest_step_cpu)
+        if (every == 1 && sc > longest_step_cpu)
             longest_step_cpu = sc;
     }
     double t = now() - t0, tc = cpu_now() - c0;
-    printf("%-52s %6ld iterates  %8.3f s wall, %.3f s CPU  (target %.0f s; the steps %.3f s "
-           "wall, describing them the rest)  root at n = %ld: %.6f  Hirsch length %ld\n",
-           what, steps, t, tc, target, t_adv, steps, root, (long)Q->hirsch_length);
+    char jumps[64] = "";
+    if (every > 1)
+        snprintf(jumps, sizeof jumps, " in jumps of %ld", every);
+    printf("%-52s %6ld iterates%s  %8.3f s wall, %.3f s CPU  (target %.0f s; the steps %.3f s "
+           "wall, describing them the rest)  root at n = %ld: %.6f  Hirsch length %ld%s\n",
+           what, k, jumps, t, tc, target, t_adv, k, root, (long)Q->hirsch_length,
+           k < steps ? "  STOPPED by the budget" : "");
+    if (load)
+        print_load();
     arb_clear(r);
     iterate_point_clear(p);
     _fmpz_vec_clear(x, n);
@@ -111,6 +150,12 @@ static void run(const char *what, const char *pres_text, slong c, const char *ma
 done:
     endo_clear(E);
     nq_clear(Q);
+}
+
+static void run(const char *what, const char *pres_text, slong c, const char *map, long steps,
+                double target)
+{
+    run_jumps(what, pres_text, c, map, steps, 1, 0, target, 1e9, 0);
 }
 
 typedef struct {
@@ -172,5 +217,10 @@ int main(void)
     printf("%-52s longest single step %.2f ms wall, %.2f ms CPU  (target 50 ms)\n",
            "explorer: one step", 1e3 * longest_step, 1e3 * longest_step_cpu);
     slices();
+    const char *tors = "<a, b | [a,b]^6>", *tmap = "a -> a^2 b, b -> a b";
+    run_jumps("torsion-layers (Z/6 in layers 2, 3), step by step", tors, 3, tmap, 300, 1, 0, 1,
+              60, 1);
+    run_jumps("torsion-layers, --every 1000", tors, 3, tmap, 10000, 1000, 0, 1, 60, 1);
+    run_jumps("torsion-layers, from a^(10^99+7) b^(-3 (10^99+7))", tors, 3, tmap, 300, 1, 1, 1, 60, 1);
     return 0;
 }

@@ -13,9 +13,14 @@
  * polynomials of degree <= c in e (P. Hall, "Nilpotent groups", 1957);
  * each table keeps their forward differences at 0, so a power is one
  * evaluation of c + 1 binomials whatever the size of e.  With finite
- * relative orders the exponents of finite generators are already reduced
- * (normal form, 0 <= g_k < m_k) and the others go by pcp_elt_pow, whose
- * cost grows with the bit length of the exponent, never with its value.
+ * relative orders the map is lifted, when it can be, to the torsion-free
+ * group H of the same presentation without its power relations (the
+ * cover, iterate.c states the conditions and why they suffice), the
+ * tables and polynomials below live in H, and each result is reduced to
+ * the quotient by collection.  Without a cover, the exponents of finite
+ * generators are already reduced (normal form, 0 <= g_k < m_k) and the
+ * others go by pcp_elt_pow, whose cost grows with the bit length of the
+ * exponent, never with its value, one application of the map at a time.
  *
  * Faster still, in those presentations the coordinates of alpha(x) are
  * integer-valued polynomials in the exponents x of weighted degree <= c (a
