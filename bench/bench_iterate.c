@@ -83,6 +83,14 @@ static int setup(nq_t Q, endo_t E, const char *pres_text, slong c, const char *m
  * the start is the first generator, or with big set that generator to the
  * power 10^99 + 7 times the second to the power -3 (10^99 + 7) when
  * there are two.  Stops after budget seconds of wall time. */
+/* Stops a call once the budget's deadline has passed. */
+static int deadline_hook(void *ctx, const char *stage, double fraction)
+{
+    (void)stage;
+    (void)fraction;
+    return now() > *(const double *)ctx;
+}
+
 static void run_jumps(const char *what, const char *pres_text, slong c, const char *map,
                       long steps, long every, int big, double target, double budget, int load)
 {
@@ -114,12 +122,14 @@ static void run_jumps(const char *what, const char *pres_text, slong c, const ch
     iterate_point_init(p);
     arb_t r;
     arb_init(r);
-    double root = 0, t_adv = 0;
+    double root = 0, t_adv = 0, deadline = t0 + budget;
+    ns_progress_t hook = {deadline_hook, &deadline};
     long k = 0;
-    while (k < steps && now() - t0 < budget) {
+    while (k < steps) {
         long jump = every < steps - k ? every : steps - k;
         double s = now(), sc = cpu_now();
-        iterate_map_advance(M, x, (ulong)jump, NULL, err);
+        if (iterate_map_advance(M, x, (ulong)jump, &hook, err) != NS_OK)
+            break; /* the budget is spent */
         k += jump;
         t_adv += now() - s;
         iterate_point_set(p, M, x, (ulong)k);
