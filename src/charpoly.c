@@ -8,6 +8,7 @@
 
 #include <flint/nmod_mat.h>
 #include <flint/nmod_poly.h>
+#include <flint/fmpz_vec.h>
 #include <flint/nmod_vec.h>
 #include <flint/ulong_extras.h>
 #include <arb.h>
@@ -96,11 +97,132 @@ slong charpoly_bound_bits(const fmpz_mat_t M)
     return bits;
 }
 
-slong charpoly_num_primes(const fmpz_mat_t M)
+slong charpoly_num_primes_bounded(const fmpz_mat_t M, slong bound_bits)
 {
+    slong bits = charpoly_bound_bits(M);
+    if (bound_bits >= 0 && bound_bits < bits)
+        bits = bound_bits;
     /* primes above 2^62 each add more than 62 bits; the product must reach
        2^(bits + 1) > 2B */
-    return (charpoly_bound_bits(M) + 1) / 62 + 1;
+    return (bits + 1) / 62 + 1;
+}
+
+slong charpoly_num_primes(const fmpz_mat_t M)
+{
+    return charpoly_num_primes_bounded(M, -1);
+}
+
+/* One content alpha of charpoly_lie_bound_bits: the bound u^alpha of the
+ * moduli of its roots and their number m(alpha) (at most d). */
+typedef struct {
+    mag_struct v;
+    slong m;
+} lie_root_struct;
+
+static int lie_root_cmp_desc(const void *a, const void *b)
+{
+    return mag_cmp(&((const lie_root_struct *)b)->v, &((const lie_root_struct *)a)->v);
+}
+
+static int moebius(slong n);
+
+slong charpoly_lie_bound_bits(const mag_struct *u, slong r, slong n, slong d)
+{
+    if (d <= 0)
+        return 0;
+    if (r <= 0 || n < 1)
+        return -1;
+    /* the contents alpha: compositions of n into r parts */
+    fmpz_t cnt;
+    fmpz_init(cnt);
+    fmpz_bin_uiui(cnt, (ulong)(n + r - 1), (ulong)(r - 1));
+    int too_many = fmpz_cmp_si(cnt, CHARPOLY_LIE_MAX_CONTENTS) > 0;
+    slong ncont = too_many ? 0 : fmpz_get_si(cnt);
+    fmpz_clear(cnt);
+    if (too_many)
+        return -1;
+
+    fmpz *fac = _fmpz_vec_init(n + 1);
+    for (slong i = 0; i <= n; i++)
+        fmpz_fac_ui(fac + i, (ulong)i);
+    lie_root_struct *roots = flint_malloc(sizeof(lie_root_struct) * ncont);
+    slong *alpha = flint_calloc((size_t)r, sizeof(slong));
+    fmpz_t m, t;
+    mag_t pw;
+    fmpz_init(m);
+    fmpz_init(t);
+    mag_init(pw);
+    slong nroots = 0;
+    alpha[0] = n;
+    for (;;) {
+        /* m(alpha) = (1/n) sum_{e | gcd alpha} mu(e) (n/e)! / prod (alpha_i/e)! */
+        slong g = 0;
+        for (slong i = 0; i < r; i++)
+            g = (slong)n_gcd((ulong)g, (ulong)alpha[i]);
+        fmpz_zero(m);
+        for (slong e = 1; e <= g; e++) {
+            int mu = g % e == 0 ? moebius(e) : 0;
+            if (mu == 0)
+                continue;
+            fmpz_set(t, fac + n / e);
+            for (slong i = 0; i < r; i++)
+                fmpz_divexact(t, t, fac + alpha[i] / e);
+            if (mu > 0)
+                fmpz_add(m, m, t);
+            else
+                fmpz_sub(m, m, t);
+        }
+        fmpz_divexact_si(m, m, n);
+        if (!fmpz_is_zero(m)) {
+            lie_root_struct *R = roots + nroots++;
+            R->m = fmpz_cmp_si(m, d) > 0 ? d : fmpz_get_si(m);
+            mag_init(&R->v);
+            mag_one(&R->v);
+            for (slong i = 0; i < r; i++)
+                if (alpha[i] > 0) {
+                    mag_pow_ui(pw, u + i, (ulong)alpha[i]);
+                    mag_mul(&R->v, &R->v, pw);
+                }
+        }
+        /* the next composition (from (n, 0, ..., 0) to (0, ..., 0, n)):
+           the last part before the end that is nonzero gives one unit to
+           its right neighbour, which also takes what the end held */
+        if (alpha[r - 1] == n)
+            break;
+        slong h = r - 2;
+        while (alpha[h] == 0)
+            h--;
+        slong end = alpha[r - 1];
+        alpha[r - 1] = 0;
+        alpha[h]--;
+        alpha[h + 1] = end + 1;
+    }
+    flint_free(alpha);
+    fmpz_clear(m);
+    fmpz_clear(t);
+    _fmpz_vec_clear(fac, n + 1);
+
+    /* the d largest bounds with multiplicity, each as (1 + u^alpha) */
+    qsort(roots, (size_t)nroots, sizeof(lie_root_struct), lie_root_cmp_desc);
+    mag_t prod;
+    mag_init(prod);
+    mag_one(prod);
+    slong left = d;
+    for (slong i = 0; i < nroots; i++) {
+        if (left > 0) {
+            slong take = FLINT_MIN(left, roots[i].m);
+            mag_add_ui(pw, &roots[i].v, 1);
+            mag_pow_ui(pw, pw, (ulong)take);
+            mag_mul(prod, prod, pw);
+            left -= take;
+        }
+        mag_clear(&roots[i].v);
+    }
+    flint_free(roots);
+    mag_clear(pw);
+    slong bits = left > 0 ? -1 : FLINT_MAX(fmpz_get_si(MAG_EXPREF(prod)), 1);
+    mag_clear(prod);
+    return bits;
 }
 
 /* The work shared by the calling thread and the workers of one call. */
@@ -318,6 +440,12 @@ static int run_threads(job_struct *J, slong nthreads, const ns_progress_t *progr
 ns_status charpoly_compute(fmpz_poly_t cp, const fmpz_mat_t M, slong threads,
                            const ns_progress_t *progress, nserr_t err)
 {
+    return charpoly_compute_bounded(cp, M, -1, threads, progress, err);
+}
+
+ns_status charpoly_compute_bounded(fmpz_poly_t cp, const fmpz_mat_t M, slong bound_bits,
+                                   slong threads, const ns_progress_t *progress, nserr_t err)
+{
     slong d = fmpz_mat_nrows(M);
     if (d != fmpz_mat_ncols(M))
         return nserr_set(err, NS_ERR_INPUT, 0, 0, "charpoly: the matrix is %ld x %ld, not square",
@@ -332,7 +460,7 @@ ns_status charpoly_compute(fmpz_poly_t cp, const fmpz_mat_t M, slong threads,
 
     job_struct J;
     J.M = M;
-    J.nprimes = charpoly_num_primes(M);
+    J.nprimes = charpoly_num_primes_bounded(M, bound_bits);
     J.next = J.done = 0;
     J.stop = 0;
     mp_limb_t *primes = flint_malloc(sizeof(mp_limb_t) * J.nprimes);

@@ -41,6 +41,7 @@
 
 #include <flint/fmpz_mat.h>
 #include <flint/fmpz_poly.h>
+#include <mag.h>
 
 #include "nserr.h"
 
@@ -58,6 +59,61 @@ slong charpoly_bound_bits(const fmpz_mat_t M);
  * uses for M. */
 slong charpoly_num_primes(const fmpz_mat_t M);
 
+/* The number of primes charpoly_compute_bounded uses for M and bound_bits:
+ * as charpoly_num_primes, with the bound min(charpoly_bound_bits(M),
+ * bound_bits) when bound_bits >= 0. */
+slong charpoly_num_primes_bounded(const fmpz_mat_t M, slong bound_bits);
+
+/* A tighter bound for a caller that knows where M comes from: the layer
+ * matrices of a group whose graded Lie ring is generated in degree 1.
+ *
+ * Let A be an r x r matrix (over C) with eigenvalues lambda_1..lambda_r
+ * and |lambda_i| <= u_i, and let p(x) be a monic divisor of degree d of
+ * P_n(x) = det(xI - L_n(A)), L_n the degree-n part of the free Lie
+ * algebra on C^r (W. Magnus 1937, E. Witt 1937, as for charpoly_free_lie
+ * below).  Then every coefficient of p is less than 2^b in absolute value,
+ * b = charpoly_lie_bound_bits(u, r, n, d).
+ *
+ * Why.  (1) The roots of P_n.  L_n is graded by content: the part of
+ * content alpha (each bracket monomial using letter i alpha_i times) has
+ * dimension
+ *   m(alpha) = (1/n) sum_{e | gcd alpha} mu(e) (n/e)! / prod_i (alpha_i/e)!,
+ * the number of Lyndon words of content alpha (E. Witt, "Treue Darstellung
+ * Liescher Ringe", J. reine angew. Math. 177, 1937; K.-T. Chen, R. H. Fox,
+ * R. C. Lyndon, "Free differential calculus IV", Ann. of Math. 68, 1958).
+ * A = diag(lambda) acts on that part by lambda^alpha = prod lambda_i^alpha_i,
+ * so P_n(x) = prod_alpha (x - lambda^alpha)^m(alpha) for diagonalisable A.
+ * Both sides are polynomials in the entries of A: the left because L_n(A)
+ * is the restriction of the n-th tensor power of A to an invariant
+ * subspace with a fixed basis, the right because its coefficients are
+ * symmetric polynomials in the lambda_i with integer coefficients, hence
+ * polynomials in the coefficients of det(xI - A).  Diagonalisable matrices
+ * are dense in M_r(C), so the identity holds for every A: the roots of P_n
+ * are the lambda^alpha with multiplicity m(alpha), whatever A's Jordan
+ * form (H. Brandt, Trans. AMS 56, 1944, states it as a character).
+ * (2) The roots mu_1..mu_d of p are a sub-multiset of those, and
+ * |c_k(p)| = |e_k(mu)| <= e_k(|mu|) <= prod_i (1 + |mu_i|) (the e_k of
+ * nonnegative numbers add up to that product).  (3) The product only grows
+ * when each |mu_i| is replaced by its bound u^alpha, and the sub-multiset
+ * by the d largest u^alpha (with multiplicity): the bound is
+ *   prod over the d largest u^alpha (with multiplicity) of (1 + u^alpha),
+ * evaluated with upward rounding (Arb's mag_t).
+ * Mignotte's factor bound (M. Mignotte, "An inequality about factors of
+ * polynomials", Math. Comp. 28, 1974: |c_k(p)| <= C(d,k) ||P_n||_2) was
+ * the alternative: it needs P_n's coefficients (degree Witt's rank, in the
+ * thousands), and ||P_n||_2 >= M(P_n) (M the Mahler measure) counts every
+ * root of P_n, also those of the cofactor, where the product above counts
+ * only d roots and exceeds max_k e_k of their bounds by at most a factor
+ * d + 1 (for (x - 1)^d: 2^d against C(d, d/2)).
+ *
+ * u: r upper bounds of the moduli (mag_t, e.g. arb_get_mag of certified
+ * modulus balls); n >= 1; d >= 0.  Returns -1 when it cannot say: d
+ * exceeds Witt's rank of L_n (p cannot divide P_n: the caller's data are
+ * not what this assumes), or there are more than CHARPOLY_LIE_MAX_CONTENTS
+ * contents alpha (C(n + r - 1, r - 1)) to enumerate; 0 for d = 0. */
+#define CHARPOLY_LIE_MAX_CONTENTS 200000
+slong charpoly_lie_bound_bits(const mag_struct *u, slong r, slong n, slong d);
+
 /* cp := det(xI - M) for a square M.  threads <= 0 means one per online
  * processor (at most CHARPOLY_MAX_THREADS); 1 computes in the calling
  * thread.  progress (may be NULL) is polled inside and between primes
@@ -66,6 +122,15 @@ slong charpoly_num_primes(const fmpz_mat_t M);
  * cp = 0.  Returns NS_OK otherwise. */
 ns_status charpoly_compute(fmpz_poly_t cp, const fmpz_mat_t M, slong threads,
                            const ns_progress_t *progress, nserr_t err);
+
+/* The same with a coefficient bound from the caller (e.g.
+ * charpoly_lie_bound_bits): bound_bits >= 0 promises that every
+ * coefficient of det(xI - M) is less than 2^bound_bits in absolute value,
+ * and the primes then follow the least of that and charpoly_bound_bits(M)
+ * (the old bound is kept as a cap); bound_bits < 0 is charpoly_compute.
+ * A promise that is wrong gives a wrong polynomial: it must be proven. */
+ns_status charpoly_compute_bounded(fmpz_poly_t cp, const fmpz_mat_t M, slong bound_bits,
+                                   slong threads, const ns_progress_t *progress, nserr_t err);
 
 /* The layers of a free nilpotent group need no multimodular work at all.
  * Layer n of the free group F of rank r is the degree-n part L_n of the

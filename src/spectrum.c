@@ -59,6 +59,7 @@ static void spectrum_reset(spectrum_t S)
     S->radius_exact = 1;
     qqbar_zero(S->radius_qqbar);
     arb_zero(S->entropy);
+    S->charpoly_primes = 0;
 }
 
 void spectrum_init(spectrum_t S)
@@ -169,6 +170,12 @@ ns_status spectrum_compute(spectrum_t S, const fmpz_mat_t M, nserr_t err)
 ns_status spectrum_compute_progress(spectrum_t S, const fmpz_mat_t M,
                                     const ns_progress_t *progress, nserr_t err)
 {
+    return spectrum_compute_bounded(S, M, -1, progress, err);
+}
+
+ns_status spectrum_compute_bounded(spectrum_t S, const fmpz_mat_t M, slong bound_bits,
+                                   const ns_progress_t *progress, nserr_t err)
+{
     slong d;
     ns_status st;
 
@@ -185,12 +192,14 @@ ns_status spectrum_compute_progress(spectrum_t S, const fmpz_mat_t M,
         spectrum_reset(S);
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     }
-    st = charpoly_compute(S->charpoly, M, 0, progress, err);
+    st = charpoly_compute_bounded(S->charpoly, M, bound_bits, 0, progress, err);
     if (st != NS_OK)
     {
         spectrum_reset(S);
         return st;
     }
+    if (d >= CHARPOLY_OWN_MIN_DIM)
+        S->charpoly_primes = charpoly_num_primes_bounded(M, bound_bits);
     return spectrum_finish(S, progress, err);
 }
 
@@ -298,6 +307,11 @@ static ns_status spectrum_finish(spectrum_t S, const ns_progress_t *progress, ns
 /* ======================================================================
  * Accessors
  * ====================================================================== */
+
+slong spectrum_charpoly_primes(const spectrum_t S)
+{
+    return S->charpoly_primes;
+}
 
 slong spectrum_dim(const spectrum_t S)
 {

@@ -154,6 +154,10 @@ typedef struct
     slong *dom;                    /*  do when rho is exact) */
 
     arb_t entropy;                 /* sum_{|lambda|>1} log|lambda| */
+
+    slong charpoly_primes;         /* primes charpoly_compute_bounded used;
+                                      0 when FLINT's fmpz_mat_charpoly did the
+                                      work (small d) or cp was given */
 } spectrum_struct;
 
 typedef spectrum_struct spectrum_t[1];
@@ -187,6 +191,14 @@ ns_status spectrum_compute(spectrum_t S, const fmpz_mat_t M, nserr_t err);
 ns_status spectrum_compute_progress(spectrum_t S, const fmpz_mat_t M,
                                     const ns_progress_t *progress, nserr_t err);
 
+/* The same with a proven coefficient bound from the caller: every
+ * coefficient of det(xI - M) is less than 2^bound_bits in absolute value
+ * (charpoly_compute_bounded; bound_bits < 0: none, as
+ * spectrum_compute_progress).  The layers of a nilpotent group get it from
+ * layer 1 (charpoly_lie_bound_bits, src/analysis.c). */
+ns_status spectrum_compute_bounded(spectrum_t S, const fmpz_mat_t M, slong bound_bits,
+                                   const ns_progress_t *progress, nserr_t err);
+
 /* The same from the characteristic polynomial cp of the matrix (monic; its
  * degree is the dimension), for a caller that knows it by another route
  * (charpoly_free_lie).  progress (may be NULL) is polled as above from
@@ -196,6 +208,10 @@ ns_status spectrum_set_charpoly(spectrum_t S, const fmpz_poly_t cp,
                                 const ns_progress_t *progress, nserr_t err);
 
 /* ---- polynomial data --------------------------------------------------- */
+
+/* The number of word-size primes the characteristic polynomial took (see
+ * the struct), for tests and benchmarks. */
+slong spectrum_charpoly_primes(const spectrum_t S);
 
 /* d, the dimension of M. */
 slong spectrum_dim(const spectrum_t S);
