@@ -419,7 +419,8 @@ static slong layer_charpoly_bound_bits(const analysis_t A, slong j)
 {
     const spectrum_struct *S1 = A->layers[0].spectrum;
     slong r = spectrum_dim(S1), d = fmpz_mat_nrows(A->layers[j - 1].matrix);
-    if (j < 2 || r != fmpz_mat_nrows(A->layers[0].matrix))
+    /* below CHARPOLY_OWN_MIN_DIM FLINT's charpoly takes no bound */
+    if (j < 2 || d < CHARPOLY_OWN_MIN_DIM || r != fmpz_mat_nrows(A->layers[0].matrix))
         return -1;
     mag_struct *u = flint_malloc(sizeof(mag_struct) * FLINT_MAX(r, 1));
     for (slong i = 0; i < r; i++) {
