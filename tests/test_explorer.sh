@@ -553,7 +553,7 @@ if wait_for "analysing the map" 120; then
     fi
     screen | grep -qE "Computing|analysing the map" || fail "the resized frame does not say what runs"
 fi
-keys Escape                        # the spectra of layer 5 take minutes
+keys Escape                        # the spectra of layer 5 take tens of seconds
 wait_for "not analysed" 60
 screen | grep -q "j=0" && fail "half-built bounds painted after the cancel"
 keys q
