@@ -51,8 +51,33 @@ static void comm_coords_addmul(fmpz *v, const nq_t Q, const layer_struct *L, slo
     fmpz_clear(g);
 }
 
+/* col += f (the layer-j coordinates of [a_x, a_y]), x of weight j-1 and y
+ * of weight 1, from the actions on layers j-1 and 1 by bilinearity. */
+static void comm_col_addmul(fmpz *col, const endo_t E, const nq_t Q, slong j, slong x, slong y,
+                            const fmpz_t f)
+{
+    const layer_struct *L = Q->layers + j, *L0 = Q->layers + j - 1, *L1 = Q->layers;
+    const fmpz_mat_struct *A0 = E->act + j - 1, *A1 = E->act;
+    slong ca = x - L0->start, cb = y - L1->start;
+    fmpz_t g;
+    fmpz_init(g);
+    for (slong p = 0; p < L0->count; p++) {
+        if (fmpz_is_zero(fmpz_mat_entry(A0, p, ca)))
+            continue;
+        for (slong q = 0; q < L1->count; q++) {
+            fmpz_mul(g, fmpz_mat_entry(A0, p, ca), fmpz_mat_entry(A1, q, cb));
+            fmpz_mul(g, g, f);
+            if (!fmpz_is_zero(g))
+                comm_coords_addmul(col, Q, L, L0->start + p, L1->start + q, g);
+        }
+    }
+    fmpz_clear(g);
+}
+
 /* The actions on the layers, layer 1 from the generator images and layer j
- * from layers j-1 and 1 by bilinearity of the commutator. */
+ * from layers j-1 and 1 by bilinearity of the commutator; a generator
+ * defined as a product (pcp.h) gets the combination of its terms' columns,
+ * the layer being abelian. */
 static void layer_actions(endo_t E, const nq_t Q)
 {
     slong n = Q->pcp->n, c = Q->class_reached;
@@ -67,21 +92,19 @@ static void layer_actions(endo_t E, const nq_t Q)
         for (slong k = 0; k < L->count; k++) {
             const pcp_def_struct *d = Q->pcp->def + L->start + k;
             _fmpz_vec_zero(col, L->count);
-            if (j == 0) {
+            if (d->kind == PCP_DEF_PROD) {
+                for (slong t = 0; t < d->len; t++) {
+                    if (d->tb[t] < 0)
+                        _fmpz_vec_scalar_addmul_fmpz(col, E->gen_img + d->ta[t] * n + L->start,
+                                                     L->count, d->exp + t);
+                    else
+                        comm_col_addmul(col, E, Q, j, d->ta[t], d->tb[t], d->exp + t);
+                }
+            } else if (j == 0) {
                 _fmpz_vec_set(col, E->gen_img + d->a * n + L->start, L->count);
             } else {
-                const layer_struct *L0 = Q->layers + j - 1, *L1 = Q->layers;
-                const fmpz_mat_struct *A0 = E->act + j - 1, *A1 = E->act;
-                slong ca = d->a - L0->start, cb = d->b - L1->start;
-                for (slong p = 0; p < L0->count; p++) {
-                    if (fmpz_is_zero(fmpz_mat_entry(A0, p, ca)))
-                        continue;
-                    for (slong q = 0; q < L1->count; q++) {
-                        fmpz_mul(f, fmpz_mat_entry(A0, p, ca), fmpz_mat_entry(A1, q, cb));
-                        if (!fmpz_is_zero(f))
-                            comm_coords_addmul(col, Q, L, L0->start + p, L1->start + q, f);
-                    }
-                }
+                fmpz_one(f);
+                comm_col_addmul(col, E, Q, j, d->a, d->b, f);
             }
             for (slong i = 0; i < L->count; i++)
                 fmpz_swap(fmpz_mat_entry(E->act + j, i, k), col + i);
@@ -97,13 +120,29 @@ int endo_ensure_pc_images(const endo_t E, const nq_t Q, pcp_work_t W)
         return W->overflow;
     slong n = Q->pcp->n;
     fmpz *img = _fmpz_vec_init(FLINT_MAX(n * n, 1));
+    fmpz *term = _fmpz_vec_init(FLINT_MAX(n, 1));
     for (slong k = 0; k < n && !W->overflow; k++) {
         const pcp_def_struct *d = Q->pcp->def + k;
         if (d->kind == PCP_DEF_IMAGE)
             _fmpz_vec_set(img + k * n, E->gen_img + d->a * n, n);
-        else
+        else if (d->kind == PCP_DEF_COMM)
             pcp_elt_comm(W, img + k * n, img + d->a * n, img + d->b * n);
+        else {
+            /* the definition holds exactly (pcp.h), so its image is the
+               product of the images of its terms */
+            fmpz *u = img + k * n;
+            _fmpz_vec_zero(u, n);
+            for (slong t = 0; t < d->len && !W->overflow; t++) {
+                if (d->tb[t] < 0)
+                    _fmpz_vec_set(term, E->gen_img + d->ta[t] * n, n);
+                else
+                    pcp_elt_comm(W, term, img + d->ta[t] * n, img + d->tb[t] * n);
+                pcp_elt_pow(W, term, term, d->exp + t);
+                pcp_elt_mul(W, u, u, term);
+            }
+        }
     }
+    _fmpz_vec_clear(term, FLINT_MAX(n, 1));
     if (W->overflow) {
         _fmpz_vec_clear(img, FLINT_MAX(n * n, 1));
         return 1;

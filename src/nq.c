@@ -130,6 +130,68 @@ static void set_survivor_powers(pcp_t P, const elim_quotient_t q, slong base)
 
 static void drop_redundant_survivors(elim_quotient_t q);
 
+/* A change of basis of a new layer (minimise_survivors): some survivors
+ * are new generators, each a combination of the survivors before. */
+typedef struct {
+    slong nold;     /* survivors before */
+    slong *oldsurv; /* nold: their columns (tails; input generators in class 1) */
+    slong nsurv;    /* survivors after */
+    slong *which;   /* nsurv: the new generator a survivor is, or -1 (an old one) */
+    slong nnew;
+    fmpz *comb;     /* nnew x nold: new generator k = sum_j comb[k][j] (old survivor j) */
+} basis_change_struct;
+
+static void basis_change_init(basis_change_struct *B)
+{
+    memset(B, 0, sizeof(basis_change_struct));
+}
+
+static void basis_change_clear(basis_change_struct *B)
+{
+    flint_free(B->oldsurv);
+    flint_free(B->which);
+    if (B->comb)
+        _fmpz_vec_clear(B->comb, B->nnew * B->nold);
+    basis_change_init(B);
+}
+
+static void minimise_survivors(elim_quotient_t q, basis_change_struct *B);
+
+/* d := the definition of survivor s when it is a new generator of B: the
+ * product of the terms of the old survivors, old survivor column col
+ * giving the term (ta[col], tb[col]) (tb < 0: an image).  Returns 0 when s
+ * is an old survivor (d untouched). */
+static int basis_change_def(pcp_def_struct *d, const basis_change_struct *B, slong s,
+                            const slong *ta, const slong *tb)
+{
+    if (B->which == NULL || B->which[s] < 0)
+        return 0;
+    const fmpz *v = B->comb + B->which[s] * B->nold;
+    slong len = 0;
+    slong *a = flint_malloc(B->nold * sizeof(slong)), *b = flint_malloc(B->nold * sizeof(slong));
+    fmpz *e = _fmpz_vec_init(B->nold);
+    for (slong j = 0; j < B->nold; j++) {
+        if (fmpz_is_zero(v + j))
+            continue;
+        a[len] = ta[B->oldsurv[j]];
+        b[len] = tb[B->oldsurv[j]];
+        fmpz_set(e + len, v + j);
+        len++;
+    }
+    if (len == 1 && fmpz_is_one(e)) {
+        /* an old survivor after all: its own definition */
+        pcp_def_clear(d);
+        d->kind = b[0] < 0 ? PCP_DEF_IMAGE : PCP_DEF_COMM;
+        d->a = a[0];
+        d->b = b[0] < 0 ? 0 : b[0];
+    } else
+        pcp_def_set_prod(d, len, a, b, e);
+    flint_free(a);
+    flint_free(b);
+    _fmpz_vec_clear(e, B->nold);
+    return 1;
+}
+
 static ns_status class_one(nq_t Q, pcp_work_t W, nserr_t err)
 {
     slong X = Q->pres->gens->n;
@@ -144,16 +206,34 @@ static ns_status class_one(nq_t Q, pcp_work_t W, nserr_t err)
     }
     elim_get_quotient(q, E);
     drop_redundant_survivors(q);
+    basis_change_struct B;
+    basis_change_init(&B);
+    if (!(Q->flags & NQ_KEEP_DEPENDENT))
+        minimise_survivors(q, &B);
     slong ns = q->nsurv;
     slong *wt = flint_malloc(FLINT_MAX(ns, 1) * sizeof(slong));
     for (slong s = 0; s < ns; s++)
         wt[s] = 1;
     pcp_reset(Q->pcp, ns, wt, 1);
     set_survivor_powers(Q->pcp, q, 0);
-    for (slong s = 0; s < ns; s++) {
-        Q->pcp->def[s].kind = PCP_DEF_IMAGE;
-        Q->pcp->def[s].a = q->surv[s];
+    {
+        /* survivor column x is input generator x: the term is its image */
+        slong *ta = flint_malloc(FLINT_MAX(X, 1) * sizeof(slong));
+        slong *tb = flint_malloc(FLINT_MAX(X, 1) * sizeof(slong));
+        for (slong x = 0; x < X; x++) {
+            ta[x] = x;
+            tb[x] = -1;
+        }
+        for (slong s = 0; s < ns; s++) {
+            if (basis_change_def(Q->pcp->def + s, &B, s, ta, tb))
+                continue;
+            Q->pcp->def[s].kind = PCP_DEF_IMAGE;
+            Q->pcp->def[s].a = q->surv[s];
+        }
+        flint_free(ta);
+        flint_free(tb);
     }
+    basis_change_clear(&B);
     Q->images = _fmpz_vec_init(FLINT_MAX(X * ns, 1));
     for (slong x = 0; x < X; x++)
         tail_value(Q->images + x * ns, q, x);
@@ -251,6 +331,8 @@ struct step_struct {
     fmpz *rows;
     slong max_entries;  /* > 0: rows beyond this many entries are only counted */
     int over;           /* 1: some were */
+    int flags;          /* the quotient's NQ_ flags */
+    basis_change_struct basis; /* the new layer's change of basis, if any */
 };
 
 static void step_add_relation(step_struct *S, const fmpz *row)
@@ -279,6 +361,8 @@ static void step_init(step_struct *S, const nq_t Q, slong c)
 {
     memset(S, 0, sizeof(step_struct));
     S->c = c;
+    S->flags = Q->flags;
+    basis_change_init(&S->basis);
     S->n = Q->pcp->n;
     S->X = Q->pres->gens->n;
     S->nslots = S->n * (S->n - 1) / 2;
@@ -294,6 +378,7 @@ static void step_init(step_struct *S, const nq_t Q, slong c)
 
 static void step_clear(step_struct *S)
 {
+    basis_change_clear(&S->basis);
     if (S->rows) {
         _fmpz_vec_clear(S->rows, S->arows * S->T);
     }
@@ -329,6 +414,8 @@ static ns_status step_plan_tails(step_struct *S, const nq_t Q, nserr_t err)
     slong n = S->n, X = S->X, c = S->c;
     char *isdef = flint_calloc(FLINT_MAX(S->nslots, 1), 1);
     char *imgdef = flint_calloc(FLINT_MAX(X, 1), 1);
+    /* a product definition defines no single relation: every relation it
+       uses keeps its tail, and step_tail_relations ties the tails together */
     for (slong g = 0; g < n; g++) {
         if (P->def[g].kind == PCP_DEF_COMM)
             isdef[pcp_slot(P->def[g].a, P->def[g].b)] = 1;
@@ -419,6 +506,60 @@ static ns_status step_tailed_presentation(step_struct *S, const nq_t Q, pcp_work
     return NS_OK;
 }
 
+/* Part of phase 3: a generator a_g defined as a product D of commutators
+ * (or images) is, in the tailed presentation, D times a combination of
+ * the tails of D's relations, none of which is a definition.  As for a
+ * commutator definition, whose relation simply gets no tail, a_g is taken
+ * to be D itself in the covering group (that only names an element of
+ * it), which makes the tail part of D a_g^-1 zero: one linear relation,
+ * computed by collecting D in the tailed presentation. */
+static ns_status step_definition_relations(step_struct *S, const nq_t Q, pcp_work_t W,
+                                           nserr_t err)
+{
+    const pcp_struct *P = Q->pcp;
+    slong n = S->n, N = S->N;
+    ns_status st = NS_OK;
+    fmpz *u = _fmpz_vec_init(N), *t = _fmpz_vec_init(N);
+    fmpz *x = _fmpz_vec_init(N), *y = _fmpz_vec_init(N);
+    for (slong g = 0; g < n && st == NS_OK; g++) {
+        const pcp_def_struct *d = P->def + g;
+        if (d->kind != PCP_DEF_PROD)
+            continue;
+        _fmpz_vec_zero(u, N);
+        for (slong k = 0; k < d->len; k++) {
+            if (d->tb[k] < 0)
+                _fmpz_vec_set(t, S->img + d->ta[k] * N, N);
+            else {
+                _fmpz_vec_zero(x, N);
+                _fmpz_vec_zero(y, N);
+                fmpz_one(x + d->ta[k]);
+                fmpz_one(y + d->tb[k]);
+                pcp_elt_comm(W, t, x, y);
+            }
+            pcp_elt_pow(W, t, t, d->exp + k);
+            pcp_elt_mul(W, u, u, t);
+        }
+        if (W->overflow) {
+            st = nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld",
+                           (long)(S->c + 1));
+            break;
+        }
+        fmpz_sub_ui(u + g, u + g, 1);
+        NS_ASSERT(_fmpz_vec_is_zero(u, n));
+        if (!_fmpz_vec_is_zero(u, n))
+            st = nserr_set(err, NS_ERR_INTERNAL, 0, 0,
+                           "the definition of pc generator %ld does not hold in class %ld",
+                           (long)g + 1, (long)S->c);
+        else if (!_fmpz_vec_is_zero(u + n, S->T))
+            step_add_relation(S, u + n);
+    }
+    _fmpz_vec_clear(u, N);
+    _fmpz_vec_clear(t, N);
+    _fmpz_vec_clear(x, N);
+    _fmpz_vec_clear(y, N);
+    return st;
+}
+
 /* Phase 3: every consistency test and every relator gives a linear
  * relation between the tails; they go into the lattice L. */
 static ns_status step_tail_relations(step_struct *S, const nq_t Q, pcp_work_t W,
@@ -467,6 +608,8 @@ static ns_status step_tail_relations(step_struct *S, const nq_t Q, pcp_work_t W,
             step_add_relation(S, val + n);
     }
     _fmpz_vec_clear(val, N);
+    if (st == NS_OK)
+        st = step_definition_relations(S, Q, W, err);
     return st;
 }
 
@@ -482,7 +625,8 @@ static ns_status step_tail_relations(step_struct *S, const nq_t Q, pcp_work_t W,
  * pivots are then 1, so they leave, and the expressions of all tails are
  * rewritten in the survivors that remain.  The survivors that remain are
  * still commutator tails with their definitions; a relation without a
- * unit entry (2 t_1 + 3 t_2 = 0) is left to swap_in_commutator_tails. */
+ * unit entry (2 t_1 + 3 t_2 = 0) is left to swap_in_commutator_tails, and
+ * what that leaves to minimise_survivors. */
 /* x, y (n entries) := u x + v y, (a/g) y - (b/g) x with a = x[c],
  * b = y[c], g = gcd(a, b) = u a + v b: a unimodular step after which
  * x[c] = g and y[c] = 0. */
@@ -788,6 +932,269 @@ static void swap_in_commutator_tails(elim_quotient_t q, slong first)
     flint_free(gone);
 }
 
+/* ---- a new layer in Smith form, where the survivors are not minimal */
+
+/* Column operations on the nr x nc matrix M (row-major), recorded in V
+ * (nc x nc, M_0 V = M after row operations) and its inverse Vi. */
+typedef struct {
+    slong nr, nc;
+    fmpz *M, *V, *Vi;
+} snf_work;
+
+static void snf_col_swap(snf_work *w, slong i, slong j)
+{
+    for (slong r = 0; r < w->nr; r++)
+        fmpz_swap(w->M + r * w->nc + i, w->M + r * w->nc + j);
+    for (slong r = 0; r < w->nc; r++)
+        fmpz_swap(w->V + r * w->nc + i, w->V + r * w->nc + j);
+    _fmpz_vec_swap(w->Vi + i * w->nc, w->Vi + j * w->nc, w->nc);
+}
+
+static void snf_col_neg(snf_work *w, slong i)
+{
+    for (slong r = 0; r < w->nr; r++)
+        fmpz_neg(w->M + r * w->nc + i, w->M + r * w->nc + i);
+    for (slong r = 0; r < w->nc; r++)
+        fmpz_neg(w->V + r * w->nc + i, w->V + r * w->nc + i);
+    _fmpz_vec_neg(w->Vi + i * w->nc, w->Vi + i * w->nc, w->nc);
+}
+
+/* Columns i, j := u c_i + v c_j, (a/g) c_j - (b/g) c_i with a = M[r][i],
+ * b = M[r][j], g = gcd = u a + v b: afterwards M[r][i] = g, M[r][j] = 0.
+ * The inverse step on the rows of Vi: r_i, r_j := (a/g) r_i + (b/g) r_j,
+ * u r_j - v r_i. */
+static void snf_col_gcd(snf_work *w, slong r, slong i, slong j)
+{
+    slong nc = w->nc;
+    fmpz_t g, u, v, a, b, t;
+    fmpz_init(g);
+    fmpz_init(u);
+    fmpz_init(v);
+    fmpz_init(a);
+    fmpz_init(b);
+    fmpz_init(t);
+    fmpz_xgcd(g, u, v, w->M + r * nc + i, w->M + r * nc + j);
+    fmpz_divexact(a, w->M + r * nc + i, g);
+    fmpz_divexact(b, w->M + r * nc + j, g);
+    fmpz *rows[2] = {w->M, w->V};
+    slong nrows[2] = {w->nr, nc};
+    for (int m = 0; m < 2; m++)
+        for (slong k = 0; k < nrows[m]; k++) {
+            fmpz *x = rows[m] + k * nc + i, *y = rows[m] + k * nc + j;
+            fmpz_mul(t, u, x);
+            fmpz_addmul(t, v, y);
+            fmpz_mul(y, a, y);
+            fmpz_submul(y, b, x);
+            fmpz_swap(x, t);
+        }
+    fmpz *ri = w->Vi + i * nc, *rj = w->Vi + j * nc;
+    for (slong k = 0; k < nc; k++) {
+        fmpz_mul(t, a, ri + k);
+        fmpz_addmul(t, b, rj + k);
+        fmpz_mul(rj + k, u, rj + k);
+        fmpz_submul(rj + k, v, ri + k);
+        fmpz_swap(ri + k, t);
+    }
+    fmpz_clear(g);
+    fmpz_clear(u);
+    fmpz_clear(v);
+    fmpz_clear(a);
+    fmpz_clear(b);
+    fmpz_clear(t);
+}
+
+/* M to Smith form by row operations and recorded column operations (the
+ * textbook elimination, smallest pivot first: the blocks that reach it are
+ * small, and FLINT 2.9's fmpz_mat_snf gives no transform).  Returns the
+ * rank; M[t][t] > 0 for t < rank, each dividing the next. */
+static slong snf_transform(snf_work *w)
+{
+    slong nr = w->nr, nc = w->nc, t = 0;
+    for (; t < nr && t < nc; t++) {
+        slong pr = -1, pc = -1;
+        for (slong r = t; r < nr; r++)
+            for (slong c = t; c < nc; c++) {
+                const fmpz *x = w->M + r * nc + c;
+                if (!fmpz_is_zero(x) &&
+                    (pr < 0 || fmpz_cmpabs(x, w->M + pr * nc + pc) < 0)) {
+                    pr = r;
+                    pc = c;
+                }
+            }
+        if (pr < 0)
+            break;
+        if (pr != t)
+            _fmpz_vec_swap(w->M + pr * nc, w->M + t * nc, nc);
+        if (pc != t)
+            snf_col_swap(w, pc, t);
+        for (;;) {
+            for (slong r = t + 1; r < nr; r++)
+                if (!fmpz_is_zero(w->M + r * nc + t))
+                    row_gcd_step(w->M + t * nc, w->M + r * nc, nc, t);
+            int dirty = 0;
+            for (slong c = t + 1; c < nc; c++)
+                if (!fmpz_is_zero(w->M + t * nc + c)) {
+                    snf_col_gcd(w, t, t, c);
+                    dirty = 1;
+                }
+            if (dirty)
+                continue; /* the column steps may have filled column t again */
+            /* divisibility: a later entry that the pivot does not divide
+               comes into row t, and the pivot shrinks */
+            slong br = -1;
+            for (slong r = t + 1; r < nr && br < 0; r++)
+                for (slong c = t + 1; c < nc; c++)
+                    if (!fmpz_divisible(w->M + r * nc + c, w->M + t * nc + t)) {
+                        br = r;
+                        break;
+                    }
+            if (br < 0)
+                break;
+            _fmpz_vec_add(w->M + t * nc, w->M + t * nc, w->M + br * nc, nc);
+        }
+        if (fmpz_sgn(w->M + t * nc + t) < 0)
+            snf_col_neg(w, t);
+    }
+    return t;
+}
+
+/* Where the survivors of a new layer are still more than its free rank
+ * plus its number of invariant factors > 1 (relations such as
+ * 2 t_1 + 3 t_2 = 0, or t_1 of order 2 beside t_2 of order 3, that
+ * drop_redundant_survivors and swap_in_commutator_tails could not
+ * resolve), the columns in the support of the layer's relations are put
+ * into Smith normal form: with R V = U^-1 D (V unimodular) the new
+ * coordinates are x V, the new generators the rows of V^-1 (products of
+ * the old survivors), their relative orders the invariant factors, and
+ * the factors 1 leave.  Every tail's expression is rewritten.  The layer
+ * needs it exactly when the gcd of all entries of its relations is 1 (the
+ * first invariant factor); otherwise q and B are left alone, so layers
+ * that were minimal keep their generators.  The survivors keep their
+ * order, with the new generators (torsion first, then free) where the
+ * first changed column was. */
+static void minimise_survivors(elim_quotient_t q, basis_change_struct *B)
+{
+    slong ns = q->nsurv, T = q->ncols, nt = 0, nb = 0;
+    for (slong s = 0; s < ns; s++)
+        nt += !fmpz_is_zero(q->order + s);
+    if (nt == 0)
+        return;
+    char *inb = flint_calloc(ns, 1);
+    fmpz_t g;
+    fmpz_init(g);
+    for (slong s = 0; s < ns; s++) {
+        if (fmpz_is_zero(q->order + s))
+            continue;
+        for (slong c = 0; c < ns; c++) {
+            const fmpz *x = q->rel + s * ns + c;
+            if (!fmpz_is_zero(x)) {
+                inb[c] = 1;
+                fmpz_gcd(g, g, x);
+            }
+        }
+    }
+    int one = fmpz_is_one(g);
+    fmpz_clear(g);
+    if (!one) {
+        flint_free(inb);
+        return;
+    }
+    slong *col = flint_malloc(ns * sizeof(slong));
+    for (slong c = 0; c < ns; c++)
+        if (inb[c])
+            col[nb++] = c;
+    snf_work w;
+    w.nr = nt;
+    w.nc = nb;
+    w.M = _fmpz_vec_init(nt * nb);
+    w.V = _fmpz_vec_init(nb * nb);
+    w.Vi = _fmpz_vec_init(nb * nb);
+    for (slong i = 0; i < nb; i++) {
+        fmpz_one(w.V + i * nb + i);
+        fmpz_one(w.Vi + i * nb + i);
+    }
+    for (slong s = 0, r = 0; s < ns; s++) {
+        if (fmpz_is_zero(q->order + s))
+            continue;
+        for (slong i = 0; i < nb; i++)
+            fmpz_set(w.M + r * nb + i, q->rel + s * ns + col[i]);
+        r++;
+    }
+    slong rank = snf_transform(&w);
+    /* signs: each new generator's first old survivor with a positive
+       exponent (d y = 0 and -d y = 0 say the same) */
+    for (slong i = 0; i < nb; i++) {
+        slong f = 0;
+        while (f < nb && fmpz_is_zero(w.Vi + i * nb + f))
+            f++;
+        if (f < nb && fmpz_sgn(w.Vi + i * nb + f) < 0)
+            snf_col_neg(&w, i);
+    }
+    /* kept: the columns of D that are not 1 */
+    slong *kept = flint_malloc(nb * sizeof(slong)), nk = 0;
+    for (slong i = 0; i < nb; i++)
+        if (i >= rank || !fmpz_is_pm1(w.M + i * nb + i))
+            kept[nk++] = i;
+    slong n2 = ns - nb + nk;
+    slong *surv = flint_malloc(n2 * sizeof(slong));
+    slong *which = flint_malloc(n2 * sizeof(slong));
+    fmpz *order = _fmpz_vec_init(n2);
+    fmpz *rel = _fmpz_vec_init(n2 * n2);
+    fmpz *expr = _fmpz_vec_init(T * n2);
+    slong p = 0;
+    for (slong s = 0; s < ns; s++) {
+        if (!inb[s]) {
+            /* a free survivor outside every relation: unchanged */
+            surv[p] = q->surv[s];
+            which[p] = -1;
+            for (slong t = 0; t < T; t++)
+                fmpz_set(expr + t * n2 + p, q->expr + t * ns + s);
+            p++;
+            continue;
+        }
+        if (s != col[0])
+            continue;
+        for (slong k = 0; k < nk; k++, p++) {
+            slong i = kept[k];
+            surv[p] = -1;
+            which[p] = k;
+            if (i < rank) {
+                fmpz_abs(order + p, w.M + i * nb + i);
+                fmpz_set(rel + p * n2 + p, order + p);
+            }
+            for (slong t = 0; t < T; t++) {
+                fmpz *e = expr + t * n2 + p;
+                for (slong b = 0; b < nb; b++)
+                    fmpz_addmul(e, q->expr + t * ns + col[b], w.V + b * nb + i);
+            }
+        }
+    }
+    basis_change_clear(B);
+    B->nold = ns;
+    B->oldsurv = flint_malloc(ns * sizeof(slong));
+    memcpy(B->oldsurv, q->surv, ns * sizeof(slong));
+    B->nsurv = n2;
+    B->which = which;
+    B->nnew = nk;
+    B->comb = _fmpz_vec_init(nk * ns);
+    for (slong k = 0; k < nk; k++)
+        for (slong b = 0; b < nb; b++)
+            fmpz_set(B->comb + k * ns + col[b], w.Vi + kept[k] * nb + b);
+    elim_quotient_clear(q);
+    q->ncols = T;
+    q->nsurv = n2;
+    q->surv = surv;
+    q->order = order;
+    q->rel = rel;
+    q->expr = expr;
+    _fmpz_vec_clear(w.M, nt * nb);
+    _fmpz_vec_clear(w.V, nb * nb);
+    _fmpz_vec_clear(w.Vi, nb * nb);
+    flint_free(kept);
+    flint_free(col);
+    flint_free(inb);
+}
+
 /* Phase 4: the quotient of the tails by L; only commutator tails may
  * survive (they generate the new layer). */
 static ns_status step_quotient(step_struct *S, const ns_progress_t *prog, nserr_t err)
@@ -798,9 +1205,13 @@ static ns_status step_quotient(step_struct *S, const ns_progress_t *prog, nserr_
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     drop_redundant_survivors(S->q);
     swap_in_commutator_tails(S->q, S->last);
+    if (!(S->flags & NQ_KEEP_DEPENDENT))
+        minimise_survivors(S->q, &S->basis);
     if (progress_stage(prog, S->c + 1, "new presentation", 0.95))
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     for (slong s = 0; s < S->q->nsurv; s++) {
+        if (S->basis.which && S->basis.which[s] >= 0)
+            continue; /* a product of survivors that were commutator tails */
         NS_ASSERT(S->q->surv[s] >= S->last);
         if (S->q->surv[s] < S->last)
             return nserr_set(err, NS_ERR_INTERNAL, 0, 0,
@@ -856,13 +1267,28 @@ static ns_status step_extend(step_struct *S, nq_t Q, pcp_work_t W, nserr_t err)
         }
     }
     pcw_clear(w);
-    memcpy(R->def, P->def, n * sizeof(pcp_def_struct));
+    for (slong g = 0; g < n; g++)
+        pcp_def_set(R->def + g, P->def + g);
+    slong *ta = NULL, *tb = NULL;
+    if (S->basis.which) {
+        /* the terms of the survivors before the change: their commutators */
+        ta = flint_malloc(S->T * sizeof(slong));
+        tb = flint_malloc(S->T * sizeof(slong));
+        for (slong t = 0; t < S->T; t++) {
+            ta[t] = S->tails[t].a;
+            tb[t] = S->tails[t].b;
+        }
+    }
     for (slong s = 0; s < ns; s++) {
+        if (basis_change_def(R->def + n + s, &S->basis, s, ta, tb))
+            continue;
         const tail_struct *t = S->tails + q->surv[s];
         R->def[n + s].kind = PCP_DEF_COMM;
         R->def[n + s].a = t->a;
         R->def[n + s].b = t->b;
     }
+    flint_free(ta);
+    flint_free(tb);
     fmpz *img2 = _fmpz_vec_init(FLINT_MAX(X * M, 1));
     for (slong x = 0; x < X; x++) {
         _fmpz_vec_set(img2 + x * M, Q->images + x * n, n);
@@ -925,6 +1351,33 @@ static char *make_label(const char *x, const char *y)
     return strbuf_take(b);
 }
 
+/* The label of a product definition: its terms in parentheses,
+ * "([b,a,a]^-1 [b,a,b])", so that a power of it reads as one. */
+static char *product_label(const nq_t Q, const pcp_def_struct *d)
+{
+    strbuf_t b;
+    strbuf_init(b);
+    strbuf_puts(b, "(");
+    for (slong k = 0; k < d->len; k++) {
+        if (k)
+            strbuf_puts(b, " ");
+        if (d->tb[k] < 0)
+            strbuf_puts(b, Q->pres->gens->name[d->ta[k]]);
+        else {
+            char *l = make_label(Q->labels[d->ta[k]], Q->labels[d->tb[k]]);
+            strbuf_puts(b, l);
+            flint_free(l);
+        }
+        if (!fmpz_is_one(d->exp + k)) {
+            char *e = fmpz_get_str(NULL, 10, d->exp + k);
+            strbuf_printf(b, "^%s", e);
+            flint_free(e);
+        }
+    }
+    strbuf_puts(b, ")");
+    return strbuf_take(b);
+}
+
 /* The labels of the pc generators, then the layers (which keep a pointer
  * to their labels). */
 static void compute_layers(nq_t Q)
@@ -936,8 +1389,10 @@ static void compute_layers(nq_t Q)
         const pcp_def_struct *d = P->def + k;
         if (d->kind == PCP_DEF_IMAGE)
             Q->labels[k] = strbuf_dup_str(Q->pres->gens->name[d->a]);
-        else
+        else if (d->kind == PCP_DEF_COMM)
             Q->labels[k] = make_label(Q->labels[d->a], Q->labels[d->b]);
+        else
+            Q->labels[k] = product_label(Q, d);
     }
     free_layers(Q);
     Q->nlayers = c;
@@ -1003,7 +1458,14 @@ static ns_status run_steps(nq_t Q, slong c, slong max_pc, const ns_progress_t *p
 ns_status nq_compute_max(nq_t Q, const pres_t G, slong c, slong max_pc,
                          const ns_progress_t *progress, nserr_t err)
 {
+    return nq_compute_flags(Q, G, c, max_pc, 0, progress, err);
+}
+
+ns_status nq_compute_flags(nq_t Q, const pres_t G, slong c, slong max_pc, int flags,
+                           const ns_progress_t *progress, nserr_t err)
+{
     nq_clear(Q);
+    Q->flags = flags;
     if (c < 1 || c > NQ_MAX_CLASS)
         return nserr_set(err, NS_ERR_INPUT, 0, 0, "the class must be between 1 and %d",
                          NQ_MAX_CLASS);
@@ -1041,6 +1503,7 @@ ns_status nq_set_class(nq_t Q, const nq_t from, slong c, slong max_pc,
     if (c < 1 || c > NQ_MAX_CLASS)
         return nserr_set(err, NS_ERR_INPUT, 0, 0, "the class must be between 1 and %d",
                          NQ_MAX_CLASS);
+    Q->flags = from->flags;
     pres_set(Q->pres, from->pres);
     Q->class_requested = c;
     slong keep = FLINT_MIN(c, from->class_reached);

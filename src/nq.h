@@ -19,7 +19,12 @@
  *           relation lattice is brought to echelon form (elim.h) with the
  *           commutator tails [a_k, a_i] (weight(a_i) = 1, weight(a_k) = c)
  *           last; they generate the new layer, so every surviving tail is
- *           one of them and carries its commutator as definition.
+ *           one of them and carries its commutator as definition.  Where
+ *           those survivors are more than the free rank plus the number
+ *           of invariant factors > 1 of the layer, the layer is put into
+ *           Smith form and its generators are products of commutators
+ *           (PCP_DEF_PROD, pcp.h; in class 1 products of images): every
+ *           layer has exactly that many pc generators.
  *
  * The series stabilises when a step produces no new generator: then
  * gamma_(c+1)(G) = gamma_(c+2)(G) and every larger class gives the same
@@ -45,8 +50,11 @@ typedef struct {
                               computed once here and borrowed by everyone
                               else (their coordinates on first use:
                               layer_ensure_coords) */
-    char **labels;         /* pcp.n labels: "a", "[b,a]", "[b,a,a]" */
+    char **labels;         /* pcp.n labels: "a", "[b,a]", "[b,a,a]"; a generator
+                              defined as a product has its terms in
+                              parentheses, "([b,a,a]^-1 [b,a,b])" */
     slong hirsch_length;
+    int flags;             /* NQ_ flags of the computation */
 } nq_struct;
 typedef nq_struct nq_t[1];
 
@@ -73,6 +81,16 @@ ns_status nq_compute(nq_t Q, const pres_t G, slong c, const ns_progress_t *progr
                      nserr_t err);
 ns_status nq_compute_max(nq_t Q, const pres_t G, slong c, slong max_pc,
                          const ns_progress_t *progress, nserr_t err);
+
+/* The same with flags.  NQ_KEEP_DEPENDENT (for tests that compare the two
+ * routes): no layer is put into Smith form, so a layer whose relations no
+ * single commutators resolve keeps dependent pc generators, each defined
+ * by one commutator (the behaviour before product definitions).  Without
+ * it every layer has exactly free rank + number of invariant factors > 1
+ * pc generators.  nq_set_class keeps the flags of from. */
+#define NQ_KEEP_DEPENDENT 1
+ns_status nq_compute_flags(nq_t Q, const pres_t G, slong c, slong max_pc, int flags,
+                           const ns_progress_t *progress, nserr_t err);
 
 /* Q := the class-c quotient of the group of from, without starting again:
  * for c <= from->class_reached it is a prefix of from (the relations cut to

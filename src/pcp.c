@@ -104,6 +104,8 @@ static void pcp_free_tables(pcp_t P)
         flint_free(P->pow);
         flint_free(P->powinv);
         flint_free(P->commute_from);
+        for (slong i = 0; i < P->n; i++)
+            pcp_def_clear(P->def + i);
         flint_free(P->def);
     }
     if (nslots) {
@@ -113,6 +115,42 @@ static void pcp_free_tables(pcp_t P)
         flint_free(P->conjminv);
         flint_free(P->trivial);
     }
+}
+
+void pcp_def_clear(pcp_def_struct *d)
+{
+    if (d->len > 0) {
+        flint_free(d->ta);
+        flint_free(d->tb);
+        _fmpz_vec_clear(d->exp, d->len);
+    }
+    memset(d, 0, sizeof(pcp_def_struct));
+}
+
+void pcp_def_set_prod(pcp_def_struct *d, slong len, const slong *ta, const slong *tb,
+                      const fmpz *exp)
+{
+    pcp_def_clear(d);
+    d->kind = PCP_DEF_PROD;
+    d->len = len;
+    if (len == 0)
+        return;
+    d->ta = flint_malloc(len * sizeof(slong));
+    d->tb = flint_malloc(len * sizeof(slong));
+    d->exp = _fmpz_vec_init(len);
+    memcpy(d->ta, ta, len * sizeof(slong));
+    memcpy(d->tb, tb, len * sizeof(slong));
+    _fmpz_vec_set(d->exp, exp, len);
+}
+
+void pcp_def_set(pcp_def_struct *dst, const pcp_def_struct *src)
+{
+    if (src->kind == PCP_DEF_PROD) {
+        pcp_def_set_prod(dst, src->len, src->ta, src->tb, src->exp);
+        return;
+    }
+    pcp_def_clear(dst);
+    *dst = *src;
 }
 
 void pcp_init(pcp_t P)
@@ -204,7 +242,7 @@ void pcp_set_prefix(pcp_t P, const pcp_t src, slong maxweight)
     P->torsion_free = 1;
     for (slong i = 0; i < m; i++) {
         fmpz_set(P->relorder + i, src->relorder + i);
-        P->def[i] = src->def[i];
+        pcp_def_set(P->def + i, src->def + i);
         if (fmpz_is_zero(src->relorder + i))
             continue;
         P->torsion_free = 0;

@@ -51,15 +51,32 @@ void pcw_set_vec(pcw_t w, const fmpz *u, slong n);
 void pcw_get_vec(fmpz *u, slong n, const pcw_t w);
 int pcw_is_gen(const pcw_t w, slong g); /* w == a_g exactly */
 
-typedef enum { PCP_DEF_NONE = 0, PCP_DEF_IMAGE, PCP_DEF_COMM } pcp_def_kind;
+typedef enum { PCP_DEF_NONE = 0, PCP_DEF_IMAGE, PCP_DEF_COMM, PCP_DEF_PROD } pcp_def_kind;
 
 /* How a generator was introduced by the nilpotent quotient algorithm:
  * IMAGE: a_k is the image of input generator a;  COMM: a_k = [a_a, a_b]
- * with weight[b] = 1 and weight[a] = weight[k] - 1. */
+ * with weight[b] = 1 and weight[a] = weight[k] - 1;  PROD: a_k is the
+ * product, in this order, of the len terms t^(exp[t]), where term t is the
+ * image of input generator ta[t] when tb[t] < 0 (weight[k] = 1), else the
+ * commutator [a_(ta[t]), a_(tb[t])] (weights weight[k] - 1 and 1).  A
+ * product is needed where no single commutators (images) generate the
+ * layer minimally (doc/design.md §9.1).  The definition holds exactly in
+ * the presentation, not only modulo the next layer.  ta, tb and exp are
+ * owned by the definition (pcp_def_clear), NULL unless kind is PROD. */
 typedef struct {
     pcp_def_kind kind;
     slong a, b;
+    slong len;
+    slong *ta, *tb;
+    fmpz *exp;
 } pcp_def_struct;
+
+/* dst := a copy of src (dst is cleared first; dst != src). */
+void pcp_def_set(pcp_def_struct *dst, const pcp_def_struct *src);
+void pcp_def_clear(pcp_def_struct *d);
+/* d := the product definition of len terms (arrays copied); kind PROD. */
+void pcp_def_set_prod(pcp_def_struct *d, slong len, const slong *ta, const slong *tb,
+                      const fmpz *exp);
 
 typedef struct {
     slong n;            /* number of pc generators */
@@ -76,7 +93,7 @@ typedef struct {
     pcw_struct *conjminv; /* (a_k^-1)^(a_i^-1) */
     char *trivial;        /* 1: a_k and a_i commute */
     slong *commute_from;  /* n: every k >= commute_from[i] commutes with a_i */
-    pcp_def_struct *def;  /* n definitions */
+    pcp_def_struct *def;  /* n definitions (owned: pcp_clear frees them) */
     int torsion_free;     /* no finite relative order (set by pcp_complete);
                              then large powers go by Hall polynomials */
 } pcp_struct;

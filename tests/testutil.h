@@ -146,17 +146,24 @@ static inline void analysis_map_or_fail(analysis_t A, const char *map)
     nserr_clear(err);
 }
 
-static inline void compute_quotient(nq_t Q, const char *text, slong c)
+/* The same with nq_compute_flags (NQ_KEEP_DEPENDENT: the route that keeps
+ * dependent pc generators, nq.h). */
+static inline void compute_quotient_flags(nq_t Q, const char *text, slong c, int flags)
 {
     pres_t p;
     nserr_t err;
     pres_init(p);
     nserr_init(err);
     parse_pres_or_fail(p, text);
-    ns_status st = nq_compute(Q, p, c, NULL, err);
+    ns_status st = nq_compute_flags(Q, p, c, NQ_DEFAULT_MAX_PC, flags, NULL, err);
     pres_clear(p);
     if (st != NS_OK)
         fail_msg("nq_compute(\"%s\", class %ld) failed (%d): %s", text, (long)c, (int)st, err->msg);
+}
+
+static inline void compute_quotient(nq_t Q, const char *text, slong c)
+{
+    compute_quotient_flags(Q, text, c, 0);
 }
 
 /* ------------------------------------------------------------------------ */
