@@ -35,7 +35,8 @@ typedef enum {
  * input generators (the side with every generator replaced by its image
  * as the user wrote it, e.g. alpha([a,b]) = [a^2,b]), and as the normal
  * word in the pc labels, which are left-normed commutators of the input
- * generators (e.g. [b,a]^-2): the first is what the user typed, the second
+ * generators (e.g. [b,a]^-2) or products of them in parentheses (nq.h),
+ * still words in the input generators: the first is what the user typed, the second
  * lets two images be compared letter by letter. */
 typedef struct {
     slong relation;        /* index into the relations of the presentation */
