@@ -451,7 +451,7 @@ static int cover_build(iterate_map_t M, const fmpz *img, pcp_work_t WG)
             if (!G->trivial[pcp_slot(k, i)])
                 pcp_set_conj(H, k, i, G->conj + pcp_slot(k, i));
     for (slong k = 0; k < n; k++)
-        H->def[k] = G->def[k];
+        pcp_def_set(H->def + k, G->def + k);
     pcp_work_t WH;
     pcp_work_init(WH, H);
     WH->progress = WG->progress;
@@ -459,9 +459,20 @@ static int cover_build(iterate_map_t M, const fmpz *img, pcp_work_t WG)
     fmpz *lift = _fmpz_vec_init(n * n), *l = _fmpz_vec_init(n), *r = _fmpz_vec_init(n);
     for (slong k = 0; k < n && ok; k++) {
         const pcp_def_struct *d = G->def + k;
+        int prod = d->kind == PCP_DEF_PROD && d->len > 0;
+        for (slong t = 0; t < d->len && prod; t++)
+            prod = d->tb[t] >= 0 && d->ta[t] < k && d->tb[t] < k;
         if (d->kind == PCP_DEF_COMM && d->a < k && d->b < k)
             pcp_elt_comm(WH, lift + k * n, lift + d->a * n, lift + d->b * n);
-        else
+        else if (prod) {
+            /* a product of commutators (pcp.h): the product of their lifts */
+            _fmpz_vec_zero(lift + k * n, n);
+            for (slong t = 0; t < d->len; t++) {
+                pcp_elt_comm(WH, l, lift + d->ta[t] * n, lift + d->tb[t] * n);
+                pcp_elt_pow(WH, l, l, d->exp + t);
+                pcp_elt_mul(WH, lift + k * n, lift + k * n, l);
+            }
+        } else
             _fmpz_vec_set(lift + k * n, img + k * n, n);
     }
     /* A respects the relations of H */
