@@ -103,7 +103,8 @@ ns_status nq_set_class(nq_t Q, const nq_t from, slong c, slong max_pc,
 
 /* The relation matrix of the step c -> c+1 (1 <= c < Q->class_reached),
  * as the engine builds it before elimination: one row per nonzero linear
- * relation between the tails (consistency tests, then relators), one
+ * relation between the tails (consistency tests, relators, then one per
+ * generator defined as a product, nq.c), one
  * column per tail in the engine's order (power, image and conjugate tails,
  * the commutator tails [a_k, a_i], weight(a_k) = c, weight(a_i) = 1, last).
  * When the abelianisation is finite of exponent m, m Z^cols also belongs
