@@ -28,6 +28,19 @@
    rate is rho_1 when rho_1 >= 1).  Quotients with torsion in their layers
    (torsion-layers) are checked the same way at N = 300.
 
+3. Millions of steps with torsion: the torsion-layers map a -> a^2 b,
+   b -> a b on <a, b | [a,b]^6> at class 3, --steps 1000000 --every 500000.
+   Layer 1: the map acts by M = [[2,1],[1,1]] = Q^2, Q the Fibonacci matrix
+   [[1,1],[1,0]], so alpha^n(a) has layer-1 coordinates (F(2n+1), F(2n))
+   and alpha^n(b) (F(2n), F(2n-1)) (the textbook identity
+   Q^k = [[F(k+1), F(k)], [F(k), F(k-1)]]; sympy's fibonacci).  The whole
+   normal word: this group is the free nilpotent group of class 3 on a, b
+   with its three commutators made of order 6 (the same conjugate
+   relations, no power words: tests/test_iterate.c checks that on the
+   presentations), so it is the word of the same iterate in <a, b | > at
+   class 3 (torsion-free, a separate run) with the exponents of [b,a],
+   [b,a,a], [b,a,b] reduced mod 6.
+
 Exit 77 (skipped) when NILSTEP_BINARY is not set.
 """
 
@@ -231,6 +244,90 @@ for path in sorted(glob.glob(os.path.join(SRC, "scenarios", "*.nilstep"))):
     print("%s: growth rate %s, root at n = %d: %s (%.3f%%), window maxima %s" % (
         name, sympy.N(gr, 12), n, sympy.N(roots[n], 12), 100 * rel,
         ", ".join(str(sympy.N(e, 4)) for e in env)))
+
+# ---- 3. a million steps with torsion --------------------------------------
+#
+# The integers have up to 1.25 million digits; CPython converts decimal
+# strings to integers in quadratic time, so nothing here converts them:
+# layer-1 coordinates are compared with the Fibonacci numbers modulo three
+# primes near 2^61 (F(k) mod p by fast doubling) and in their number of
+# digits (from Binet's formula, F(k) = round(phi^k / sqrt 5), in sympy
+# floats), exponents are reduced mod 6 from their last digit and digit sum.
+
+PRIMES = [2305843009213693951, 2305843009213693921, 2305843009213693907]
+
+
+def fib_mod(k, p):
+    """(F(k), F(k+1)) mod p by fast doubling."""
+    if k == 0:
+        return (0, 1)
+    a, b = fib_mod(k // 2, p)
+    c = a * ((2 * b - a) % p) % p
+    d = (a * a + b * b) % p
+    return (d, (c + d) % p) if k % 2 else (c, d)
+
+
+def str_mod(digits, p):
+    r = 0
+    for i in range(0, len(digits), 18):
+        chunk = digits[i:i + 18]
+        r = (r * pow(10, len(chunk), p) + int(chunk)) % p
+    return r
+
+
+def fib_digits(k):
+    phi = (1 + sympy.sqrt(5)) / 2
+    return int(sympy.floor(k * sympy.log(phi, 10) - sympy.log(sympy.sqrt(5), 10)).evalf(40)) + 1
+
+
+def same_as_fib(text, k):
+    if text.startswith("-") or len(text) != fib_digits(k):
+        return False
+    return all(str_mod(text, p) == fib_mod(k, p)[0] for p in PRIMES)
+
+
+def mod6(text):
+    neg = text.startswith("-")
+    digits = text.lstrip("-")
+    r2 = int(digits[-1]) % 2
+    r3 = sum(int(d) for d in digits) % 3
+    r = next(x for x in range(6) if x % 2 == r2 and x % 3 == r3)
+    return (-r) % 6 if neg else r
+
+
+def words(args):
+    out = json.loads(run(["iterate", "--format", "json", "--steps", "1000000", "--every", "500000",
+                          "--ball-memory", "0", "--element", "a", "--element", "b"] + args))
+    return {(e["element"], p["n"]): p for e in out["elements"] for p in e["steps"]}
+
+
+def reduced(word, mod6_names):
+    """The normal word with the exponents of those generators reduced mod 6."""
+    out = []
+    for syl in word.split(" "):
+        name, _, e = syl.partition("^")
+        if name in mod6_names:
+            r = mod6(e) if e else 1
+            if r:
+                out.append(name if r == 1 else "%s^%d" % (name, r))
+        else:
+            out.append(syl)
+    return " ".join(out) or "1"
+
+
+tors = words([os.path.join(SRC, "scenarios", "torsion-layers.nilstep")])
+free = words(["--group", "<a, b | >", "--class", "3", "--map", "a -> a^2 b, b -> a b"])
+for n in (500000, 1000000):
+    for (w, ks) in (("a", (2 * n + 1, 2 * n)), ("b", (2 * n, 2 * n - 1))):
+        p = tors[(w, n)]
+        coords = p["layers"][0]["coordinates"]
+        if not all(same_as_fib(c, k) for (c, k) in zip(coords, ks)) or len(coords) != 2:
+            fail("torsion-layers: layer 1 of alpha^%d(%s) is not (F(%d), F(%d))" % (n, w, ks[0], ks[1]))
+        if p["element"] != reduced(free[(w, n)]["element"], ("[b,a]", "[b,a,a]", "[b,a,b]")):
+            fail("torsion-layers: alpha^%d(%s) is not the free iterate with [b,a], [b,a,a], [b,a,b] "
+                 "reduced mod 6" % (n, w))
+print("torsion-layers: alpha^n(a), alpha^n(b) at n = 500000 and 1000000 agree with Fibonacci "
+      "numbers and the reduced free iterates (%d digits)" % tors[("a", 1000000)]["layers"][0]["digits"])
 
 if failures:
     print("%d failure(s)" % failures)
