@@ -434,9 +434,10 @@ static void cover_apply_word(pcp_work_t WH, fmpz *out, const pcw_struct *w, cons
     _fmpz_vec_clear(t, n);
 }
 
-/* Builds H and the lift of alpha (the images img in G, n x n) into M;
- * 1 when every check passed, 0 otherwise (M unchanged).  A stop of the
- * hook sets WG->overflow. */
+/* Builds H into M->cover when P without its power relations is
+ * consistent, and the lift of alpha (the images img in G, n x n) into the
+ * first table when the map lifts; 1 when every check passed (M->P is then
+ * H), 0 otherwise.  A stop of the hook sets WG->overflow. */
 static int cover_build(iterate_map_t M, const fmpz *img, pcp_work_t WG)
 {
     const pcp_struct *G = M->Q->pcp;
@@ -456,6 +457,7 @@ static int cover_build(iterate_map_t M, const fmpz *img, pcp_work_t WG)
     pcp_work_init(WH, H);
     WH->progress = WG->progress;
     int ok = !pcp_complete(H, WH) && pcp_is_consistent(H, WH);
+    int consistent = ok;
     fmpz *lift = _fmpz_vec_init(n * n), *l = _fmpz_vec_init(n), *r = _fmpz_vec_init(n);
     for (slong k = 0; k < n && ok; k++) {
         const pcp_def_struct *d = G->def + k;
@@ -493,14 +495,16 @@ static int cover_build(iterate_map_t M, const fmpz *img, pcp_work_t WG)
     if (WH->overflow)
         WG->overflow = 1;
     ok = ok && !WG->overflow;
+    if (consistent && !WG->overflow)
+        M->cover = H; /* for iterate_map_eval, even when the map does not lift */
+    else {
+        pcp_clear(H);
+        flint_free(H);
+    }
     if (ok) {
-        M->cover = H;
         M->P = H;
         M->hall = 1;
         _fmpz_vec_set(M->tab->img, lift, n * n);
-    } else {
-        pcp_clear(H);
-        flint_free(H);
     }
     _fmpz_vec_clear(lift, n * n);
     _fmpz_vec_clear(l, n);
@@ -613,7 +617,7 @@ ns_status iterate_map_advance(iterate_map_t M, fmpz *x, ulong k,
             table_apply(M, M->tab + b, y, y, W);
         }
     }
-    if (M->cover && !W->overflow) {
+    if (M->P == M->cover && !W->overflow) {
         pcp_work_t WG;
         pcp_work_init(WG, M->Q->pcp);
         WG->progress = progress;
@@ -628,6 +632,28 @@ ns_status iterate_map_advance(iterate_map_t M, fmpz *x, ulong k,
         _fmpz_vec_set(x, y, n);
     _fmpz_vec_clear(y, n);
     return stopped ? cancelled(err) : NS_OK;
+}
+
+ns_status iterate_map_eval(const iterate_map_t M, fmpz *out, const expr_t w,
+                           const ns_progress_t *progress, nserr_t err)
+{
+    if (M->cover == NULL)
+        return nq_eval(M->Q, out, w, progress, err);
+    /* the input generators' values read in H are preimages under rho, a
+     * homomorphism, so rho(w evaluated in H) is w evaluated in G; in H
+     * huge exponents go by Hall polynomials */
+    pcp_work_t WH, WG;
+    pcp_work_init(WH, M->cover);
+    pcp_work_init(WG, M->Q->pcp);
+    WH->progress = WG->progress = progress;
+    if (!pcp_eval_expr(WH, out, w->root, M->Q->images))
+        cover_reduce(M, out, out, WG);
+    int stopped = WH->overflow || WG->overflow;
+    pcp_work_clear(WH);
+    pcp_work_clear(WG);
+    if (stopped)
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "evaluation stopped");
+    return NS_OK;
 }
 
 /* ---- description of one iterate ------------------------------------ */

@@ -77,9 +77,9 @@ typedef struct {
                             cover when there is one */
     pcp_struct *cover;   /* owned, or NULL: the torsion-free cover H of a
                             presentation with finite relative orders (its
-                            presentation without the power relations, see
-                            iterate.c); then the tables hold a lift of the
-                            map to H */
+                            presentation without the power relations, when
+                            consistent; see iterate.c); when the map lifts
+                            to H, P is H and the tables hold the lift */
     slong n;             /* pc generators */
     slong deg;           /* degree bound of the Hall polynomials (= class) */
     int hall;            /* 1: the tables' presentation is torsion-free,
@@ -102,6 +102,14 @@ void iterate_map_clear(iterate_map_t M);
  * NS_ERR_CANCELLED when progress stopped it. */
 ns_status iterate_map_set(iterate_map_t M, const nq_t Q, const endo_t E,
                           const ns_progress_t *progress, nserr_t err);
+
+/* out := the element of the word w in the input generators, as nq_eval;
+ * with a cover (a presentation with finite relative orders that is
+ * consistent without its power relations), evaluated in the cover, where
+ * huge exponents cost what small ones do, and reduced.  NS_ERR_CANCELLED
+ * when progress stopped it. */
+ns_status iterate_map_eval(const iterate_map_t M, fmpz *out, const expr_t w,
+                           const ns_progress_t *progress, nserr_t err);
 
 /* x := alpha^k(x) (x has n entries in normal form).  Builds the squared
  * tables it needs.  On cancel (NS_ERR_CANCELLED) x is unchanged. */

@@ -513,17 +513,17 @@ int cli_iterate(int argc, char **argv)
     const nq_struct *Q = V->quotient;
     n = V->npc;
     w0 = _fmpz_vec_init(FLINT_MAX(nel * n, 1));
-    for (slong e = 0; e < nel; e++) {
-        st = nq_eval(Q, w0 + e * n, ex + e, pp, err);
-        if (st != NS_OK) {
-            status = iter_error(err, "--element");
-            goto done;
-        }
-    }
     st = iterate_map_set(M, Q, V->endo, pp, err);
     if (st != NS_OK) {
         status = iter_error(err, where_map);
         goto done;
+    }
+    for (slong e = 0; e < nel; e++) {
+        st = iterate_map_eval(M, w0 + e * n, ex + e, pp, err);
+        if (st != NS_OK) {
+            status = iter_error(err, "--element");
+            goto done;
+        }
     }
     wordlen_init(ball, Q, (size_t)mem << 20);
     have_ball = 1;

@@ -184,8 +184,8 @@ static void run_start(explorer_app *app, const char *text, slong gen, int keep)
     s->x = _fmpz_vec_init(FLINT_MAX(s->npc, 1));
     s->have = 1; /* from here on run_clear frees M, x */
     if (expr_parse(e, text, 1, 1, A->pres->gens, err) != NS_OK ||
-        nq_eval(Q, s->x, e, NULL, err) != NS_OK ||
-        iterate_map_set(s->M, Q, A->endo, NULL, err) != NS_OK) {
+        iterate_map_set(s->M, Q, A->endo, NULL, err) != NS_OK ||
+        iterate_map_eval(s->M, s->x, e, NULL, err) != NS_OK) {
         snprintf(s->msg, sizeof s->msg, "%d:%d: %.600s", err->line, err->col, err->msg);
         expr_clear(e);
         run_clear(s);
