@@ -360,10 +360,12 @@ static void torsion_iterates_should_agree_with_plain_collection(void **state)
     printf("# %ld torsion cases, %ld through the torsion-free cover\n", (long)cases, (long)covered);
     assert_true(covered >= 8);
 
-    /* A map that does not lift to the cover: in <a, b | a^2, b^6> at class
-     * 3, [b,a,a] = [b,a,b] (its presentation says so), which b -> b^-1
-     * does not respect in the group without power relations, where both
-     * have infinite order.  It steps in G, and agrees too. */
+    /* A map whose lift is refused: in <a, b | a^2, b^6> at class 3,
+     * [b,a,a] = [b,a,b] (its presentation says so); b -> b^-1 is lifted as
+     * its normal word b^5, which does not respect that relation in the
+     * group without power relations, where both sides have infinite order
+     * (the lift b -> a^2 b^-1 would; none is searched for).  It steps in
+     * G, and agrees too. */
     nq_t Q;
     nq_init(Q);
     compute_quotient(Q, "<a, b | a^2, b^6>", 3);
