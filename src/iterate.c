@@ -434,48 +434,59 @@ static void cover_apply_word(pcp_work_t WH, fmpz *out, const pcw_struct *w, cons
     _fmpz_vec_clear(t, n);
 }
 
-/* Builds H into M->cover when P without its power relations is
- * consistent, and the lift of alpha (the images img in G, n x n) into the
- * first table when the map lifts; 1 when every check passed (M->P is then
- * H), 0 otherwise.  A stop of the hook sets WG->overflow. */
-static int cover_build(iterate_map_t M, const fmpz *img, pcp_work_t WG)
+/* At most this many lifts are tried (3^6: every adjustment by -1, 0, 1 of
+ * six pairs), for up to 16 pc generators; 27 up to 64, then one. */
+#define ITERATE_COVER_MAX_TRIES 729
+
+/* 1 when generator k is defined as a product of commutators of earlier
+ * generators (pcp.h), lifted as the product of their lifts. */
+static int cover_def_is_product(const pcp_def_struct *d, slong k)
+{
+    int prod = d->kind == PCP_DEF_PROD && d->len > 0;
+    for (slong q = 0; q < d->len && prod; q++)
+        prod = d->tb[q] >= 0 && d->ta[q] < k && d->tb[q] < k;
+    return prod;
+}
+
+/* The lift given by the images img (n x n, in G) adjusted by the kernel
+ * elements z (nz x n, in H): A(a_k) = img_k prod_j z_j^(t[k][j]) for the
+ * generators not defined as commutators or products of commutators (t:
+ * their rows, in order, of nz entries in -1..1), commutators and their
+ * products of those above.  1 when A respects H's
+ * relations and rho A = alpha rho on the generators. */
+static int cover_try_lift(iterate_map_t M, fmpz *lift, const fmpz *img, const fmpz *z, slong nz,
+                          const int *t, pcp_work_t WH, pcp_work_t WG)
 {
     const pcp_struct *G = M->Q->pcp;
-    slong n = G->n;
-    if (n == 0 || n > ITERATE_COVER_MAX_PC)
-        return 0;
-    pcp_struct *H = flint_malloc(sizeof(pcp_struct));
-    pcp_init(H);
-    pcp_reset(H, n, G->weight, G->maxweight);
-    for (slong k = 1; k < G->ncore; k++)
-        for (slong i = 0; i < k; i++)
-            if (!G->trivial[pcp_slot(k, i)])
-                pcp_set_conj(H, k, i, G->conj + pcp_slot(k, i));
-    for (slong k = 0; k < n; k++)
-        pcp_def_set(H->def + k, G->def + k);
-    pcp_work_t WH;
-    pcp_work_init(WH, H);
-    WH->progress = WG->progress;
-    int ok = !pcp_complete(H, WH) && pcp_is_consistent(H, WH);
-    int consistent = ok;
-    fmpz *lift = _fmpz_vec_init(n * n), *l = _fmpz_vec_init(n), *r = _fmpz_vec_init(n);
-    for (slong k = 0; k < n && ok; k++) {
+    slong n = G->n, row = 0;
+    fmpz *l = _fmpz_vec_init(n), *r = _fmpz_vec_init(n);
+    fmpz_t e;
+    fmpz_init(e);
+    int ok = 1;
+    for (slong k = 0; k < n; k++) {
         const pcp_def_struct *d = G->def + k;
-        int prod = d->kind == PCP_DEF_PROD && d->len > 0;
-        for (slong t = 0; t < d->len && prod; t++)
-            prod = d->tb[t] >= 0 && d->ta[t] < k && d->tb[t] < k;
-        if (d->kind == PCP_DEF_COMM && d->a < k && d->b < k)
+        if (d->kind == PCP_DEF_COMM && d->a < k && d->b < k) {
             pcp_elt_comm(WH, lift + k * n, lift + d->a * n, lift + d->b * n);
-        else if (prod) {
+            continue;
+        }
+        if (cover_def_is_product(d, k)) {
             /* a product of commutators (pcp.h): the product of their lifts */
             _fmpz_vec_zero(lift + k * n, n);
-            for (slong t = 0; t < d->len; t++) {
-                pcp_elt_comm(WH, l, lift + d->ta[t] * n, lift + d->tb[t] * n);
-                pcp_elt_pow(WH, l, l, d->exp + t);
+            for (slong q = 0; q < d->len; q++) {
+                pcp_elt_comm(WH, l, lift + d->ta[q] * n, lift + d->tb[q] * n);
+                pcp_elt_pow(WH, l, l, d->exp + q);
                 pcp_elt_mul(WH, lift + k * n, lift + k * n, l);
             }
-        } else
-            _fmpz_vec_set(lift + k * n, img + k * n, n);
+            continue;
+        }
+        _fmpz_vec_set(lift + k * n, img + k * n, n);
+        for (slong j = 0; j < nz; j++)
+            if (t[row * nz + j]) {
+                fmpz_set_si(e, t[row * nz + j]);
+                pcp_elt_pow(WH, l, z + j * n, e);
+                pcp_elt_mul(WH, lift + k * n, lift + k * n, l);
+            }
+        row++;
     }
     /* A respects the relations of H */
     for (slong i = 0; i < n && ok && !WH->overflow; i++)
@@ -484,7 +495,7 @@ static int cover_build(iterate_map_t M, const fmpz *img, pcp_work_t WG)
             if (G->trivial[pcp_slot(k, i)])
                 _fmpz_vec_set(r, lift + k * n, n);
             else
-                cover_apply_word(WH, r, G->conj + pcp_slot(k, i), lift, n);
+                cover_apply_word(WH, r, WH->P->conj + pcp_slot(k, i), lift, n);
             ok = _fmpz_vec_equal(l, r, n);
         }
     /* rho A = alpha rho on the generators */
@@ -492,23 +503,191 @@ static int cover_build(iterate_map_t M, const fmpz *img, pcp_work_t WG)
         cover_reduce(M, l, lift + k * n, WG);
         ok = _fmpz_vec_equal(l, img + k * n, n);
     }
-    if (WH->overflow)
-        WG->overflow = 1;
-    ok = ok && !WG->overflow;
-    if (consistent && !WG->overflow)
-        M->cover = H; /* for iterate_map_eval, even when the map does not lift */
-    else {
+    fmpz_clear(e);
+    _fmpz_vec_clear(l, n);
+    _fmpz_vec_clear(r, n);
+    return ok && !WH->overflow && !WG->overflow;
+}
+
+/* Builds H into M->cover when P without its power relations is
+ * consistent, and a lift of alpha (the images img in G, n x n) into the
+ * first table when one is found; 1 then (M->P is H), 0 otherwise.  A stop
+ * of the hook sets WG->overflow.
+ *
+ * The lifts of alpha differ by the kernel of rho.  The first one tried
+ * takes the normal words of the images; when it does not respect H's
+ * relations, the images of the generators not defined as commutators are
+ * multiplied by -1, 0 or 1 times the kernel elements z_j = a_j^(m_j)
+ * pow_j^-1 of the finite generators of weight 1 (rho(z_j) = 1 by the power
+ * relation a_j^(m_j) = pow_j), up to ITERATE_COVER_MAX_TRIES choices: e.g.
+ * b -> b^-1 on <a, b | a^2, b^6> at class 3, whose normal word b^5 does
+ * not respect the relation [b,a,a] = [b,a,b] of H, lifts so (the checks
+ * decide; the search only proposes). */
+/* The cover's presentation: G's conjugate relations with the exponents
+ * of finite generators as stored (symmetric = 0) or as symmetric residues
+ * in (-m/2, m/2] (symmetric = 1: a stored [b,a]^5 of order 6 becomes
+ * [b,a]^-1, which is what the cover may need to be consistent); NULL when
+ * it is not consistent, when a changed word is not the same element of G
+ * (then rho would not be a homomorphism), or for symmetric = 1 when no
+ * word changes. */
+static pcp_struct *cover_presentation(const pcp_struct *G, int symmetric, pcp_work_t WG)
+{
+    slong n = G->n;
+    pcp_struct *H = flint_malloc(sizeof(pcp_struct));
+    pcp_init(H);
+    pcp_reset(H, n, G->weight, G->maxweight);
+    pcw_t w;
+    pcw_init(w);
+    fmpz *u = _fmpz_vec_init(n), *v = _fmpz_vec_init(n);
+    int changed = 0, ok = 1;
+    for (slong k = 1; k < G->ncore && ok && !WG->overflow; k++)
+        for (slong i = 0; i < k && ok; i++) {
+            slong s = pcp_slot(k, i);
+            if (G->trivial[s])
+                continue;
+            pcw_set(w, G->conj + s);
+            int ch = 0;
+            for (slong q = 0; q < w->len && symmetric; q++) {
+                const fmpz *m = G->relorder + w->gen[q];
+                if (!fmpz_is_zero(m) && fmpz_cmp_ui(m, 2) > 0) {
+                    fmpz_mul_2exp(w->exp + q, w->exp + q, 1);
+                    if (fmpz_cmp(w->exp + q, m) > 0) {
+                        fmpz_fdiv_q_2exp(w->exp + q, w->exp + q, 1);
+                        fmpz_sub(w->exp + q, w->exp + q, m);
+                        ch = 1;
+                    } else
+                        fmpz_fdiv_q_2exp(w->exp + q, w->exp + q, 1);
+                }
+            }
+            if (ch) {
+                /* the changed word must be the same element of G */
+                _fmpz_vec_zero(u, n);
+                pcp_collect_word(WG, u, w);
+                pcw_get_vec(v, n, G->conj + s);
+                ok = _fmpz_vec_equal(u, v, n);
+                changed = 1;
+            }
+            pcp_set_conj(H, k, i, w);
+        }
+    for (slong k = 0; k < n; k++)
+        pcp_def_set(H->def + k, G->def + k);
+    if (ok && (changed || !symmetric) && !WG->overflow) {
+        pcp_work_t WH;
+        pcp_work_init(WH, H);
+        WH->progress = WG->progress;
+        ok = !pcp_complete(H, WH) && pcp_is_consistent(H, WH);
+        if (WH->overflow)
+            WG->overflow = 1;
+    } else
+        ok = 0;
+    pcw_clear(w);
+    _fmpz_vec_clear(u, n);
+    _fmpz_vec_clear(v, n);
+    if (!ok || WG->overflow) {
         pcp_clear(H);
         flint_free(H);
+        return NULL;
+    }
+    return H;
+}
+
+/* A lift of alpha to H (the images img in G, n x n) into lift; 1 when one
+ * is found (see cover_build). */
+static int cover_lift(iterate_map_t M, fmpz *lift, const fmpz *img, pcp_struct *H, pcp_work_t WG)
+{
+    const pcp_struct *G = M->Q->pcp;
+    slong n = G->n;
+    pcp_work_t WH;
+    pcp_work_init(WH, H);
+    WH->progress = WG->progress;
+    int ok = 0;
+    /* the kernel elements z_j and the generators they adjust */
+    slong nz = 0, nfree = 0;
+    for (slong j = 0; j < n; j++) {
+        nz += G->weight[j] == 1 && !fmpz_is_zero(G->relorder + j);
+        nfree += !(G->def[j].kind == PCP_DEF_COMM && G->def[j].a < j && G->def[j].b < j) &&
+                 !cover_def_is_product(G->def + j, j);
+    }
+    fmpz *z = _fmpz_vec_init(FLINT_MAX(nz * n, 1)), *w = _fmpz_vec_init(n);
+    slong q = 0;
+    for (slong j = 0; j < n; j++)
+        if (G->weight[j] == 1 && !fmpz_is_zero(G->relorder + j)) {
+            fmpz_set(z + q * n + j, G->relorder + j);
+            pcw_get_vec(w, n, G->pow + j);
+            pcp_elt_inv(WH, w, w);
+            pcp_elt_mul(WH, z + q * n, z + q * n, w);
+            q++;
+        }
+    slong npairs = nz * nfree;
+    int *t = flint_calloc(FLINT_MAX(npairs, 1), sizeof(int));
+    /* each try checks O(n^2) relations: fewer tries for larger n */
+    slong maxtries = n <= 16 ? ITERATE_COVER_MAX_TRIES : n <= 64 ? 27 : 1;
+    for (slong tries = 0; tries < maxtries && !WH->overflow && !WG->overflow; tries++) {
+        ok = cover_try_lift(M, lift, img, z, nz, t, WH, WG);
+        if (ok)
+            break;
+        /* the next choice: t counts in base 3 with digits 0, 1, -1 */
+        slong p = 0;
+        while (p < npairs && t[p] == -1)
+            t[p++] = 0;
+        if (p == npairs)
+            break;
+        t[p] = t[p] == 0 ? 1 : -1;
+    }
+    flint_free(t);
+    _fmpz_vec_clear(z, FLINT_MAX(nz * n, 1));
+    _fmpz_vec_clear(w, n);
+    if (WH->overflow)
+        WG->overflow = 1;
+    return ok && !WG->overflow;
+}
+
+/* Builds H into M->cover when G's presentation without its power
+ * relations is consistent (as stored, else with symmetric residues), and
+ * a lift of alpha (the images img in G, n x n) into the first table when
+ * one is found; 1 then (M->P is H), 0 otherwise.  A stop of the hook sets
+ * WG->overflow.
+ *
+ * The lifts of alpha differ by the kernel of rho.  The first one tried
+ * takes the normal words of the images; when it does not respect H's
+ * relations, the images of the generators not defined as commutators are
+ * multiplied by -1, 0 or 1 times the kernel elements z_j = a_j^(m_j)
+ * pow_j^-1 of the finite generators of weight 1 (rho(z_j) = 1 by the power
+ * relation a_j^(m_j) = pow_j), up to ITERATE_COVER_MAX_TRIES choices: e.g.
+ * b -> b^-1 on <a, b | a^2, b^6> at class 3, whose normal word b^5 does
+ * not respect the relation [b,a,a] = [b,a,b] of H, lifts so (the checks
+ * decide; the search only proposes). */
+static int cover_build(iterate_map_t M, const fmpz *img, pcp_work_t WG)
+{
+    const pcp_struct *G = M->Q->pcp;
+    slong n = G->n;
+    if (n == 0 || n > ITERATE_COVER_MAX_PC)
+        return 0;
+    fmpz *lift = _fmpz_vec_init(n * n);
+    int ok = 0;
+    for (int symmetric = 0; symmetric < 2 && !ok && !WG->overflow; symmetric++) {
+        pcp_struct *H = cover_presentation(G, symmetric, WG);
+        if (H == NULL)
+            continue;
+        ok = cover_lift(M, lift, img, H, WG);
+        if (ok || M->cover == NULL) {
+            /* kept for iterate_map_eval even when the map does not lift */
+            if (M->cover) {
+                pcp_clear(M->cover);
+                flint_free(M->cover);
+            }
+            M->cover = H;
+        } else {
+            pcp_clear(H);
+            flint_free(H);
+        }
     }
     if (ok) {
-        M->P = H;
+        M->P = M->cover;
         M->hall = 1;
         _fmpz_vec_set(M->tab->img, lift, n * n);
     }
     _fmpz_vec_clear(lift, n * n);
-    _fmpz_vec_clear(l, n);
-    _fmpz_vec_clear(r, n);
     return ok;
 }
 
