@@ -153,10 +153,12 @@ h, n, fr = int(m.group(1)), int(m.group(2)), int(m.group(3))
 to, de = int(m.group(4) or 0), int(m.group(5) or 0)
 sys.exit(0 if (h == hl and n == npc and fr == hl and fr + to + de == n and de == 0) else 1)
 EOF
-# layer 1: 2 pc generators for Z^2, none dependent
+# layer 1: 2 pc generators for Z^2, none dependent, and a layer with none
+# does not speak of dependent generators at all
 keys g Enter
 wait_for "Layer 1"
-wait_for "2 pc generators: 2 for the free part, 0 for torsion factors, 0 dependent"
+wait_for "2 pc generators: 2 for the free part, 0 for torsion factors"
+screen | grep -q "dependent" && fail "the layer detail speaks of dependent generators where there are none"
 keys Escape
 keys q y
 wait_for "EXIT=0"

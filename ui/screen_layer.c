@@ -75,11 +75,19 @@ static void detail_build(explorer_app *app, paint_lines *t)
                     L->group_str ? L->group_str : "?");
     /* every pc generator of the layer is accounted for */
     long dep = (long)(L->count - L->free_rank - L->ntors);
-    paint_lines_add(t, ROLE_NORMAL,
-                    "  %ld pc generator%s: %ld for the free part, %ld for torsion factors, "
-                    "%ld dependent",
-                    (long)L->count, L->count == 1 ? "" : "s",
-                    (long)L->free_rank, (long)L->ntors, dep);
+    /* the quotient keeps no dependent generator (nq.c puts such a layer in
+     * Smith form); a presentation computed otherwise still says so */
+    if (dep > 0)
+        paint_lines_add(t, ROLE_NORMAL,
+                        "  %ld pc generator%s: %ld for the free part, %ld for torsion factors, "
+                        "%ld dependent",
+                        (long)L->count, L->count == 1 ? "" : "s", (long)L->free_rank,
+                        (long)L->ntors, dep);
+    else
+        paint_lines_add(t, ROLE_NORMAL,
+                        "  %ld pc generator%s: %ld for the free part, %ld for torsion factors",
+                        (long)L->count, L->count == 1 ? "" : "s", (long)L->free_rank,
+                        (long)L->ntors);
     if (dep > 0)
         paint_lines_add(
             t, ROLE_DIM,
