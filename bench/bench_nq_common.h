@@ -18,7 +18,8 @@
  * step's elimination) / floor and (the whole nq_compute) / floor, all CPU
  * seconds of this one process, with the 1-minute load average.  The
  * elimination is timed through the progress hook's stages ("class c:
- * elimination" up to "class c: new presentation").  Matrices of more than
+ * elimination" up to the next stage, "class c: layer basis", so the
+ * change of basis of the new layer is not counted as elimination).  Matrices of more than
  * NILSTEP_BENCH_FLOOR_CAP entries (default 16,000,000) are not built and
  * the floor is reported as skipped.
  *

@@ -128,7 +128,45 @@ static void set_survivor_powers(pcp_t P, const elim_quotient_t q, slong base)
     _fmpz_vec_clear(v, ns);
 }
 
-static void drop_redundant_survivors(elim_quotient_t q);
+/* The layer-basis phase (drop_redundant_survivors, swap_in_commutator_tails,
+ * minimise_survivors) polls progress through this.  work counts coefficient
+ * operations weighted by the limbs of the integers they touch, so that a
+ * cancel is seen after about NQ_POLL_WORK limb operations however large
+ * the entries have grown; every routine also polls once when it starts. */
+#define NQ_POLL_WORK (1L << 18)
+typedef struct {
+    const ns_progress_t *p; /* may be NULL */
+    slong work;
+    int stopped;            /* the hook asked to stop: every routine returns */
+} nq_poll;
+
+static int nq_poll_add(nq_poll *w, slong ops)
+{
+    if (w->stopped)
+        return 1;
+    w->work += ops;
+    if (w->work < NQ_POLL_WORK)
+        return 0;
+    w->work = 0;
+    w->stopped = ns_progress_report(w->p, NULL, -1.0);
+    return w->stopped;
+}
+
+static int nq_poll_now(nq_poll *w)
+{
+    return nq_poll_add(w, NQ_POLL_WORK);
+}
+
+/* sum over v of 1 + its size in limbs: the cost of one pass over v */
+static slong vec_limbs(const fmpz *v, slong n)
+{
+    slong l = n;
+    for (slong i = 0; i < n; i++)
+        l += fmpz_size(v + i);
+    return l;
+}
+
+static int drop_redundant_survivors(elim_quotient_t q, nq_poll *w);
 
 /* A change of basis of a new layer (minimise_survivors): some survivors
  * are new generators, each a combination of the survivors before. */
@@ -155,7 +193,7 @@ static void basis_change_clear(basis_change_struct *B)
     basis_change_init(B);
 }
 
-static void minimise_survivors(elim_quotient_t q, basis_change_struct *B);
+static int minimise_survivors(elim_quotient_t q, basis_change_struct *B, nq_poll *w);
 
 /* d := the definition of survivor s when it is a new generator of B: the
  * product of the terms of the old survivors, old survivor column col
@@ -205,11 +243,12 @@ static ns_status class_one(nq_t Q, pcp_work_t W, nserr_t err)
         elim_add_dense(E, row);
     }
     elim_get_quotient(q, E);
-    drop_redundant_survivors(q);
+    nq_poll nopoll = {NULL, 0, 0};
+    drop_redundant_survivors(q, &nopoll);
     basis_change_struct B;
     basis_change_init(&B);
     if (!(Q->flags & NQ_KEEP_DEPENDENT))
-        minimise_survivors(q, &B);
+        minimise_survivors(q, &B, &nopoll);
     slong ns = q->nsurv;
     slong *wt = flint_malloc(FLINT_MAX(ns, 1) * sizeof(slong));
     for (slong s = 0; s < ns; s++)
@@ -663,7 +702,8 @@ static void row_gcd_step(fmpz *x, fmpz *y, slong n, slong c)
  * relation "tail = its expression".  Every tail's expression is rewritten
  * in the new survivors; q is replaced.  Shared by drop_redundant_survivors
  * (m = 0: only the column order changes) and swap_in_commutator_tails. */
-static void requotient_survivors(elim_quotient_t q, const slong *perm, const slong *J, slong m)
+static int requotient_survivors(elim_quotient_t q, const slong *perm, const slong *J, slong m,
+                                nq_poll *w)
 {
     slong ns = q->nsurv, T = q->ncols, N = ns + m;
     elim_t E;
@@ -681,8 +721,10 @@ static void requotient_survivors(elim_quotient_t q, const slong *perm, const slo
                 fmpz_zero(v + c);
         }
         elim_add_dense(E, v);
+        if (nq_poll_add(w, N * vec_limbs(v, N)))
+            break;
     }
-    for (slong x = 0; x < m; x++) {
+    for (slong x = 0; x < m && !w->stopped; x++) {
         for (slong c = 0; c < N; c++) {
             if (perm[c] < ns)
                 fmpz_set(v + c, q->expr + J[x] * ns + perm[c]);
@@ -692,9 +734,16 @@ static void requotient_survivors(elim_quotient_t q, const slong *perm, const slo
                 fmpz_zero(v + c);
         }
         elim_add_dense(E, v);
+        if (nq_poll_add(w, N * vec_limbs(v, N)))
+            break;
     }
     _fmpz_vec_clear(v, N);
-    elim_get_quotient(q2, E);
+    if (w->stopped || elim_get_quotient_progress(q2, E, w->p)) {
+        w->stopped = 1;
+        elim_clear(E);
+        elim_quotient_clear(q2);
+        return 1;
+    }
     elim_clear(E);
     slong n2 = q2->nsurv;
     /* old survivor perm[c] = sum_k q2->expr[c][k] (new survivor k); every
@@ -712,6 +761,13 @@ static void requotient_survivors(elim_quotient_t q, const slong *perm, const slo
             for (slong j = 0; j < n2; j++)
                 if (!fmpz_is_zero(e2 + j))
                     fmpz_addmul(expr + t * n2 + j, x, e2 + j);
+            if (nq_poll_add(w, n2 * (1 + (slong)fmpz_size(x))))
+                break;
+        }
+        if (w->stopped) {
+            _fmpz_vec_clear(expr, FLINT_MAX(T * n2, 1));
+            elim_quotient_clear(q2);
+            return 1;
         }
     }
     slong *surv = flint_malloc(FLINT_MAX(n2, 1) * sizeof(slong));
@@ -742,15 +798,18 @@ static void requotient_survivors(elim_quotient_t q, const slong *perm, const slo
         _fmpz_vec_clear(rel, 1);
         _fmpz_vec_clear(expr, FLINT_MAX(T * n2, 1));
     }
+    return 0;
 }
 
-static void drop_redundant_survivors(elim_quotient_t q)
+static int drop_redundant_survivors(elim_quotient_t q, nq_poll *w)
 {
     slong ns = q->nsurv, nt = 0;
+    if (nq_poll_now(w))
+        return 1;
     for (slong s = 0; s < ns; s++)
         nt += !fmpz_is_zero(q->order + s);
     if (nt == 0)
-        return;
+        return 0;
     fmpz *rows = _fmpz_vec_init(nt * ns);
     nt = 0;
     for (slong s = 0; s < ns; s++)
@@ -801,7 +860,12 @@ static void drop_redundant_survivors(elim_quotient_t q)
                     continue;
                 }
                 row_gcd_step(rows + r * ns, rows + i * ns, ns, b);
+                if (nq_poll_add(w, 4 * (vec_limbs(rows + r * ns, ns) +
+                                        vec_limbs(rows + i * ns, ns))))
+                    break;
             }
+            if (w->stopped)
+                break;
         }
         used[r] = 1;
         gone[b] = 1;
@@ -811,23 +875,25 @@ static void drop_redundant_survivors(elim_quotient_t q)
                 continue;
             fmpz_mul(k, rows + i * ns + b, rows + r * ns + b); /* the unit is its own inverse */
             _fmpz_vec_scalar_submul_fmpz(rows + i * ns, rows + r * ns, ns, k);
+            if (nq_poll_add(w, 2 * (1 + (slong)fmpz_size(k)) * vec_limbs(rows + r * ns, ns)))
+                break;
         }
+        if (w->stopped)
+            break;
     }
     _fmpz_vec_clear(rows, nt * ns);
     flint_free(used);
-    if (nx == 0) {
-        fmpz_clear(k);
-        flint_free(gone);
-        flint_free(perm);
-        return;
+    int stopped = w->stopped;
+    if (nx > 0 && !stopped) {
+        for (slong s = 0, i = nx; s < ns; s++)
+            if (!gone[s])
+                perm[i++] = s;
+        stopped = requotient_survivors(q, perm, NULL, 0, w);
     }
-    for (slong s = 0, i = nx; s < ns; s++)
-        if (!gone[s])
-            perm[i++] = s;
-    requotient_survivors(q, perm, NULL, 0);
     fmpz_clear(k);
     flint_free(gone);
     flint_free(perm);
+    return stopped;
 }
 
 /* A relation of the layer whose entries have gcd 1 but no unit
@@ -842,11 +908,13 @@ static void drop_redundant_survivors(elim_quotient_t q)
  * genus-2 surface group at class 7 has one such relation).  Each row is
  * tried once, with the first candidate found; the survivor lattice is
  * brought to echelon form again with the chosen columns added. */
-static void swap_in_commutator_tails(elim_quotient_t q, slong first)
+static int swap_in_commutator_tails(elim_quotient_t q, slong first, nq_poll *w)
 {
     slong ns = q->nsurv, T = q->ncols;
+    if (nq_poll_now(w))
+        return 1;
     if (ns == 0)
-        return;
+        return 0;
     char *issurv = flint_calloc(T, 1);
     for (slong s = 0; s < ns; s++)
         issurv[q->surv[s]] = 1;
@@ -880,6 +948,8 @@ static void swap_in_commutator_tails(elim_quotient_t q, slong first)
         for (slong j = first; j < T && fj < 0; j++) {
             if (issurv[j])
                 continue;
+            if (nq_poll_add(w, 1 + ns_r * ns_r))
+                break;
             const fmpz *e = q->expr + j * ns;
             for (slong is = 0; is < ns_r && fj < 0; is++) {
                 slong s = sup[is];
@@ -898,6 +968,8 @@ static void swap_in_commutator_tails(elim_quotient_t q, slong first)
                 }
             }
         }
+        if (w->stopped)
+            break;
         if (fj < 0)
             continue;
         issurv[fj] = 1;
@@ -909,11 +981,11 @@ static void swap_in_commutator_tails(elim_quotient_t q, slong first)
     fmpz_clear(d);
     flint_free(issurv);
     flint_free(sup);
-    if (m == 0) {
+    if (m == 0 || w->stopped) {
         flint_free(J);
         flint_free(gs);
         flint_free(gone);
-        return;
+        return w->stopped;
     }
     /* columns: the old survivors, then the tails J; order: the dropped
        pairs first */
@@ -925,11 +997,12 @@ static void swap_in_commutator_tails(elim_quotient_t q, slong first)
     for (slong c = 0; c < N; c++)
         if (c >= ns || !gone[c])
             perm[k++] = c;
-    requotient_survivors(q, perm, J, m);
+    int stopped = requotient_survivors(q, perm, J, m, w);
     flint_free(perm);
     flint_free(J);
     flint_free(gs);
     flint_free(gone);
+    return stopped;
 }
 
 /* ---- a new layer in Smith form, where the survivors are not minimal */
@@ -939,6 +1012,7 @@ static void swap_in_commutator_tails(elim_quotient_t q, slong first)
 typedef struct {
     slong nr, nc;
     fmpz *M, *V, *Vi;
+    nq_poll *poll;
 } snf_work;
 
 static void snf_col_swap(snf_work *w, slong i, slong j)
@@ -995,6 +1069,9 @@ static void snf_col_gcd(snf_work *w, slong r, slong i, slong j)
         fmpz_submul(rj + k, v, ri + k);
         fmpz_swap(ri + k, t);
     }
+    /* the pass touched columns i and j of M and V and two rows of Vi */
+    nq_poll_add(w->poll, 4 * (w->nr + 2 * nc) * (1 + (slong)fmpz_size(w->M + r * nc + i) +
+                                                 (slong)fmpz_size(u) + (slong)fmpz_size(v)));
     fmpz_clear(g);
     fmpz_clear(u);
     fmpz_clear(v);
@@ -1006,11 +1083,14 @@ static void snf_col_gcd(snf_work *w, slong r, slong i, slong j)
 /* M to Smith form by row operations and recorded column operations (the
  * textbook elimination, smallest pivot first: the blocks that reach it are
  * small, and FLINT 2.9's fmpz_mat_snf gives no transform).  Returns the
- * rank; M[t][t] > 0 for t < rank, each dividing the next. */
+ * rank; M[t][t] > 0 for t < rank, each dividing the next; or -1 when
+ * the progress hook asked to stop (w->poll). */
 static slong snf_transform(snf_work *w)
 {
     slong nr = w->nr, nc = w->nc, t = 0;
     for (; t < nr && t < nc; t++) {
+        if (nq_poll_add(w->poll, nr * nc))
+            return -1;
         slong pr = -1, pc = -1;
         for (slong r = t; r < nr; r++)
             for (slong c = t; c < nc; c++) {
@@ -1029,12 +1109,18 @@ static slong snf_transform(snf_work *w)
             snf_col_swap(w, pc, t);
         for (;;) {
             for (slong r = t + 1; r < nr; r++)
-                if (!fmpz_is_zero(w->M + r * nc + t))
+                if (!fmpz_is_zero(w->M + r * nc + t)) {
                     row_gcd_step(w->M + t * nc, w->M + r * nc, nc, t);
+                    if (nq_poll_add(w->poll, 4 * (vec_limbs(w->M + t * nc, nc) +
+                                                  vec_limbs(w->M + r * nc, nc))))
+                        return -1;
+                }
             int dirty = 0;
             for (slong c = t + 1; c < nc; c++)
                 if (!fmpz_is_zero(w->M + t * nc + c)) {
                     snf_col_gcd(w, t, t, c);
+                    if (w->poll->stopped)
+                        return -1;
                     dirty = 1;
                 }
             if (dirty)
@@ -1072,13 +1158,15 @@ static slong snf_transform(snf_work *w)
  * that were minimal keep their generators.  The survivors keep their
  * order, with the new generators (torsion first, then free) where the
  * first changed column was. */
-static void minimise_survivors(elim_quotient_t q, basis_change_struct *B)
+static int minimise_survivors(elim_quotient_t q, basis_change_struct *B, nq_poll *poll)
 {
     slong ns = q->nsurv, T = q->ncols, nt = 0, nb = 0;
+    if (nq_poll_now(poll))
+        return 1;
     for (slong s = 0; s < ns; s++)
         nt += !fmpz_is_zero(q->order + s);
     if (nt == 0)
-        return;
+        return 0;
     char *inb = flint_calloc(ns, 1);
     fmpz_t g;
     fmpz_init(g);
@@ -1097,7 +1185,7 @@ static void minimise_survivors(elim_quotient_t q, basis_change_struct *B)
     fmpz_clear(g);
     if (!one) {
         flint_free(inb);
-        return;
+        return 0;
     }
     slong *col = flint_malloc(ns * sizeof(slong));
     for (slong c = 0; c < ns; c++)
@@ -1109,6 +1197,7 @@ static void minimise_survivors(elim_quotient_t q, basis_change_struct *B)
     w.M = _fmpz_vec_init(nt * nb);
     w.V = _fmpz_vec_init(nb * nb);
     w.Vi = _fmpz_vec_init(nb * nb);
+    w.poll = poll;
     for (slong i = 0; i < nb; i++) {
         fmpz_one(w.V + i * nb + i);
         fmpz_one(w.Vi + i * nb + i);
@@ -1121,6 +1210,14 @@ static void minimise_survivors(elim_quotient_t q, basis_change_struct *B)
         r++;
     }
     slong rank = snf_transform(&w);
+    if (rank < 0) {
+        _fmpz_vec_clear(w.M, nt * nb);
+        _fmpz_vec_clear(w.V, nb * nb);
+        _fmpz_vec_clear(w.Vi, nb * nb);
+        flint_free(col);
+        flint_free(inb);
+        return 1;
+    }
     /* signs: each new generator's first old survivor with a positive
        exponent (d y = 0 and -d y = 0 say the same) */
     for (slong i = 0; i < nb; i++) {
@@ -1162,12 +1259,27 @@ static void minimise_survivors(elim_quotient_t q, basis_change_struct *B)
                 fmpz_abs(order + p, w.M + i * nb + i);
                 fmpz_set(rel + p * n2 + p, order + p);
             }
-            for (slong t = 0; t < T; t++) {
+            for (slong t = 0; t < T && !poll->stopped; t++) {
                 fmpz *e = expr + t * n2 + p;
                 for (slong b = 0; b < nb; b++)
                     fmpz_addmul(e, q->expr + t * ns + col[b], w.V + b * nb + i);
+                nq_poll_add(poll, nb * (1 + (slong)fmpz_size(e)));
             }
         }
+    }
+    if (poll->stopped) {
+        flint_free(surv);
+        flint_free(which);
+        _fmpz_vec_clear(order, n2);
+        _fmpz_vec_clear(rel, n2 * n2);
+        _fmpz_vec_clear(expr, T * n2);
+        _fmpz_vec_clear(w.M, nt * nb);
+        _fmpz_vec_clear(w.V, nb * nb);
+        _fmpz_vec_clear(w.Vi, nb * nb);
+        flint_free(kept);
+        flint_free(col);
+        flint_free(inb);
+        return 1;
     }
     basis_change_clear(B);
     B->nold = ns;
@@ -1193,6 +1305,7 @@ static void minimise_survivors(elim_quotient_t q, basis_change_struct *B)
     flint_free(kept);
     flint_free(col);
     flint_free(inb);
+    return 0;
 }
 
 /* Phase 4: the quotient of the tails by L; only commutator tails may
@@ -1203,10 +1316,16 @@ static ns_status step_quotient(step_struct *S, const ns_progress_t *prog, nserr_
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     if (elim_flush(S->L, prog) || elim_get_quotient_progress(S->q, S->L, prog))
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
-    drop_redundant_survivors(S->q);
-    swap_in_commutator_tails(S->q, S->last);
-    if (!(S->flags & NQ_KEEP_DEPENDENT))
-        minimise_survivors(S->q, &S->basis);
+    /* fewer survivors where they are dependent (doc/design.md §9.1): on
+       some layers this is long, and it polls the hook throughout */
+    if (progress_stage(prog, S->c + 1, "layer basis", 0.93))
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
+    nq_poll poll = {prog, 0, 0};
+    if (drop_redundant_survivors(S->q, &poll) ||
+        swap_in_commutator_tails(S->q, S->last, &poll) ||
+        (!(S->flags & NQ_KEEP_DEPENDENT) && minimise_survivors(S->q, &S->basis, &poll)))
+        return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled in class %ld",
+                         (long)(S->c + 1));
     if (progress_stage(prog, S->c + 1, "new presentation", 0.95))
         return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "cancelled");
     for (slong s = 0; s < S->q->nsurv; s++) {

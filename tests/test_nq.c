@@ -1172,6 +1172,74 @@ static void cancel_during_collection(void **state)
     pres_clear(p);
 }
 
+/* The layer-basis phase of a step (dropping dependent survivors, swapping
+ * in commutator tails, the Smith form of a layer) can be long: on
+ * <a, b, c | [a,b]^6 [a,c]^10 [b,c]^15> at class 6 its integers grew to
+ * about 588,000 bits, and it went minutes without calling the hook, so
+ * Esc in the explorer could not stop it.  It reports its own stage and
+ * polls with a NULL stage throughout (every NQ_POLL_WORK limb operations,
+ * nq.c, and once as each of its routines starts): a cancel asked on the
+ * k-th of those polls must stop the run there, with NS_ERR_CANCELLED, an
+ * empty result and no further call of the hook.  Both routes (Smith form,
+ * and NQ_KEEP_DEPENDENT, which has no Smith form but the same re-eliminations).
+ * Before the polls were there the run did not stop (it hung in the phase
+ * for over five minutes). */
+typedef struct {
+    int in_phase;  /* the stage "class 6: layer basis" was reported */
+    int polls;     /* NULL-stage polls since then */
+    int cancel_at; /* cancel on this poll of the phase */
+    int after;     /* calls of the hook after it asked to stop */
+    int left;      /* another stage came after the phase */
+} phase_ctx;
+
+static int cancel_in_layer_basis(void *vctx, const char *stage, double fraction)
+{
+    (void)fraction;
+    phase_ctx *c = vctx;
+    if (c->polls >= c->cancel_at) {
+        c->after++;
+        return 1;
+    }
+    if (stage != NULL) {
+        if (c->in_phase)
+            c->left = 1;
+        c->in_phase = strcmp(stage, "class 6: layer basis") == 0;
+        return 0;
+    }
+    if (!c->in_phase)
+        return 0;
+    c->polls++;
+    return c->polls >= c->cancel_at;
+}
+
+static void cancel_during_layer_basis(void **state)
+{
+    (void)state;
+    const char *text = "<a, b, c | [a,b]^6 [a,c]^10 [b,c]^15>";
+    pres_t p;
+    nserr_t err;
+    pres_init(p);
+    parse_pres_or_fail(p, text);
+    static const int flags[] = {0, NQ_KEEP_DEPENDENT};
+    static const int at[] = {1, 2, 8};
+    for (size_t f = 0; f < sizeof flags / sizeof flags[0]; f++)
+        for (size_t k = 0; k < sizeof at / sizeof at[0]; k++) {
+            phase_ctx pc = {0, 0, at[k], 0, 0};
+            ns_progress_t prog = {cancel_in_layer_basis, &pc};
+            nq_t Q;
+            nq_init(Q);
+            nserr_init(err);
+            ns_status st = nq_compute_flags(Q, p, 6, 0, flags[f], &prog, err);
+            if (st != NS_ERR_CANCELLED || pc.left || pc.after != 0)
+                fail_msg("%s, flags %d, cancel at poll %d of the layer basis of class 6: "
+                         "status %d, %d polls, phase left %d, %d calls after the cancel",
+                         text, flags[f], at[k], (int)st, pc.polls, pc.left, pc.after);
+            assert_empty(Q);
+            nq_clear(Q);
+        }
+    pres_clear(p);
+}
+
 static void bad_class_is_input_error(void **state)
 {
     (void)state;
@@ -1541,6 +1609,7 @@ int main(int argc, char **argv)
         cmocka_unit_test(eval_surface_relator),
         cmocka_unit_test(cancel_leaves_nq_empty),
         cmocka_unit_test(cancel_during_collection),
+        cmocka_unit_test(cancel_during_layer_basis),
         cmocka_unit_test(bad_class_is_input_error),
         cmocka_unit_test(recompute_replaces_result),
     };
