@@ -75,7 +75,16 @@ static inline void witt_rank(fmpz_t out, ulong r, ulong n)
  * defining relation", J. Algebra 14 (1970): layer n of the genus-g surface
  * group has rank (1/n) sum_{d|n} mu(n/d) sum_{i=0}^{floor(d/2)} (-1)^i
  * d/(d-i) C(d-i,i) (2g)^(d-2i). */
+static inline void labute_rank_q2(fmpz_t out, ulong m, ulong n);
 static inline void labute_rank(fmpz_t out, ulong g, ulong n)
+{
+    labute_rank_q2(out, 2 * g, n);
+}
+
+/* The same formula for one relator on m generators whose image in layer 2
+ * of the free Lie ring is not a proper multiple (Labute 1970: prod_n
+ * (1 - t^n)^(c_n) = 1 - m t + t^2); with m = 2g the surface group. */
+static inline void labute_rank_q2(fmpz_t out, ulong m, ulong n)
 {
     fmpz_t inner, t, b;
     fmpz_init(inner);
@@ -90,7 +99,7 @@ static inline void labute_rank(fmpz_t out, ulong g, ulong n)
             fmpz_bin_uiui(b, d - i, i);
             fmpz_mul_ui(b, b, d);
             fmpz_divexact_ui(b, b, d - i);
-            fmpz_set_ui(t, 2 * g);
+            fmpz_set_ui(t, m);
             fmpz_pow_ui(t, t, d - 2 * i);
             fmpz_mul(t, t, b);
             if (i % 2)
