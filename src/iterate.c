@@ -13,6 +13,8 @@ void iterate_map_init(iterate_map_t M)
     M->pow10_k = -1;
 }
 
+static void free_fields_clear(iterate_map_t M);
+
 static void poly_clear(iterate_table_struct *t)
 {
     if (t->nmono) {
@@ -86,7 +88,7 @@ static slong mono_find(const slong *list, slong len, slong n, const slong *d)
 static void poly_eval(const iterate_map_struct *M, const iterate_table_struct *t, fmpz *out,
                       const fmpz *x)
 {
-    slong n = M->n, c = M->deg;
+    slong n = M->tn, c = M->deg;
     /* binom(x_i, d) for d = 0..c */
     fmpz *B = _fmpz_vec_init(n * (c + 1));
     fmpz_t f, prod, acc;
@@ -129,7 +131,7 @@ static void poly_eval(const iterate_map_struct *M, const iterate_table_struct *t
 static void poly_interpolate(const iterate_map_struct *M, iterate_table_struct *t,
                              const fmpz *vals)
 {
-    slong n = M->n, N = t->nmono;
+    slong n = M->tn, N = t->nmono;
     fmpz *coef = _fmpz_vec_init(N * n);
     slong *e = flint_malloc(n * sizeof(slong)), *nzv = flint_malloc(n * sizeof(slong));
     fmpz_t w;
@@ -198,7 +200,7 @@ static void poly_interpolate(const iterate_map_struct *M, iterate_table_struct *
  * basis is too large. */
 static int poly_points(const iterate_map_struct *M, iterate_table_struct *t)
 {
-    slong n = M->n, len = 0, alloc = 0;
+    slong n = M->tn, len = 0, alloc = 0;
     slong *list = NULL, *cur = flint_calloc(FLINT_MAX(n, 1), sizeof(slong));
     mono_enum(&list, &len, &alloc, cur, M->P->weight, n, 0, M->deg);
     flint_free(cur);
@@ -214,8 +216,9 @@ static int poly_points(const iterate_map_struct *M, iterate_table_struct *t)
 void iterate_map_clear(iterate_map_t M)
 {
     for (slong b = 0; b < M->ntab; b++)
-        table_clear(M->tab + b, M->n, M->deg);
+        table_clear(M->tab + b, M->tn, M->deg);
     flint_free(M->tab);
+    free_fields_clear(M);
     if (M->cover) {
         pcp_clear(M->cover);
         flint_free(M->cover);
@@ -228,7 +231,7 @@ void iterate_map_clear(iterate_map_t M)
  * differences at 0 of e -> img_k^e from the values at e = 0..deg. */
 static void table_make_diff(iterate_map_t M, iterate_table_struct *t, pcp_work_t W)
 {
-    slong n = M->n, D = M->deg;
+    slong n = M->tn, D = M->deg;
     t->diff = _fmpz_vec_init(FLINT_MAX(n * (D + 1) * n, 1));
     for (slong k = 0; k < n && !W->overflow; k++) {
         fmpz *s = t->diff + k * (D + 1) * n;
@@ -244,7 +247,7 @@ static void table_make_diff(iterate_map_t M, iterate_table_struct *t, pcp_work_t
 static void table_pow(iterate_map_t M, const iterate_table_struct *t, fmpz *out, slong k,
                       const fmpz_t e, pcp_work_t W)
 {
-    slong n = M->n, D = M->deg;
+    slong n = M->tn, D = M->deg;
     if (t->diff == NULL) {
         pcp_elt_pow(W, out, t->img + k * n, e);
         return;
@@ -274,7 +277,7 @@ static void table_pow(iterate_map_t M, const iterate_table_struct *t, fmpz *out,
 static void table_apply(iterate_map_t M, const iterate_table_struct *t, fmpz *out,
                         const fmpz *g, pcp_work_t W)
 {
-    slong n = M->n;
+    slong n = M->tn;
     if (t->nmono) {
         poly_eval(M, t, out, g);
         return;
@@ -302,7 +305,7 @@ static void table_apply(iterate_map_t M, const iterate_table_struct *t, fmpz *ou
  * entries up to 40 in absolute value); dropped when a check fails. */
 static void poly_build_first(iterate_map_t M, iterate_table_struct *t, pcp_work_t W)
 {
-    slong n = M->n;
+    slong n = M->tn;
     iterate_table_struct tmp = *t;
     tmp.nmono = 0;
     tmp.mono = NULL;
@@ -353,7 +356,7 @@ static void poly_build_first(iterate_map_t M, iterate_table_struct *t, pcp_work_
 static void poly_build_square(iterate_map_t M, const iterate_table_struct *last,
                               iterate_table_struct *t)
 {
-    slong n = M->n, N = last->nmono;
+    slong n = M->tn, N = last->nmono;
     t->mono = flint_malloc(N * n * sizeof(slong));
     memcpy(t->mono, last->mono, N * n * sizeof(slong));
     t->nmono = N;
@@ -691,6 +694,284 @@ static int cover_build(iterate_map_t M, const fmpz *img, pcp_work_t WG)
     return ok;
 }
 
+/* ---- the free nilpotent group as a cover every map lifts to
+ *
+ * When no lift of alpha to H was found (or H does not exist), let F be the
+ * free nilpotent group of class c on the input generators x_1..x_r (the
+ * nilpotent quotient of the presentation without relators) and
+ * pi: F -> G, x_i -> its value in G.  pi is a homomorphism: F's relators
+ * are the commutators of weight c + 1, which hold in G (von Dyck's
+ * theorem), and it is onto.  F is free in the variety of nilpotent groups
+ * of class <= c, so A: F -> F, x_i -> a preimage of alpha(x_i), is an
+ * endomorphism, and pi A = alpha pi holds on the x_i, hence on F:
+ *     alpha^k(pi y) = pi(A^k y)        for every y in F.
+ * F is torsion-free and its presentation consistent (Sims 1994, ch. 9),
+ * so A^k y goes by the Hall tables and repeated squaring (P. Hall,
+ * "Nilpotent groups", 1957) at a cost independent of the exponents' size.
+ *
+ * pi(y) is then computed layer by layer without collection in G.  Write
+ * F_w, G_w for the generators of weight >= w (the lower central series),
+ * pre(a_k) in F_(weight k) for the preimage of G's pc generator a_k
+ * (from its definition: images, commutators, products of them; pcp.h),
+ * f_j for F's pc generators.  The kernel elements
+ *     kappa_j = f_j pre(pi(f_j))^-1,   mu_k = pre(a_k)^(m_k) pre(pow_k)^-1
+ * (pre of a G-normal word is the product of the pre(a_k) to its
+ * exponents; pow_k the power word of a finite a_k) map to 1.  For y in F_w
+ * with weight-w exponents y_j, pi(y) = prod_k a_k^(e_k) mod G_(w+1), e_k
+ * = sum_j y_j [exponent of a_k in pi(f_j)] over the weight-w a_k; with
+ * e_k = q_k m_k + x_k (0 <= x_k < m_k; x_k = e_k, q_k = 0 for infinite
+ * a_k) and X = prod_k pre(a_k)^(x_k),
+ *     z = X^-1 y prod_j kappa_j^(-y_j) prod_k mu_k^(-q_k)
+ * lies in F_(w+1) (modulo F_(w+1) the factors add up to
+ * sum_k (e_k - x_k - q_k m_k) pre(a_k) = 0, since pow_k lies in
+ * G_(w+1)) and pi(z) = pi(X)^-1 pi(y), so pi(y) = prod_k a_k^(x_k) pi(z),
+ * G-normal in its weight-w part.  After c layers z = 1.  Every product is
+ * in F, where powers go by Hall's polynomials.  The construction is
+ * checked (pi(pre(a_k)) = a_k, pi(A f_j) = alpha(pi(f_j)), the weights
+ * above) and the route not taken when a check fails. */
+
+/* Above this many pc generators F is not built. */
+#define ITERATE_FREE_MAX_PC 400
+
+/* out := prod_j rows_j^(y_j) (rows: len x W->P->n) in W's presentation. */
+static void free_eval_vec(pcp_work_t W, fmpz *out, const fmpz *y, slong len, const fmpz *rows)
+{
+    slong m = W->P->n;
+    fmpz *t = _fmpz_vec_init(FLINT_MAX(m, 1)), *acc = _fmpz_vec_init(FLINT_MAX(m, 1));
+    for (slong j = 0; j < len && !W->overflow; j++) {
+        if (fmpz_is_zero(y + j))
+            continue;
+        pcp_elt_pow(W, t, rows + j * m, y + j);
+        pcp_elt_mul(W, acc, acc, t);
+    }
+    _fmpz_vec_set(out, acc, m);
+    _fmpz_vec_clear(t, FLINT_MAX(m, 1));
+    _fmpz_vec_clear(acc, FLINT_MAX(m, 1));
+}
+
+/* The values of the pc generators of a presentation with definitions def
+ * (nd of them) in W's presentation, given the values of the input
+ * generators (inputs, rows of W->P->n), into out (nd rows); 0 when a
+ * definition is missing. */
+static int free_values_by_def(pcp_work_t W, fmpz *out, const pcp_def_struct *def, slong nd,
+                              const fmpz *inputs)
+{
+    slong m = W->P->n;
+    fmpz *t = _fmpz_vec_init(FLINT_MAX(m, 1));
+    int ok = 1;
+    for (slong k = 0; k < nd && ok && !W->overflow; k++) {
+        const pcp_def_struct *d = def + k;
+        fmpz *o = out + k * m;
+        if (d->kind == PCP_DEF_IMAGE) {
+            _fmpz_vec_set(o, inputs + d->a * m, m);
+        } else if (d->kind == PCP_DEF_COMM && d->a >= 0 && d->b >= 0 && d->a < k && d->b < k) {
+            pcp_elt_comm(W, o, out + d->a * m, out + d->b * m);
+        } else if (d->kind == PCP_DEF_PROD) {
+            _fmpz_vec_zero(o, m);
+            for (slong q = 0; q < d->len && ok; q++) {
+                if (d->tb[q] < 0)
+                    _fmpz_vec_set(t, inputs + d->ta[q] * m, m);
+                else if (d->ta[q] < k && d->tb[q] < k)
+                    pcp_elt_comm(W, t, out + d->ta[q] * m, out + d->tb[q] * m);
+                else
+                    ok = 0;
+                pcp_elt_pow(W, t, t, d->exp + q);
+                pcp_elt_mul(W, o, o, t);
+            }
+        } else
+            ok = 0;
+    }
+    _fmpz_vec_clear(t, FLINT_MAX(m, 1));
+    return ok;
+}
+
+/* out (n entries, G-normal) := pi(y) for y in F (tn entries), layer by
+ * layer (see above); WF on F.  0 when the remainder after the last layer
+ * is not 1 (a broken construction; free_build checks). */
+static int free_project(const iterate_map_struct *M, fmpz *out, const fmpz *y, pcp_work_t WF)
+{
+    const pcp_struct *G = M->Q->pcp, *F = M->P;
+    slong n = M->n, tn = M->tn;
+    fmpz *z = _fmpz_vec_init(tn), *X = _fmpz_vec_init(tn), *t = _fmpz_vec_init(tn);
+    fmpz *q = _fmpz_vec_init(n), *yw = _fmpz_vec_init(tn);
+    fmpz_t e, neg;
+    fmpz_init(e);
+    fmpz_init(neg);
+    _fmpz_vec_set(z, y, tn);
+    _fmpz_vec_zero(out, n);
+    for (slong w = 1; w <= M->deg && !WF->overflow; w++) {
+        _fmpz_vec_zero(X, tn);
+        for (slong k = 0; k < n; k++) {
+            if (G->weight[k] != w)
+                continue;
+            fmpz_zero(e);
+            for (slong j = 0; j < tn; j++)
+                if (F->weight[j] == w)
+                    fmpz_addmul(e, z + j, M->f_in_g + j * n + k);
+            fmpz_zero(q + k);
+            if (fmpz_is_zero(G->relorder + k))
+                fmpz_set(out + k, e);
+            else
+                fmpz_fdiv_qr(q + k, out + k, e, G->relorder + k);
+            if (!fmpz_is_zero(out + k)) {
+                pcp_elt_pow(WF, t, M->g_to_f + k * tn, out + k);
+                pcp_elt_mul(WF, X, X, t);
+            }
+        }
+        _fmpz_vec_set(yw, z, tn);
+        pcp_elt_inv(WF, X, X);
+        pcp_elt_mul(WF, z, X, z);
+        for (slong j = 0; j < tn && !WF->overflow; j++)
+            if (F->weight[j] == w && !fmpz_is_zero(yw + j)) {
+                fmpz_neg(neg, yw + j);
+                pcp_elt_pow(WF, t, M->kappa + j * tn, neg);
+                pcp_elt_mul(WF, z, z, t);
+            }
+        for (slong k = 0; k < n && !WF->overflow; k++)
+            if (G->weight[k] == w && !fmpz_is_zero(q + k)) {
+                fmpz_neg(neg, q + k);
+                pcp_elt_pow(WF, t, M->mu + k * tn, neg);
+                pcp_elt_mul(WF, z, z, t);
+            }
+    }
+    int ok = _fmpz_vec_is_zero(z, tn);
+    fmpz_clear(e);
+    fmpz_clear(neg);
+    _fmpz_vec_clear(z, tn);
+    _fmpz_vec_clear(X, tn);
+    _fmpz_vec_clear(t, tn);
+    _fmpz_vec_clear(q, n);
+    _fmpz_vec_clear(yw, tn);
+    return ok;
+}
+
+static void free_fields_clear(iterate_map_t M)
+{
+    if (M->fgroup == NULL)
+        return;
+    slong n = M->n, tn = M->fgroup->pcp->n;
+    _fmpz_vec_clear(M->g_to_f, FLINT_MAX(n * tn, 1));
+    _fmpz_vec_clear(M->f_in_g, FLINT_MAX(tn * n, 1));
+    _fmpz_vec_clear(M->kappa, FLINT_MAX(tn * tn, 1));
+    _fmpz_vec_clear(M->mu, FLINT_MAX(n * tn, 1));
+    nq_clear(M->fgroup);
+    flint_free(M->fgroup);
+    M->fgroup = NULL;
+    M->g_to_f = M->f_in_g = M->kappa = M->mu = NULL;
+}
+
+/* Sets up route FREE (see above); 1 when taken.  E is the map on G with
+ * its pc images.  A stop of the hook sets WG->overflow. */
+static int free_build(iterate_map_t M, const endo_t E, pcp_work_t WG)
+{
+    const nq_struct *Q = M->Q;
+    const pcp_struct *G = Q->pcp;
+    slong n = G->n, r = Q->pres->gens->n, c = G->maxweight;
+    if (n == 0 || c < 1 || r == 0)
+        return 0;
+    pres_t fp;
+    pres_init(fp);
+    names_set(fp->gens, Q->pres->gens);
+    nq_struct *FQ = flint_malloc(sizeof(nq_struct));
+    nq_init(FQ);
+    nserr_t err;
+    nserr_init(err);
+    ns_status st = nq_compute_max(FQ, fp, c, ITERATE_FREE_MAX_PC, WG->progress, err);
+    pres_clear(fp);
+    if (st == NS_ERR_CANCELLED)
+        WG->overflow = 1;
+    if (st != NS_OK || FQ->class_reached != c || !FQ->pcp->torsion_free) {
+        nq_clear(FQ);
+        flint_free(FQ);
+        return 0;
+    }
+    const pcp_struct *FP = FQ->pcp;
+    slong tn = FP->n;
+    M->fgroup = FQ;
+    M->g_to_f = _fmpz_vec_init(FLINT_MAX(n * tn, 1));
+    M->f_in_g = _fmpz_vec_init(FLINT_MAX(tn * n, 1));
+    M->kappa = _fmpz_vec_init(FLINT_MAX(tn * tn, 1));
+    M->mu = _fmpz_vec_init(FLINT_MAX(n * tn, 1));
+    const pcp_struct *keepP = M->P;
+    slong keep_tn = M->tn;
+    M->P = FP; /* free_project reads P and tn */
+    M->tn = tn;
+    pcp_work_t WF;
+    pcp_work_init(WF, FP);
+    WF->progress = WG->progress;
+    fmpz *u = _fmpz_vec_init(n), *v = _fmpz_vec_init(n), *t = _fmpz_vec_init(tn);
+    fmpz *gen_f = _fmpz_vec_init(FLINT_MAX(r * tn, 1));
+    endo_t EF;
+    endo_init(EF);
+    int ok = free_values_by_def(WF, M->g_to_f, G->def, n, FQ->images) &&
+             free_values_by_def(WG, M->f_in_g, FP->def, tn, Q->images);
+    /* the weights the layer step relies on */
+    for (slong j = 0; j < tn && ok; j++)
+        for (slong k = 0; k < n && ok; k++)
+            ok = fmpz_is_zero(M->f_in_g + j * n + k) || G->weight[k] >= FP->weight[j];
+    for (slong k = 0; k < n && ok; k++) {
+        for (slong j = 0; j < tn && ok; j++)
+            ok = fmpz_is_zero(M->g_to_f + k * tn + j) || FP->weight[j] >= G->weight[k];
+        if (!fmpz_is_zero(G->relorder + k))
+            for (slong q = 0; q < G->pow[k].len && ok; q++)
+                ok = G->weight[G->pow[k].gen[q]] > G->weight[k];
+    }
+    /* the kernel elements */
+    for (slong j = 0; j < tn && ok && !WF->overflow; j++) {
+        free_eval_vec(WF, t, M->f_in_g + j * n, n, M->g_to_f);
+        pcp_elt_inv(WF, t, t);
+        fmpz_one(M->kappa + j * tn + j);
+        pcp_elt_mul(WF, M->kappa + j * tn, M->kappa + j * tn, t);
+    }
+    for (slong k = 0; k < n && ok && !WF->overflow; k++) {
+        if (fmpz_is_zero(G->relorder + k))
+            continue;
+        pcw_get_vec(u, n, G->pow + k);
+        free_eval_vec(WF, t, u, n, M->g_to_f);
+        pcp_elt_inv(WF, t, t);
+        pcp_elt_pow(WF, M->mu + k * tn, M->g_to_f + k * tn, G->relorder + k);
+        pcp_elt_mul(WF, M->mu + k * tn, M->mu + k * tn, t);
+    }
+    /* pi(pre(a_k)) = a_k */
+    for (slong k = 0; k < n && ok && !WF->overflow; k++) {
+        _fmpz_vec_zero(v, n);
+        fmpz_one(v + k);
+        ok = free_project(M, u, M->g_to_f + k * tn, WF) && _fmpz_vec_equal(u, v, n);
+    }
+    /* A: x_i -> the preimage of alpha(x_i) */
+    for (slong i = 0; i < r && ok && !WF->overflow; i++)
+        free_eval_vec(WF, gen_f + i * tn, E->gen_img + i * n, n, M->g_to_f);
+    ok = ok && !WF->overflow && endo_set_elts(EF, FQ, gen_f, WG->progress, err) == NS_OK &&
+         EF->valid && !endo_ensure_pc_images(EF, FQ, WF);
+    /* pi A = alpha pi on F's pc generators */
+    for (slong j = 0; j < tn && ok && !WF->overflow && !WG->overflow; j++) {
+        ok = free_project(M, u, EF->pc_img + j * tn, WF);
+        endo_apply(E, Q, v, M->f_in_g + j * n, WG);
+        ok = ok && _fmpz_vec_equal(u, v, n);
+    }
+    if (WF->overflow)
+        WG->overflow = 1;
+    ok = ok && !WG->overflow;
+    if (ok) {
+        table_clear(M->tab, n, M->deg);
+        M->tab->img = _fmpz_vec_init(FLINT_MAX(tn * tn, 1));
+        _fmpz_vec_set(M->tab->img, EF->pc_img, tn * tn);
+        M->hall = 1;
+        M->route = ITERATE_ROUTE_FREE;
+    } else {
+        M->P = keepP;
+        M->tn = keep_tn;
+        free_fields_clear(M);
+    }
+    endo_clear(EF);
+    _fmpz_vec_clear(gen_f, FLINT_MAX(r * tn, 1));
+    _fmpz_vec_clear(u, n);
+    _fmpz_vec_clear(v, n);
+    _fmpz_vec_clear(t, tn);
+    pcp_work_clear(WF);
+    return ok;
+}
+
 ns_status iterate_map_set(iterate_map_t M, const nq_t Q, const endo_t E,
                           const ns_progress_t *progress, nserr_t err)
 {
@@ -704,7 +985,7 @@ ns_status iterate_map_set(iterate_map_t M, const nq_t Q, const endo_t E,
     slong n = Q->pcp->n;
     M->Q = Q;
     M->P = Q->pcp;
-    M->n = n;
+    M->n = M->tn = n;
     M->deg = Q->pcp->maxweight;
     M->hall = Q->pcp->torsion_free;
     if (endo_ensure_pc_images(E, Q, W)) {
@@ -715,8 +996,11 @@ ns_status iterate_map_set(iterate_map_t M, const nq_t Q, const endo_t E,
     M->ntab = 1;
     M->tab->img = _fmpz_vec_init(FLINT_MAX(n * n, 1));
     _fmpz_vec_set(M->tab->img, E->pc_img, n * n);
-    if (!M->hall)
-        cover_build(M, E->pc_img, W);
+    M->route = M->hall ? ITERATE_ROUTE_HALL : ITERATE_ROUTE_STEP;
+    if (!M->hall && cover_build(M, E->pc_img, W))
+        M->route = ITERATE_ROUTE_COVER;
+    else if (!M->hall && !W->overflow)
+        free_build(M, E, W);
     if (M->hall && !W->overflow) {
         pcp_work_t WH;
         pcp_work_init(WH, M->P);
@@ -745,7 +1029,7 @@ ns_status iterate_map_set(iterate_map_t M, const nq_t Q, const endo_t E,
  * images (alpha^(2^(b+1)) = alpha^(2^b) o alpha^(2^b)). */
 static int ensure_table(iterate_map_t M, slong b, pcp_work_t W)
 {
-    slong n = M->n;
+    slong n = M->tn;
     while (M->ntab <= b && !W->overflow) {
         iterate_table_struct *last = M->tab + M->ntab - 1;
         iterate_table_struct t;
@@ -770,14 +1054,17 @@ static int ensure_table(iterate_map_t M, slong b, pcp_work_t W)
 ns_status iterate_map_advance(iterate_map_t M, fmpz *x, ulong k,
                               const ns_progress_t *progress, nserr_t err)
 {
-    slong n = M->n;
+    slong n = M->n, tn = M->tn;
     if (k == 0 || n == 0)
         return NS_OK;
     pcp_work_t W;
     pcp_work_init(W, M->P);
     W->progress = progress;
-    fmpz *y = _fmpz_vec_init(n);
-    _fmpz_vec_set(y, x, n); /* with a cover: x read in H, a preimage */
+    fmpz *y = _fmpz_vec_init(FLINT_MAX(tn, 1));
+    if (M->route == ITERATE_ROUTE_FREE)
+        free_eval_vec(W, y, x, n, M->g_to_f); /* a preimage in F */
+    else
+        _fmpz_vec_set(y, x, n); /* with a cover: x read in H, a preimage */
     /* one step at a time for small k (no squared tables needed), by the
      * binary digits of k otherwise; the alpha^(2^b) commute.  Without Hall
      * polynomials (finite relative orders and no cover) a squared table
@@ -796,7 +1083,11 @@ ns_status iterate_map_advance(iterate_map_t M, fmpz *x, ulong k,
             table_apply(M, M->tab + b, y, y, W);
         }
     }
-    if (M->P == M->cover && !W->overflow) {
+    fmpz *out = y;
+    if (M->route == ITERATE_ROUTE_FREE && !W->overflow) {
+        out = _fmpz_vec_init(n);
+        free_project(M, out, y, W);
+    } else if (M->P == M->cover && !W->overflow) {
         pcp_work_t WG;
         pcp_work_init(WG, M->Q->pcp);
         WG->progress = progress;
@@ -808,8 +1099,10 @@ ns_status iterate_map_advance(iterate_map_t M, fmpz *x, ulong k,
     int stopped = W->overflow;
     pcp_work_clear(W);
     if (!stopped)
-        _fmpz_vec_set(x, y, n);
-    _fmpz_vec_clear(y, n);
+        _fmpz_vec_set(x, out, n);
+    if (out != y)
+        _fmpz_vec_clear(out, n);
+    _fmpz_vec_clear(y, FLINT_MAX(tn, 1));
     return stopped ? cancelled(err) : NS_OK;
 }
 

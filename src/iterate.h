@@ -71,6 +71,17 @@ typedef struct {
     fmpz *nz_val;    /* the coefficients */
 } iterate_table_struct;
 
+/* How a map's iterates are computed (iterate.c): in the quotient itself
+ * with Hall polynomials (torsion-free), through a lift to the cover H,
+ * through the free nilpotent group F of the same class when no lift to H
+ * was found, or one application at a time in the quotient. */
+typedef enum {
+    ITERATE_ROUTE_HALL = 0,
+    ITERATE_ROUTE_COVER,
+    ITERATE_ROUTE_FREE,
+    ITERATE_ROUTE_STEP
+} iterate_route;
+
 typedef struct {
     const nq_struct *Q;  /* borrowed; must outlive the map */
     const pcp_struct *P; /* where the tables live: Q's presentation, or the
@@ -80,7 +91,20 @@ typedef struct {
                             presentation without the power relations, when
                             consistent; see iterate.c); when the map lifts
                             to H, P is H and the tables hold the lift */
-    slong n;             /* pc generators */
+    nq_struct *fgroup;   /* owned, or NULL: F, the free nilpotent group of
+                            the quotient's class on the input generators
+                            (route FREE); then P is F's presentation and
+                            the tables hold a lift of the map to F */
+    fmpz *g_to_f;        /* route FREE: n x tn, preimages in F of the
+                            quotient's pc generators */
+    fmpz *f_in_g;        /* route FREE: tn x n, the images in the quotient
+                            of F's pc generators */
+    fmpz *kappa;         /* route FREE: tn x tn, f_j pre(pi(f_j))^-1 */
+    fmpz *mu;            /* route FREE: n x tn, pre(a_k)^(m_k) pre(pow_k)^-1
+                            for the finite a_k, 0 for the others */
+    iterate_route route;
+    slong n;             /* pc generators of the quotient */
+    slong tn;            /* pc generators of P (= n but on route FREE) */
     slong deg;           /* degree bound of the Hall polynomials (= class) */
     int hall;            /* 1: the tables' presentation is torsion-free,
                             powers by Hall */

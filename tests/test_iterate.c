@@ -286,7 +286,7 @@ static void torsion_iterates_should_agree_with_plain_collection(void **state)
            cover copies and lifts product definitions */
         {"<a, b, c | a^2 b^3, c^4>", 3, "a -> a, b -> b, c -> c^-1"},
     };
-    slong cases = 0, covered = 0;
+    slong cases = 0, covered = 0, viafree = 0;
     for (size_t g = 0; g < sizeof groups / sizeof groups[0]; g++) {
         nq_t Q;
         nq_init(Q);
@@ -336,7 +336,7 @@ static void torsion_iterates_should_agree_with_plain_collection(void **state)
             }
             /* large n: squaring against stepping one at a time (both exact;
              * stepping reduces by the power relations after every step) */
-            if (M->P == M->cover) { /* the map lifted to the cover */
+            if (M->route == ITERATE_ROUTE_COVER || M->route == ITERATE_ROUTE_FREE) {
                 ulong N = (ulong)rng_range(100, 600);
                 _fmpz_vec_set(fast, x0, n);
                 _fmpz_vec_set(slow, x0, n);
@@ -346,7 +346,8 @@ static void torsion_iterates_should_agree_with_plain_collection(void **state)
                 if (!_fmpz_vec_equal(fast, slow, n))
                     fail_msg("%s class %ld, map %s, w = %s, n = %lu: squaring and stepping differ",
                              groups[g].pres, (long)groups[g].cls, map, word, N);
-                covered++;
+                covered += M->route == ITERATE_ROUTE_COVER;
+                viafree += M->route == ITERATE_ROUTE_FREE;
             }
             cases++;
             _fmpz_vec_clear(x0, n);
@@ -357,7 +358,9 @@ static void torsion_iterates_should_agree_with_plain_collection(void **state)
         }
         nq_clear(Q);
     }
-    printf("# %ld torsion cases, %ld through the torsion-free cover\n", (long)cases, (long)covered);
+    printf("# %ld torsion cases, %ld through the torsion-free cover, %ld through the free "
+           "nilpotent group\n",
+           (long)cases, (long)covered, (long)viafree);
     assert_true(covered >= 8);
 
     /* <a, b | [a,b]^6> at class 5 stores commutators of weight 5 (order 6)
@@ -406,7 +409,9 @@ static void torsion_iterates_should_agree_with_plain_collection(void **state)
      * relation in the cover (both sides of infinite order there), lifts
      * after the search (with kernel elements a^2, b^6 multiplied in).  a -> a, b -> b^3 a^2 on
      * <a, b | a^6, [a,b,b]> at class 3 (found by this test with seed 6)
-     * has no lift among those tried: it steps in G, and agrees too. */
+     * has no lift among those tried: it goes through the free nilpotent
+     * group F of class 3 (route FREE), and agrees too, with plain collection
+     * for n <= 20 and squaring with stepping for large n. */
     {
         nq_t Q;
         nq_init(Q);
@@ -436,7 +441,7 @@ static void torsion_iterates_should_agree_with_plain_collection(void **state)
     nserr_t err;
     nserr_init(err);
     assert_int_equal(iterate_map_set(M, Q, E, NULL, err), NS_OK);
-    assert_true(M->P == Q->pcp);
+    assert_int_equal(M->route, ITERATE_ROUTE_FREE);
     fmpz *x0 = _fmpz_vec_init(n), *fast = _fmpz_vec_init(n), *slow = _fmpz_vec_init(n);
     eval_word(x0, Q, "a b^5 [b,a] a b^2 a^3");
     _fmpz_vec_set(slow, x0, n);
@@ -446,11 +451,74 @@ static void torsion_iterates_should_agree_with_plain_collection(void **state)
         assert_int_equal(iterate_map_advance(M, fast, k, NULL, err), NS_OK);
         assert_true(_fmpz_vec_equal(fast, slow, n));
     }
+    for (ulong N = 100; N <= 700; N += 300) {
+        _fmpz_vec_set(fast, x0, n);
+        _fmpz_vec_set(slow, x0, n);
+        assert_int_equal(iterate_map_advance(M, fast, N, NULL, err), NS_OK);
+        for (ulong k = 0; k < N; k++)
+            assert_int_equal(iterate_map_advance(M, slow, 1, NULL, err), NS_OK);
+        if (!_fmpz_vec_equal(fast, slow, n))
+            fail_msg("<a, b | a^6, [a,b,b]> class 3, n = %lu: squaring and stepping differ", N);
+    }
     _fmpz_vec_clear(x0, n);
     _fmpz_vec_clear(fast, n);
     _fmpz_vec_clear(slow, n);
     iterate_map_clear(M);
     endo_clear(E);
+    nq_clear(Q);
+}
+
+/* <a, b | [a,b]^6> at class 6: its presentation without the power
+ * relations is inconsistent (as stored and with symmetric residues), so
+ * there is no cover H and no lift; the map goes through the free nilpotent
+ * group F of class 6 (route FREE, read from the map).  Checked against
+ * plain collection (W->plain: no polynomial route anywhere) for n <= 6,
+ * and at n = 300 squaring in F against 300 single steps (each lifted from
+ * G to F and projected back).  Stepping in G took minutes for 30 steps of
+ * a -> a^2 b, b -> a b before this route. */
+static void torsion_class6_should_iterate_through_the_free_group(void **state)
+{
+    (void)state;
+    static const char *maps[] = {"a -> a^2 b, b -> a b", "a -> b, b -> a^-1 b^3"};
+    nq_t Q;
+    nq_init(Q);
+    compute_quotient(Q, "<a, b | [a,b]^6>", 6);
+    slong n = Q->pcp->n;
+    fmpz *x0 = _fmpz_vec_init(n), *fast = _fmpz_vec_init(n), *slow = _fmpz_vec_init(n);
+    eval_word(x0, Q, "a^2 b^-1 [a,b]^5 [a,b,b]^2 [a,b,a,a]");
+    for (size_t m = 0; m < sizeof maps / sizeof maps[0]; m++) {
+        endo_t E;
+        endo_init(E);
+        assert_true(set_map(E, Q, maps[m]));
+        iterate_map_t M;
+        iterate_map_init(M);
+        nserr_t err;
+        nserr_init(err);
+        assert_int_equal(iterate_map_set(M, Q, E, NULL, err), NS_OK);
+        assert_null(M->cover);
+        assert_int_equal(M->route, ITERATE_ROUTE_FREE);
+        _fmpz_vec_set(slow, x0, n);
+        for (ulong k = 1; k <= 6; k++) {
+            plain_apply_plain(Q->pcp, slow, E->pc_img, n);
+            _fmpz_vec_set(fast, x0, n);
+            assert_int_equal(iterate_map_advance(M, fast, k, NULL, err), NS_OK);
+            if (!_fmpz_vec_equal(fast, slow, n))
+                fail_msg("<a, b | [a,b]^6> class 6, map %s, n = %lu", maps[m], k);
+        }
+        _fmpz_vec_set(fast, x0, n);
+        _fmpz_vec_set(slow, x0, n);
+        assert_int_equal(iterate_map_advance(M, fast, 300, NULL, err), NS_OK);
+        for (ulong k = 0; k < 300; k++)
+            assert_int_equal(iterate_map_advance(M, slow, 1, NULL, err), NS_OK);
+        if (!_fmpz_vec_equal(fast, slow, n))
+            fail_msg("<a, b | [a,b]^6> class 6, map %s, n = 300: squaring and stepping differ",
+                     maps[m]);
+        iterate_map_clear(M);
+        endo_clear(E);
+    }
+    _fmpz_vec_clear(x0, n);
+    _fmpz_vec_clear(fast, n);
+    _fmpz_vec_clear(slow, n);
     nq_clear(Q);
 }
 
@@ -961,6 +1029,7 @@ int main(void)
         cmocka_unit_test(fast_iterates_should_agree_with_plain_collection),
         cmocka_unit_test(heisenberg_commutator_of_powers_should_be_power_of_commutator),
         cmocka_unit_test(torsion_iterates_should_agree_with_plain_collection),
+        cmocka_unit_test(torsion_class6_should_iterate_through_the_free_group),
         cmocka_unit_test(torsion_layers_should_be_free_iterates_reduced),
         cmocka_unit_test(torsion_commutator_of_huge_powers_should_reduce_mod_6),
         cmocka_unit_test(torus_iterates_should_be_matrix_powers),
