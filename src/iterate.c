@@ -1109,6 +1109,22 @@ ns_status iterate_map_advance(iterate_map_t M, fmpz *x, ulong k,
 ns_status iterate_map_eval(const iterate_map_t M, fmpz *out, const expr_t w,
                            const ns_progress_t *progress, nserr_t err)
 {
+    if (M->cover == NULL && M->fgroup != NULL) {
+        /* route FREE without H: w's value in F (x_i -> x_i) is a preimage
+         * of its value in G, brought down by pi (see free_project) */
+        pcp_work_t WF;
+        pcp_work_init(WF, M->fgroup->pcp);
+        WF->progress = progress;
+        fmpz *y = _fmpz_vec_init(M->tn);
+        if (!pcp_eval_expr(WF, y, w->root, M->fgroup->images))
+            free_project(M, out, y, WF);
+        int stopped = WF->overflow;
+        _fmpz_vec_clear(y, M->tn);
+        pcp_work_clear(WF);
+        if (stopped)
+            return nserr_set(err, NS_ERR_CANCELLED, 0, 0, "evaluation stopped");
+        return NS_OK;
+    }
     if (M->cover == NULL)
         return nq_eval(M->Q, out, w, progress, err);
     /* the input generators' values read in H are preimages under rho, a

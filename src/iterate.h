@@ -17,10 +17,15 @@
  * group H of the same presentation without its power relations (the
  * cover, iterate.c states the conditions and why they suffice), the
  * tables and polynomials below live in H, and each result is reduced to
- * the quotient by collection.  Without a cover, the exponents of finite
- * generators are already reduced (normal form, 0 <= g_k < m_k) and the
- * others go by pcp_elt_pow, whose cost grows with the bit length of the
- * exponent, never with its value, one application of the map at a time.
+ * the quotient by collection.  When there is no such lift, the map is
+ * lifted to the free nilpotent group F of the same class on the input
+ * generators (every map lifts there), the tables live in F, and each
+ * result is brought down layer by layer with products in F only (route
+ * FREE, iterate.c).  Only when F is too large (or a check fails), the
+ * exponents of finite generators are already reduced (normal form,
+ * 0 <= g_k < m_k) and the others go by pcp_elt_pow, whose cost grows with
+ * the bit length of the exponent, never with its value, one application
+ * of the map at a time.
  *
  * Faster still, in those presentations the coordinates of alpha(x) are
  * integer-valued polynomials in the exponents x of weighted degree <= c (a
@@ -130,7 +135,8 @@ ns_status iterate_map_set(iterate_map_t M, const nq_t Q, const endo_t E,
 /* out := the element of the word w in the input generators, as nq_eval;
  * with a cover (a presentation with finite relative orders that is
  * consistent without its power relations), evaluated in the cover, where
- * huge exponents cost what small ones do, and reduced.  NS_ERR_CANCELLED
+ * huge exponents cost what small ones do, and reduced; without one, on
+ * route FREE, evaluated in the free nilpotent group and brought down.  NS_ERR_CANCELLED
  * when progress stopped it. */
 ns_status iterate_map_eval(const iterate_map_t M, fmpz *out, const expr_t w,
                            const ns_progress_t *progress, nserr_t err);
