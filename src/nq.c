@@ -747,29 +747,64 @@ static int requotient_survivors(elim_quotient_t q, const slong *perm, const slon
     }
     elim_clear(E);
     slong n2 = q2->nsurv;
+    /* q's relations and orders are in E's result now: give their memory
+       back before the expressions are rewritten (the peak of a deep class
+       step is here: surface(2) class 7) */
+    _fmpz_vec_clear(q->order, ns);
+    _fmpz_vec_clear(q->rel, ns * ns);
     /* old survivor perm[c] = sum_k q2->expr[c][k] (new survivor k); every
-       tail's expression follows */
-    fmpz *expr = _fmpz_vec_init(FLINT_MAX(T * n2, 1));
-    for (slong c = 0; c < N; c++) {
-        slong s = perm[c];
-        if (s >= ns)
-            continue; /* the tails J have zero coordinates there */
-        const fmpz *e2 = q2->expr + c * n2;
-        for (slong t = 0; t < T; t++) {
-            const fmpz *x = q->expr + t * ns + s;
+       tail's expression follows, rewritten in place row by row: upwards
+       when n2 <= ns (row t's new entries only cover old rows <= t, already
+       read), downwards in a grown array otherwise (they only cover old
+       rows >= t) */
+    slong *col = flint_malloc(FLINT_MAX(ns, 1) * sizeof(slong));
+    for (slong c = 0; c < N; c++)
+        if (perm[c] < ns)
+            col[perm[c]] = c;
+    fmpz *row = _fmpz_vec_init(FLINT_MAX(n2, 1));
+    fmpz *expr = q->expr;
+    int down = n2 > ns;
+    if (down) {
+        expr = flint_realloc(expr, (size_t)(T * n2) * sizeof(fmpz));
+        for (slong i = T * ns; i < T * n2; i++)
+            fmpz_init(expr + i);
+    }
+    for (slong k = 0; k < T && n2 > 0 && !w->stopped; k++) {
+        slong t = down ? T - 1 - k : k;
+        for (slong s = 0; s < ns; s++) {
+            const fmpz *x = expr + t * ns + s;
             if (fmpz_is_zero(x))
                 continue;
+            const fmpz *e2 = q2->expr + col[s] * n2;
             for (slong j = 0; j < n2; j++)
                 if (!fmpz_is_zero(e2 + j))
-                    fmpz_addmul(expr + t * n2 + j, x, e2 + j);
+                    fmpz_addmul(row + j, x, e2 + j);
             if (nq_poll_add(w, n2 * (1 + (slong)fmpz_size(x))))
                 break;
         }
-        if (w->stopped) {
-            _fmpz_vec_clear(expr, FLINT_MAX(T * n2, 1));
-            elim_quotient_clear(q2);
-            return 1;
+        for (slong j = 0; j < n2; j++) {
+            fmpz_swap(expr + t * n2 + j, row + j);
+            fmpz_zero(row + j);
         }
+    }
+    _fmpz_vec_clear(row, FLINT_MAX(n2, 1));
+    flint_free(col);
+    if (w->stopped) {
+        /* q is left empty: a stopped step is thrown away */
+        elim_quotient_clear(q2);
+        flint_free(q->surv);
+        _fmpz_vec_clear(expr, T * FLINT_MAX(ns, n2));
+        elim_quotient_init(q);
+        return 1;
+    }
+    /* q's expression array becomes the new one */
+    for (slong i = T * n2; i < T * ns; i++)
+        fmpz_zero(expr + i);
+    if (n2 > 0 && !down)
+        expr = flint_realloc(expr, (size_t)(T * n2) * sizeof(fmpz));
+    else if (n2 == 0) {
+        flint_free(expr);
+        expr = _fmpz_vec_init(1);
     }
     slong *surv = flint_malloc(FLINT_MAX(n2, 1) * sizeof(slong));
     for (slong j = 0; j < n2; j++) {
@@ -780,12 +815,16 @@ static int requotient_survivors(elim_quotient_t q, const slong *perm, const slon
         _fmpz_vec_zero(expr + surv[j] * n2, n2);
         fmpz_one(expr + surv[j] * n2 + j);
     }
-    fmpz *order = _fmpz_vec_init(FLINT_MAX(n2, 1));
-    fmpz *rel = _fmpz_vec_init(FLINT_MAX(n2 * n2, 1));
-    _fmpz_vec_set(order, q2->order, n2);
-    _fmpz_vec_set(rel, q2->rel, n2 * n2);
-    elim_quotient_clear(q2);
-    elim_quotient_clear(q);
+    /* q2's orders and relations move over, the rest of q2 and of q goes */
+    fmpz *order = n2 ? q2->order : _fmpz_vec_init(1);
+    fmpz *rel = n2 ? q2->rel : _fmpz_vec_init(1);
+    if (n2) {
+        flint_free(q2->surv);
+        _fmpz_vec_clear(q2->expr, q2->ncols * n2);
+    }
+    elim_quotient_init(q2);
+    flint_free(q->surv);
+    elim_quotient_init(q);
     q->ncols = T;
     q->nsurv = n2;
     if (n2 > 0) {

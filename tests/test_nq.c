@@ -1115,20 +1115,32 @@ static void assert_empty(const nq_t Q)
     assert_int_equal(Q->pcp->n, 0);
 }
 
+/* Cancelling at every one of the hook's calls; the second presentation's
+ * layer 2 has a relation without a unit (2 [a,b] + 5 [a,c] + 3 [b,c] on
+ * the tails), so its class step re-eliminates the survivors
+ * (requotient_survivors) and is stopped inside that too. */
+static void cancel_at_each_call(const char *text, slong cls);
+
 static void cancel_leaves_nq_empty(void **state)
 {
     (void)state;
+    cancel_at_each_call("<a, b, c | [a,b] c^2>", 5);
+    cancel_at_each_call("<a, b, c | [a,b]^2 [b,c]^3 [a,c]^5>", 3);
+}
+
+static void cancel_at_each_call(const char *text, slong cls)
+{
     pres_t p;
     nserr_t err;
     pres_init(p);
     nserr_init(err);
-    parse_pres_or_fail(p, "<a, b, c | [a,b] c^2>");
+    parse_pres_or_fail(p, text);
     /* How many times does an uncancelled run ask? */
     cancel_ctx count = {0, 0};
     ns_progress_t prog = {cancel_hook, &count};
     nq_t Q;
     nq_init(Q);
-    assert_int_equal(nq_compute(Q, p, 5, &prog, err), NS_OK);
+    assert_int_equal(nq_compute(Q, p, cls, &prog, err), NS_OK);
     assert_true(count.calls >= 2);
     int total = count.calls;
     /* Cancelling at each of those calls stops the run, empties Q (which held
@@ -1137,7 +1149,7 @@ static void cancel_leaves_nq_empty(void **state)
         cancel_ctx cc = {0, k};
         ns_progress_t pk = {cancel_hook, &cc};
         nserr_init(err);
-        ns_status st = nq_compute(Q, p, 5, &pk, err);
+        ns_status st = nq_compute(Q, p, cls, &pk, err);
         if (st != NS_ERR_CANCELLED)
             fail_msg("cancel at call %d of %d: status %d", k, total, (int)st);
         assert_empty(Q);
@@ -1248,6 +1260,28 @@ static void cancel_during_layer_basis(void **state)
             assert_empty(Q);
             nq_clear(Q);
         }
+    pres_clear(p);
+    /* surface(2) at class 6: polls 3 to 18 of its layer basis fall where
+     * requotient_survivors rewrites the tails' expressions in place (found
+     * by counting them on the build of this test); a stop there must leave
+     * nothing half rewritten behind (make asan) */
+    pres_init(p);
+    parse_pres_or_fail(p, "<a, b, c, d | [a,b] [c,d]>");
+    static const int at_surface[] = {3, 10};
+    for (size_t k = 0; k < sizeof at_surface / sizeof at_surface[0]; k++) {
+        phase_ctx pc = {0, 0, at_surface[k], 0, 0};
+        ns_progress_t prog = {cancel_in_layer_basis, &pc};
+        nq_t Q;
+        nq_init(Q);
+        nserr_init(err);
+        ns_status st = nq_compute(Q, p, 6, &prog, err);
+        if (st != NS_ERR_CANCELLED || pc.left || pc.after != 0)
+            fail_msg("surface(2), cancel at poll %d of the layer basis of class 6: status %d, "
+                     "%d polls, phase left %d, %d calls after the cancel",
+                     at_surface[k], (int)st, pc.polls, pc.left, pc.after);
+        assert_empty(Q);
+        nq_clear(Q);
+    }
     pres_clear(p);
 }
 
