@@ -667,34 +667,57 @@ static ns_status step_tail_relations(step_struct *S, const nq_t Q, pcp_work_t W,
  * still commutator tails with their definitions; a relation without a
  * unit entry (2 t_1 + 3 t_2 = 0) is left to swap_in_commutator_tails, and
  * what that leaves to minimise_survivors. */
+/* The unimodular 2 x 2 step that takes (x, y) to (g, 0), g = gcd(x, y) =
+ * u x + v y, a = x/g, b = y/g: pairs (p, q) := (u p + v q, a q - b p).
+ * Shared by the row steps of the survivor lattice and the column steps of
+ * snf_transform. */
+typedef struct {
+    fmpz_t u, v, a, b, t;
+} gcd_pair;
+
+static void gcd_pair_init(gcd_pair *s, const fmpz_t x, const fmpz_t y)
+{
+    fmpz_t g;
+    fmpz_init(g);
+    fmpz_init(s->u);
+    fmpz_init(s->v);
+    fmpz_init(s->a);
+    fmpz_init(s->b);
+    fmpz_init(s->t);
+    fmpz_xgcd(g, s->u, s->v, x, y);
+    fmpz_divexact(s->a, x, g);
+    fmpz_divexact(s->b, y, g);
+    fmpz_clear(g);
+}
+
+static void gcd_pair_apply(gcd_pair *s, fmpz_t p, fmpz_t q)
+{
+    fmpz_mul(s->t, s->u, p);
+    fmpz_addmul(s->t, s->v, q);
+    fmpz_mul(q, s->a, q);
+    fmpz_submul(q, s->b, p);
+    fmpz_swap(p, s->t);
+}
+
+static void gcd_pair_clear(gcd_pair *s)
+{
+    fmpz_clear(s->u);
+    fmpz_clear(s->v);
+    fmpz_clear(s->a);
+    fmpz_clear(s->b);
+    fmpz_clear(s->t);
+}
+
 /* x, y (n entries) := u x + v y, (a/g) y - (b/g) x with a = x[c],
  * b = y[c], g = gcd(a, b) = u a + v b: a unimodular step after which
  * x[c] = g and y[c] = 0. */
 static void row_gcd_step(fmpz *x, fmpz *y, slong n, slong c)
 {
-    fmpz_t g, u, v, a, b, t;
-    fmpz_init(g);
-    fmpz_init(u);
-    fmpz_init(v);
-    fmpz_init(a);
-    fmpz_init(b);
-    fmpz_init(t);
-    fmpz_xgcd(g, u, v, x + c, y + c);
-    fmpz_divexact(a, x + c, g);
-    fmpz_divexact(b, y + c, g);
-    for (slong j = 0; j < n; j++) {
-        fmpz_mul(t, u, x + j);
-        fmpz_addmul(t, v, y + j);
-        fmpz_mul(y + j, a, y + j);
-        fmpz_submul(y + j, b, x + j);
-        fmpz_swap(x + j, t);
-    }
-    fmpz_clear(g);
-    fmpz_clear(u);
-    fmpz_clear(v);
-    fmpz_clear(a);
-    fmpz_clear(b);
-    fmpz_clear(t);
+    gcd_pair s;
+    gcd_pair_init(&s, x + c, y + c);
+    for (slong j = 0; j < n; j++)
+        gcd_pair_apply(&s, x + j, y + j);
+    gcd_pair_clear(&s);
 }
 
 /* The survivor lattice of q brought to echelon form again over N = ns + m
@@ -1080,44 +1103,25 @@ static void snf_col_neg(snf_work *w, slong i)
 static void snf_col_gcd(snf_work *w, slong r, slong i, slong j)
 {
     slong nc = w->nc;
-    fmpz_t g, u, v, a, b, t;
-    fmpz_init(g);
-    fmpz_init(u);
-    fmpz_init(v);
-    fmpz_init(a);
-    fmpz_init(b);
-    fmpz_init(t);
-    fmpz_xgcd(g, u, v, w->M + r * nc + i, w->M + r * nc + j);
-    fmpz_divexact(a, w->M + r * nc + i, g);
-    fmpz_divexact(b, w->M + r * nc + j, g);
+    gcd_pair s;
+    gcd_pair_init(&s, w->M + r * nc + i, w->M + r * nc + j);
     fmpz *rows[2] = {w->M, w->V};
     slong nrows[2] = {w->nr, nc};
     for (int m = 0; m < 2; m++)
-        for (slong k = 0; k < nrows[m]; k++) {
-            fmpz *x = rows[m] + k * nc + i, *y = rows[m] + k * nc + j;
-            fmpz_mul(t, u, x);
-            fmpz_addmul(t, v, y);
-            fmpz_mul(y, a, y);
-            fmpz_submul(y, b, x);
-            fmpz_swap(x, t);
-        }
+        for (slong k = 0; k < nrows[m]; k++)
+            gcd_pair_apply(&s, rows[m] + k * nc + i, rows[m] + k * nc + j);
     fmpz *ri = w->Vi + i * nc, *rj = w->Vi + j * nc;
     for (slong k = 0; k < nc; k++) {
-        fmpz_mul(t, a, ri + k);
-        fmpz_addmul(t, b, rj + k);
-        fmpz_mul(rj + k, u, rj + k);
-        fmpz_submul(rj + k, v, ri + k);
-        fmpz_swap(ri + k, t);
+        fmpz_mul(s.t, s.a, ri + k);
+        fmpz_addmul(s.t, s.b, rj + k);
+        fmpz_mul(rj + k, s.u, rj + k);
+        fmpz_submul(rj + k, s.v, ri + k);
+        fmpz_swap(ri + k, s.t);
     }
     /* the pass touched columns i and j of M and V and two rows of Vi */
     nq_poll_add(w->poll, 4 * (w->nr + 2 * nc) * (1 + (slong)fmpz_size(w->M + r * nc + i) +
-                                                 (slong)fmpz_size(u) + (slong)fmpz_size(v)));
-    fmpz_clear(g);
-    fmpz_clear(u);
-    fmpz_clear(v);
-    fmpz_clear(a);
-    fmpz_clear(b);
-    fmpz_clear(t);
+                                                 (slong)fmpz_size(s.u) + (slong)fmpz_size(s.v)));
+    gcd_pair_clear(&s);
 }
 
 /* M to Smith form by row operations and recorded column operations (the

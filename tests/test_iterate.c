@@ -195,22 +195,29 @@ static void fast_iterates_should_agree_with_plain_collection(void **state)
     assert_true(ntors >= 3 && nfree >= 3);
 }
 
-static void heisenberg_commutator_of_powers_should_be_power_of_commutator(void **state)
+/* Two 100-digit numbers for the commutator identities below. */
+static const char *const HUGE_M = "3141592653589793238462643383279502884197169399375105820974944592307816"
+                                  "406286208998628034825342117067";
+static const char *const HUGE_K = "-2718281828459045235360287471352662497757247093699959574966967627724076"
+                                  "630353547594571382178525166427";
+
+/* In the class-2 quotient of group, where [a,b] is central: [a^m, b^k] =
+ * [a,b]^(mk) for m = HUGE_M, k = HUGE_K, and through the iterates of
+ * a -> a^m, b -> b^k, alpha^steps([a,b]) = [a,b]^((mk)^steps); with
+ * modulus > 0 (the order of [a,b]) the exponents are reduced modulo it. */
+static void check_commutator_of_huge_powers(const char *group, ulong steps, ulong modulus)
 {
-    (void)state;
     nq_t Q;
     nq_init(Q);
-    compute_quotient(Q, "<a, b | [a,b,a], [a,b,b]>", 2);
+    compute_quotient(Q, group, 2);
     slong n = Q->pcp->n;
-    fmpz_t m, k, mk;
+    fmpz_t m, k, mk, e;
     fmpz_init(m);
     fmpz_init(k);
     fmpz_init(mk);
-    /* two 100-digit numbers */
-    fmpz_set_str(m, "3141592653589793238462643383279502884197169399375105820974944592307816"
-                    "406286208998628034825342117067", 10);
-    fmpz_set_str(k, "-2718281828459045235360287471352662497757247093699959574966967627724076"
-                    "630353547594571382178525166427", 10);
+    fmpz_init(e);
+    fmpz_set_str(m, HUGE_M, 10);
+    fmpz_set_str(k, HUGE_K, 10);
     fmpz_mul(mk, m, k);
     fmpz *a = _fmpz_vec_init(n), *b = _fmpz_vec_init(n), *c = _fmpz_vec_init(n);
     fmpz *lhs = _fmpz_vec_init(n), *rhs = _fmpz_vec_init(n);
@@ -222,15 +229,14 @@ static void heisenberg_commutator_of_powers_should_be_power_of_commutator(void *
     pcp_elt_pow(W, a, a, m);
     pcp_elt_pow(W, b, b, k);
     pcp_elt_comm(W, lhs, a, b);
-    pcp_elt_pow(W, rhs, c, mk);
+    if (modulus)
+        fmpz_mod_ui(e, mk, modulus);
+    else
+        fmpz_set(e, mk);
+    pcp_elt_pow(W, rhs, c, e);
     assert_true(_fmpz_vec_equal(lhs, rhs, n));
-    /* the same through the iterates of a -> a^m, b -> b^k: alpha^3([a,b]) =
-     * [a,b]^((mk)^3) */
-    char *ms = fmpz_get_str(NULL, 10, m), *ks = fmpz_get_str(NULL, 10, k);
     char map[600];
-    snprintf(map, sizeof map, "a -> a^%s, b -> b^(%s)", ms, ks);
-    flint_free(ms);
-    flint_free(ks);
+    snprintf(map, sizeof map, "a -> a^%s, b -> b^(%s)", HUGE_M, HUGE_K);
     endo_t E;
     endo_init(E);
     assert_true(set_map(E, Q, map));
@@ -240,9 +246,11 @@ static void heisenberg_commutator_of_powers_should_be_power_of_commutator(void *
     nserr_init(err);
     assert_int_equal(iterate_map_set(M, Q, E, NULL, err), NS_OK);
     _fmpz_vec_set(lhs, c, n);
-    assert_int_equal(iterate_map_advance(M, lhs, 3, NULL, err), NS_OK);
-    fmpz_pow_ui(mk, mk, 3);
-    pcp_elt_pow(W, rhs, c, mk);
+    assert_int_equal(iterate_map_advance(M, lhs, steps, NULL, err), NS_OK);
+    fmpz_pow_ui(e, mk, steps);
+    if (modulus)
+        fmpz_mod_ui(e, e, modulus);
+    pcp_elt_pow(W, rhs, c, e);
     assert_true(_fmpz_vec_equal(lhs, rhs, n));
     iterate_map_clear(M);
     endo_clear(E);
@@ -255,7 +263,14 @@ static void heisenberg_commutator_of_powers_should_be_power_of_commutator(void *
     fmpz_clear(m);
     fmpz_clear(k);
     fmpz_clear(mk);
+    fmpz_clear(e);
     nq_clear(Q);
+}
+
+static void heisenberg_commutator_of_powers_should_be_power_of_commutator(void **state)
+{
+    (void)state;
+    check_commutator_of_huge_powers("<a, b | [a,b,a], [a,b,b]>", 3, 0);
 }
 
 /* Plain collection with W->plain set (no polynomial route anywhere). */
@@ -648,66 +663,19 @@ static void torsion_layers_should_be_free_iterates_reduced(void **state)
 static void torsion_commutator_of_huge_powers_should_reduce_mod_6(void **state)
 {
     (void)state;
-    nq_t Q;
-    nq_init(Q);
-    compute_quotient(Q, "<a, b | [a,b]^6>", 2);
-    slong n = Q->pcp->n;
-    fmpz_t m, k, mk, r;
+    fmpz_t m, k, r;
     fmpz_init(m);
     fmpz_init(k);
-    fmpz_init(mk);
     fmpz_init(r);
-    fmpz_set_str(m, "3141592653589793238462643383279502884197169399375105820974944592307816"
-                    "406286208998628034825342117067", 10);
-    fmpz_set_str(k, "-2718281828459045235360287471352662497757247093699959574966967627724076"
-                    "630353547594571382178525166427", 10);
-    fmpz_mul(mk, m, k);
-    fmpz *a = _fmpz_vec_init(n), *b = _fmpz_vec_init(n), *c = _fmpz_vec_init(n);
-    fmpz *lhs = _fmpz_vec_init(n), *rhs = _fmpz_vec_init(n);
-    eval_word(a, Q, "a");
-    eval_word(b, Q, "b");
-    eval_word(c, Q, "[a,b]");
-    pcp_work_t W;
-    pcp_work_init(W, Q->pcp);
-    pcp_elt_pow(W, a, a, m);
-    pcp_elt_pow(W, b, b, k);
-    pcp_elt_comm(W, lhs, a, b);
-    fmpz_mod_ui(r, mk, 6);
+    fmpz_set_str(m, HUGE_M, 10);
+    fmpz_set_str(k, HUGE_K, 10);
+    fmpz_mul(r, m, k);
+    fmpz_mod_ui(r, r, 6);
     assert_true(fmpz_equal_si(r, 3)); /* m = 3, k = 1 mod 6 (python3 by hand) */
-    pcp_elt_pow(W, rhs, c, r);
-    assert_true(_fmpz_vec_equal(lhs, rhs, n));
-    char *ms = fmpz_get_str(NULL, 10, m), *ks = fmpz_get_str(NULL, 10, k);
-    char map[600];
-    snprintf(map, sizeof map, "a -> a^%s, b -> b^(%s)", ms, ks);
-    flint_free(ms);
-    flint_free(ks);
-    endo_t E;
-    endo_init(E);
-    assert_true(set_map(E, Q, map));
-    iterate_map_t M;
-    iterate_map_init(M);
-    nserr_t err;
-    nserr_init(err);
-    assert_int_equal(iterate_map_set(M, Q, E, NULL, err), NS_OK);
-    _fmpz_vec_set(lhs, c, n);
-    assert_int_equal(iterate_map_advance(M, lhs, 5, NULL, err), NS_OK);
-    fmpz_pow_ui(mk, mk, 5);
-    fmpz_mod_ui(r, mk, 6);
-    pcp_elt_pow(W, rhs, c, r);
-    assert_true(_fmpz_vec_equal(lhs, rhs, n));
-    iterate_map_clear(M);
-    endo_clear(E);
-    pcp_work_clear(W);
-    _fmpz_vec_clear(a, n);
-    _fmpz_vec_clear(b, n);
-    _fmpz_vec_clear(c, n);
-    _fmpz_vec_clear(lhs, n);
-    _fmpz_vec_clear(rhs, n);
     fmpz_clear(m);
     fmpz_clear(k);
-    fmpz_clear(mk);
     fmpz_clear(r);
-    nq_clear(Q);
+    check_commutator_of_huge_powers("<a, b | [a,b]^6>", 5, 6);
 }
 
 /* The map x_j -> prod_i x_i^(M[i][j]) of free(r) as text. */
